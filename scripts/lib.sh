@@ -1,0 +1,101 @@
+#!/usr/bin/env bash
+# Shared provisioning steps for `npm start` and `npm test`. Each step checks before it acts,
+# so a second run on a provisioned machine does nothing but verify.
+set -euo pipefail
+
+ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
+PG_VERSION_WANTED="${PG_VERSION_WANTED:-15}"
+
+log() { printf '[rateledger] %s\n' "$*" >&2; }
+
+# Debian packages the app needs at run time: PostgreSQL for the private cluster, Chromium for
+# PDF printing and browser tests, poppler-utils for PDF checks, fonts for Chromium's fallbacks.
+ensure_system_packages() {
+  local missing=()
+  command -v chromium >/dev/null 2>&1 || missing+=(chromium)
+  command -v pdftotext >/dev/null 2>&1 || missing+=(poppler-utils)
+  ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 || missing+=(postgresql)
+  dpkg -s fonts-liberation >/dev/null 2>&1 || missing+=(fonts-liberation)
+  if ((${#missing[@]})); then
+    log "installing Debian packages: ${missing[*]}"
+    if [ "$(id -u)" != 0 ]; then
+      log "not root: install them yourself with: sudo apt-get install ${missing[*]}"; exit 1
+    fi
+    apt-get update -qq
+    DEBIAN_FRONTEND=noninteractive apt-get install -y -qq --no-install-recommends "${missing[@]}" >/dev/null
+  fi
+}
+
+# npm ci when node_modules is missing or was installed from another lockfile.
+ensure_node_modules() {
+  local stamp="$ROOT/node_modules/.rateledger-lock.sha256"
+  local want
+  want="$(sha256sum "$ROOT/package-lock.json" | cut -d' ' -f1)"
+  if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
+    log "installing npm packages (npm ci)"
+    (cd "$ROOT" && npm ci --no-audit --no-fund --loglevel=error)
+    echo "$want" >"$stamp"
+  fi
+}
+
+pg_bin() {
+  local dir
+  dir="$(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -n 1)"
+  [ -n "$dir" ] || { log "PostgreSQL binaries not found"; exit 1; }
+  echo "$dir"
+}
+
+# start_cluster DIR PORT [throwaway]: a private PostgreSQL cluster owned by the `postgres` system
+# user (initdb refuses root), listening on 127.0.0.1 only, with its socket inside DIR.
+start_cluster() {
+  local dir="$1" port="$2" throwaway="${3:-}"
+  local bin; bin="$(pg_bin)"
+  local as_pg=()
+  if [ "$(id -u)" = 0 ]; then as_pg=(runuser -u postgres --); fi
+  mkdir -p "$dir"
+  if [ "$(id -u)" = 0 ]; then chown postgres:postgres "$dir"; fi
+  if [ ! -f "$dir/data/PG_VERSION" ]; then
+    log "creating a private PostgreSQL cluster in $dir"
+    "${as_pg[@]}" "$bin/initdb" -D "$dir/data" -U postgres --auth=trust -E UTF8 --locale=C.UTF-8 >/dev/null
+  fi
+  local opts="-c listen_addresses=127.0.0.1 -p $port -c unix_socket_directories='$dir'"
+  if [ -n "$throwaway" ]; then opts="$opts -c fsync=off -c synchronous_commit=off -c full_page_writes=off"; fi
+  if "${as_pg[@]}" "$bin/pg_ctl" -D "$dir/data" status >/dev/null 2>&1; then
+    log "PostgreSQL already running in $dir"
+  else
+    "${as_pg[@]}" "$bin/pg_ctl" -D "$dir/data" -l "$dir/server.log" -w -o "$opts" start >/dev/null
+  fi
+}
+
+stop_cluster() {
+  local dir="$1"
+  local bin; bin="$(pg_bin)"
+  local as_pg=()
+  if [ "$(id -u)" = 0 ]; then as_pg=(runuser -u postgres --); fi
+  if [ -f "$dir/data/PG_VERSION" ]; then
+    "${as_pg[@]}" "$bin/pg_ctl" -D "$dir/data" -m fast -w stop >/dev/null 2>&1 || true
+  fi
+}
+
+# ensure_database PORT NAME: create the database when absent.
+ensure_database() {
+  local port="$1" name="$2"
+  local bin; bin="$(pg_bin)"
+  if ! "$bin/psql" -h 127.0.0.1 -p "$port" -U postgres -tAc "select 1 from pg_database where datname='$name'" | grep -q 1; then
+    "$bin/createdb" -h 127.0.0.1 -p "$port" -U postgres "$name"
+  fi
+}
+
+# The directory must be enterable by the postgres user; fall back to a folder under /var/tmp
+# when the checkout sits somewhere it cannot reach.
+cluster_dir_for() {
+  local wanted="$1"
+  mkdir -p "$(dirname "$wanted")"
+  if [ "$(id -u)" = 0 ] && ! runuser -u postgres -- test -x "$(dirname "$wanted")"; then
+    local alt="/var/tmp/rateledger-pg-$(echo "$wanted" | sha256sum | cut -c1-12)"
+    log "postgres cannot enter $(dirname "$wanted"); using $alt for the cluster"
+    echo "$alt"
+  else
+    echo "$wanted"
+  fi
+}

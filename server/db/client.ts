@@ -1,0 +1,23 @@
+import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
+import pg from 'pg';
+import * as schema from './schema/index.ts';
+
+export type Database = NodePgDatabase<typeof schema>;
+export type Transaction = Parameters<Parameters<Database['transaction']>[0]>[0];
+/** Either the database or an open transaction: services accept both and pass `tx` down. */
+export type Executor = Database | Transaction;
+
+export interface DatabaseHandle {
+  pool: pg.Pool;
+  db: Database;
+  close(): Promise<void>;
+}
+
+/** The one owner of the connection pool. */
+export function openDatabase(connectionString: string): DatabaseHandle {
+  const pool = new pg.Pool({ connectionString, max: 10 });
+  // An idle client that loses its connection must not crash the process.
+  pool.on('error', (error) => console.error('[db] idle client error:', error.message));
+  const db = drizzle(pool, { schema, casing: 'snake_case' });
+  return { pool, db, close: () => pool.end() };
+}

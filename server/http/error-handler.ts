@@ -1,0 +1,51 @@
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { ZodError } from 'zod';
+import { renderPage } from '../web/render-page.ts';
+import { HttpError } from './http-error.ts';
+
+const HEADINGS: Record<number, string> = {
+  400: 'The request could not be read',
+  401: 'Sign in first',
+  403: 'Not allowed',
+  404: 'Not found',
+  413: 'Too large',
+  415: 'Unsupported content type',
+  429: 'Too many requests',
+  500: 'Something went wrong',
+};
+
+/** The catch-all for paths no route matched. */
+export const notFound: RequestHandler = (req, _res, next) => {
+  next(new HttpError(404, `There is nothing at ${req.path}.`));
+};
+
+/** body-parser and multer errors carry a status and a type; translate them to safe messages. */
+function fromFrameworkError(error: unknown): HttpError | null {
+  if (error instanceof HttpError) return error;
+  if (error instanceof ZodError) {
+    return new HttpError(400, 'Some fields are not valid.', error.issues.map((issue) => ({ field: issue.path.join('.'), message: issue.message })));
+  }
+  const typed = error as { status?: number; statusCode?: number; type?: string; code?: string };
+  const status = typed.status ?? typed.statusCode;
+  if (typed.type === 'entity.parse.failed') return new HttpError(400, 'The request body is not valid JSON.');
+  if (typed.type === 'entity.too.large') return new HttpError(413, 'The request body is larger than this endpoint accepts.');
+  if (typed.type === 'encoding.unsupported' || typed.type === 'charset.unsupported') {
+    return new HttpError(415, 'The request body uses an encoding this endpoint does not accept.');
+  }
+  if (status && status >= 400 && status < 500) return new HttpError(status, HEADINGS[status] ?? 'The request was refused.');
+  return null;
+}
+
+/** The one final handler: JSON for /api and /healthz, an HTML page otherwise; internals never leak. */
+export const errorHandler: ErrorRequestHandler = (error, req, res, _next) => {
+  const known = fromFrameworkError(error);
+  const status = known?.status ?? 500;
+  const message = known?.message ?? 'An unexpected error stopped this request. It has been logged; nothing was saved half-way.';
+  if (!known) console.error(`[http] ${req.method} ${req.originalUrl} failed:`, error);
+  if (res.headersSent) return;
+  if (req.originalUrl.startsWith('/api/') || req.originalUrl.startsWith('/healthz') || !req.accepts('html')) {
+    res.status(status).json({ error: { status, message, ...(known?.details ? { details: known.details } : {}) } });
+    return;
+  }
+  renderPage(req, res, 'error', { title: HEADINGS[status] ?? 'Error', status, heading: HEADINGS[status] ?? 'Error', message }, status);
+};

@@ -1,0 +1,30 @@
+import type { Server } from 'node:http';
+import { createApp } from './app.ts';
+import { parseEnvironment } from './config/env.ts';
+import { openDatabase } from './db/client.ts';
+import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
+
+/** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
+const environment = parseEnvironment();
+const database = openDatabase(environment.DATABASE_URL);
+const app = createApp(database, { sessionSecret: environment.SESSION_SECRET, cookieSecure: environment.COOKIE_SECURE, signInRateLimit: environment.SIGN_IN_RATE_LIMIT });
+
+const server: Server = app.listen(environment.PORT, environment.HOST, () => {
+  console.log(`\nRateledger is running at http://${environment.HOST}:${environment.PORT}\n`);
+  if (environment.NODE_ENV !== 'production') console.log(DEMO_PASSWORDS_NOTE);
+  console.log('Press Ctrl-C to stop.\n');
+});
+
+let stopping = false;
+async function shutdown(signal: string) {
+  if (stopping) return;
+  stopping = true;
+  console.log(`[rateledger] ${signal}: stopping`);
+  server.close(async () => {
+    await database.close();
+    process.exit(0);
+  });
+  setTimeout(() => process.exit(1), 10_000).unref();
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));

@@ -1,0 +1,36 @@
+import { desc, eq } from 'drizzle-orm';
+import { Router } from 'express';
+import { type ActivityResponse, activityQuerySchema } from '../../shared/api/activity.ts';
+import type { MeResponse } from '../../shared/api/session.ts';
+import { requireRole, signedIn } from '../auth/route-policy.ts';
+import { auditEvents } from '../db/schema/index.ts';
+import type { AppServices } from '../services/app-services.ts';
+import { listPeople } from '../services/people.ts';
+
+export function apiRoutes(services: AppServices): Router {
+  const router = Router();
+
+  router.get('/api/me', signedIn(), (req, res) => {
+    const user = req.user!;
+    const body: MeResponse = { ...user };
+    res.json(body);
+  });
+
+  router.get('/api/activity', signedIn(), async (req, res) => {
+    const query = activityQuerySchema.parse(req.query);
+    const rows = await services.db
+      .select({ id: auditEvents.id, occurredAt: auditEvents.occurredAt, action: auditEvents.action, recordType: auditEvents.recordType, recordId: auditEvents.recordId })
+      .from(auditEvents)
+      .where(eq(auditEvents.actorUserId, req.user!.id))
+      .orderBy(desc(auditEvents.id))
+      .limit(query.limit);
+    const body: ActivityResponse = { events: rows.map((row) => ({ ...row, occurredAt: row.occurredAt.toISOString() })) };
+    res.json(body);
+  });
+
+  router.get('/api/admin/people', requireRole('admin'), async (req, res) => {
+    res.json({ people: await listPeople(services.db, req.user!.organisationId) });
+  });
+
+  return router;
+}

@@ -1,0 +1,33 @@
+import type { Role } from '../auth/roles.ts';
+
+export interface DashboardPanel {
+  role: Role;
+  heading: string;
+  summary: string;
+  links: { href: string; label: string }[];
+}
+
+/** One panel per role the user holds, in the order the work flows: analyse, review, administer. */
+export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
+  const panels: Record<Role, DashboardPanel> = {
+    analyst: {
+      role: 'analyst',
+      heading: 'Analyst',
+      summary: 'Bring stability data, determine the degradation kinetics and draft the report.',
+      links: [{ href: '/app/activity', label: 'My recorded activity' }],
+    },
+    reviewer: {
+      role: 'reviewer',
+      heading: 'Reviewer',
+      summary: 'Check analyses and reports drafted by others; return them with a comment or sign them.',
+      links: [{ href: '/app/activity', label: 'My recorded activity' }],
+    },
+    admin: {
+      role: 'admin',
+      heading: 'Administrator',
+      summary: 'Keep the organisation’s people, roles, report templates and settings right.',
+      links: [{ href: '/admin/people', label: 'People and roles' }],
+    },
+  };
+  return (['analyst', 'reviewer', 'admin'] as const).filter((role) => roles.includes(role)).map((role) => panels[role]);
+}

@@ -1,0 +1,130 @@
+/**
+ * Reads the mapped cells of every data row of a sheet into typed rows, collecting every problem.
+ *
+ * A row whose mapped cells are all blank is skipped (blank separator rows are common in lab
+ * sheets). A row with a time but no value is a planned pull point not yet tested: it is skipped
+ * with a warning. Every other unreadable cell is a problem tied to its cell reference; reading
+ * goes on so the analyst sees all problems at once. Cells inside a merged block read the block's
+ * content (a batch name or a time written once over several replicate rows).
+ *
+ * Never throws; problems and warnings are returned.
+ *
+ * Example: the row `[3, '98,7', 'B-01']` with time in A and value in B reads as
+ * `{ rowIndex, time: 3, value: 98.7, seriesLabel: 'B-01', ... }`.
+ */
+import { toCelsius } from '../kinetics/units.ts';
+import { cellReference } from './cell-reference.ts';
+import type { ColumnMapping } from './column-mapping.ts';
+import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
+import { parseDateCell } from './parse-date-cell.ts';
+import { FORMULA_WITHOUT_VALUE_REASON, parseNumberCell } from './parse-number-cell.ts';
+import { cellText } from './resolve-column.ts';
+import { type GridCell, isBlankCell, isFormulaWithoutValue, type SheetGrid } from './sheet-grid.ts';
+
+export interface MappedColumns {
+  time: number;
+  value: number;
+  series?: number;
+  temperature?: number;
+  replicate?: number;
+}
+
+export interface DataRow {
+  rowIndex: number;
+  /** Elapsed time (elapsed format) or the sampling date (date-time format). */
+  time: number | Date;
+  value: number;
+  valueCell: string;
+  timeCell: string;
+  seriesLabel?: string;
+  temperatureC?: number;
+  replicateLabel?: string;
+}
+
+export interface DataRowsResult {
+  rows: DataRow[];
+  problems: IntakeProblem[];
+  warnings: IntakeProblem[];
+}
+
+function cellAt(sheet: SheetGrid, rowIndex: number, column: number): GridCell | undefined {
+  const merge = sheet.merges?.find(
+    (range) => range.top <= rowIndex && rowIndex <= range.bottom && range.left <= column && column <= range.right,
+  );
+  if (merge) return sheet.rows[merge.top]?.[merge.left];
+  return sheet.rows[rowIndex]?.[column];
+}
+
+export function readDataRows(sheet: SheetGrid, mapping: ColumnMapping, columns: MappedColumns): DataRowsResult {
+  const rows: DataRow[] = [];
+  const problems: IntakeProblem[] = [];
+  const warnings: IntakeProblem[] = [];
+  const reference = (rowIndex: number, column: number) => cellReference(sheet.name, rowIndex, column);
+  const mapped = Object.values(columns).filter((column): column is number => column !== undefined);
+
+  for (let rowIndex = Math.max(mapping.headerRow, 0); rowIndex < sheet.rows.length; rowIndex += 1) {
+    const cell = (column: number) => cellAt(sheet, rowIndex, column);
+    if (mapped.every((column) => isBlankCell(cell(column)))) continue;
+    const rowProblems: IntakeProblem[] = [];
+    const report = (column: number, message: string) => rowProblems.push(intakeProblem(reference(rowIndex, column), message));
+
+    const timeCell = cell(columns.time);
+    const valueCell = cell(columns.value);
+    const timeResult = mapping.timeFormat === 'datetime' ? parseDateCell(timeCell) : parseNumberCell(timeCell);
+    const valueResult = parseNumberCell(valueCell);
+    if (!valueResult.ok && valueResult.blank && timeResult.ok) {
+      warnings.push(intakeProblem(reference(rowIndex, columns.value), 'no value; row skipped'));
+      continue;
+    }
+    if (!timeResult.ok) {
+      const dateHint =
+        mapping.timeFormat === 'elapsed' && timeCell instanceof Date ? ' (this column holds dates: choose the date-time format)' : '';
+      report(columns.time, timeResult.blank ? 'no time given for this value' : `${timeResult.reason}${dateHint}`);
+    } else if (typeof timeResult.value === 'number' && timeResult.value < 0) {
+      report(columns.time, `time ${timeResult.value} is negative; times are elapsed since the first sample`);
+    }
+    if (!valueResult.ok) report(columns.value, valueResult.reason);
+
+    const label = (column: number | undefined, what: string): string | undefined => {
+      if (column === undefined) return undefined;
+      const content = cell(column);
+      if (isFormulaWithoutValue(content)) {
+        report(column, FORMULA_WITHOUT_VALUE_REASON);
+        return undefined;
+      }
+      const text = cellText(content);
+      if (text === '') report(column, `no ${what} given`);
+      return text;
+    };
+    const seriesLabel = label(columns.series, 'batch name');
+    const replicateLabel = label(columns.replicate, 'replicate label');
+
+    let temperatureC: number | undefined;
+    if (columns.temperature !== undefined) {
+      const temperature = parseNumberCell(cell(columns.temperature));
+      if (!temperature.ok) {
+        report(columns.temperature, temperature.blank ? 'no temperature given' : temperature.reason);
+      } else if (temperature.value < (mapping.temperatureUnit === 'K' ? 0 : -273.15)) {
+        report(columns.temperature, `${temperature.value} ${mapping.temperatureUnit === 'K' ? 'K' : '°C'} is below absolute zero`);
+      } else {
+        temperatureC = toCelsius(temperature.value, mapping.temperatureUnit);
+      }
+    }
+
+    if (rowProblems.length > 0 || !timeResult.ok || !valueResult.ok) {
+      problems.push(...rowProblems);
+      continue;
+    }
+    rows.push({
+      rowIndex,
+      time: timeResult.value,
+      value: valueResult.value,
+      valueCell: reference(rowIndex, columns.value),
+      timeCell: reference(rowIndex, columns.time),
+      ...(seriesLabel !== undefined ? { seriesLabel } : {}),
+      ...(temperatureC !== undefined ? { temperatureC } : {}),
+      ...(replicateLabel !== undefined ? { replicateLabel } : {}),
+    });
+  }
+  return { rows, problems, warnings };
+}

@@ -1,0 +1,39 @@
+/**
+ * Input vocabulary of the kinetics engine, shared by every module in `shared/kinetics/`.
+ * Pure data: no I/O, no classes. Results are typed next to the function that produces them.
+ */
+
+/** One measured point of a series. Several observations at the same time are replicates. */
+export interface Observation {
+  /** Elapsed time since the first sample, in the series' time unit. */
+  time: number;
+  /** Measured value (assay, concentration, impurity level) in the series' value unit. */
+  value: number;
+  /** Set when the analyst excluded this point; the reason is mandatory and printed in the method statement. */
+  excluded?: { reason: string };
+  /** Where the point came from (1-based source row, cell reference), for error messages and audit. */
+  source?: { row?: number; cell?: string };
+}
+
+/** A degradation series: one batch at one condition. */
+export interface Series {
+  id: string;
+  observations: Observation[];
+  /** Unit of `time`, e.g. 'month', 'd', 'h', 'min', 's', 'week'. */
+  timeUnit: string;
+  /** Unit of `value`, e.g. '% label claim', 'mg/mL'. */
+  valueUnit: string;
+  /** Storage temperature in degrees Celsius, when known. */
+  temperatureC?: number;
+  /** Batch (lot) identifier, when known. */
+  batch?: string;
+}
+
+/** Integer reaction orders the engine names; `null` means the data cannot tell them apart. */
+export type IntegerOrder = 0 | 1 | 2;
+
+/** How the measurement error scales: constant variance, or constant coefficient of variation. */
+export type ErrorModel = 'constant' | 'proportional';
+
+/** Direction in which the attribute moves, which decides the one- or two-sided Q1E limit. */
+export type AttributeDirection = 'decreasing' | 'increasing' | 'either';

@@ -1,0 +1,4 @@
+import './styles.css';
+import { mountIslands } from './islands/mount-islands.tsx';
+
+mountIslands(document);
