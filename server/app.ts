@@ -27,7 +27,10 @@ export const DEFAULT_OPTIONS: Omit<AppOptions, 'sessionSecret'> = {
  * Builds the Express app. No state lives in process memory: sessions, rate-limit counters and
  * everything else are in PostgreSQL, so several instances can serve behind a load balancer.
  */
-export function createApp(database: DatabaseHandle, options: Partial<AppOptions> & { sessionSecret: string }): Express {
+export function createApp(
+  database: DatabaseHandle,
+  options: Partial<AppOptions> & { sessionSecret: string },
+): Express {
   const settings: AppOptions = { ...DEFAULT_OPTIONS, ...options };
   const services: AppServices = { db: database.db, pool: database.pool, options: settings };
   const app = express();
@@ -58,7 +61,10 @@ export function createApp(database: DatabaseHandle, options: Partial<AppOptions>
       crossOriginEmbedderPolicy: false,
     }),
   );
-  app.use('/assets', express.static(`${CLIENT_DIST}/assets`, { immutable: true, maxAge: '365d', fallthrough: false }));
+  app.use(
+    '/assets',
+    express.static(`${CLIENT_DIST}/assets`, { immutable: true, maxAge: '365d', fallthrough: false }),
+  );
   app.use(healthRoutes(services));
 
   const PgStore = connectPgSimple(session);
@@ -70,7 +76,12 @@ export function createApp(database: DatabaseHandle, options: Partial<AppOptions>
       resave: false,
       saveUninitialized: false,
       rolling: true,
-      cookie: { httpOnly: true, sameSite: 'lax', secure: settings.cookieSecure, maxAge: settings.idleMinutes * 60_000 },
+      cookie: {
+        httpOnly: true,
+        sameSite: 'lax',
+        secure: settings.cookieSecure,
+        maxAge: settings.idleMinutes * 60_000,
+      },
     }),
   );
   const authenticator = createAuthenticator(database.db);

@@ -7,7 +7,11 @@ import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
 const environment = parseEnvironment();
 const database = openDatabase(environment.DATABASE_URL);
-const app = createApp(database, { sessionSecret: environment.SESSION_SECRET, cookieSecure: environment.COOKIE_SECURE, signInRateLimit: environment.SIGN_IN_RATE_LIMIT });
+const app = createApp(database, {
+  sessionSecret: environment.SESSION_SECRET,
+  cookieSecure: environment.COOKIE_SECURE,
+  signInRateLimit: environment.SIGN_IN_RATE_LIMIT,
+});
 
 const server: Server = app.listen(environment.PORT, environment.HOST, () => {
   console.log(`\nRateledger is running at http://${environment.HOST}:${environment.PORT}\n`);

@@ -103,7 +103,11 @@ export async function verifyAuditChain(db: Executor, batchSize = 1000): Promise<
     for (const row of batch.rows) {
       const id = Number(row.id);
       if (row.previous_hash !== previousHash) {
-        return { ok: false, eventsChecked: checked, firstBrokenLink: { id, reason: 'previous-hash link does not match the preceding event' } };
+        return {
+          ok: false,
+          eventsChecked: checked,
+          firstBrokenLink: { id, reason: 'previous-hash link does not match the preceding event' },
+        };
       }
       const expected = auditEventHash({
         previousHash: row.previous_hash,
@@ -119,7 +123,11 @@ export async function verifyAuditChain(db: Executor, batchSize = 1000): Promise<
         context: row.context,
       });
       if (expected !== row.hash) {
-        return { ok: false, eventsChecked: checked, firstBrokenLink: { id, reason: 'content does not match its stored hash' } };
+        return {
+          ok: false,
+          eventsChecked: checked,
+          firstBrokenLink: { id, reason: 'content does not match its stored hash' },
+        };
       }
       previousHash = row.hash;
       afterId = id;

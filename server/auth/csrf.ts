@@ -27,10 +27,14 @@ export const csrfProtection: RequestHandler = (req, _res, next) => {
   if (SAFE_METHODS.has(req.method)) return next();
   const expected = req.session?.csrfToken;
   const body = req.body as Record<string, unknown> | undefined;
-  const sent = req.get(CSRF_HEADER) ?? (typeof body?.[CSRF_FIELD] === 'string' ? body[CSRF_FIELD] : undefined);
+  const sent =
+    req.get(CSRF_HEADER) ?? (typeof body?.[CSRF_FIELD] === 'string' ? body[CSRF_FIELD] : undefined);
   if (!expected || typeof sent !== 'string' || !sameToken(expected, sent)) {
     return next(
-      new HttpError(403, 'The form has expired or did not come from Rateledger. Reload the page and try again.'),
+      new HttpError(
+        403,
+        'The form has expired or did not come from Rateledger. Reload the page and try again.',
+      ),
     );
   }
   next();

@@ -1,4 +1,3 @@
-
 import passport from 'passport';
 import type { Database } from '../db/client.ts';
 import { loadSessionUser } from '../services/accounts.ts';

@@ -18,12 +18,29 @@ export interface DemoAccount {
 }
 
 export const DEMO_ACCOUNTS: readonly DemoAccount[] = [
-  { email: 'analyst@brackenfold.example', fullName: 'Demo Analyst', password: 'demo-analyst-2026', roles: ['analyst'] },
-  { email: 'reviewer@brackenfold.example', fullName: 'Demo Reviewer', password: 'demo-reviewer-2026', roles: ['reviewer'] },
-  { email: 'admin@brackenfold.example', fullName: 'Demo Administrator', password: 'demo-admin-2026', roles: ['admin'] },
+  {
+    email: 'analyst@brackenfold.example',
+    fullName: 'Demo Analyst',
+    password: 'demo-analyst-2026',
+    roles: ['analyst'],
+  },
+  {
+    email: 'reviewer@brackenfold.example',
+    fullName: 'Demo Reviewer',
+    password: 'demo-reviewer-2026',
+    roles: ['reviewer'],
+  },
+  {
+    email: 'admin@brackenfold.example',
+    fullName: 'Demo Administrator',
+    password: 'demo-admin-2026',
+    roles: ['admin'],
+  },
 ];
 
 export const DEMO_PASSWORDS_NOTE = [
   'Demo sign-ins (demo data only, not for production):',
-  ...DEMO_ACCOUNTS.map((account) => `  ${account.roles.join('+').padEnd(9)} ${account.email.padEnd(30)} ${account.password}`),
+  ...DEMO_ACCOUNTS.map(
+    (account) => `  ${account.roles.join('+').padEnd(9)} ${account.email.padEnd(30)} ${account.password}`,
+  ),
 ].join('\n');

@@ -1,8 +1,8 @@
-import { eq } from 'drizzle-orm';
 import { fileURLToPath } from 'node:url';
+import { eq } from 'drizzle-orm';
 import { appendAuditEvent } from '../audit/audit-trail.ts';
 import { hashPassword } from '../auth/passwords.ts';
-import { openDatabase, type Database } from './client.ts';
+import { type Database, openDatabase } from './client.ts';
 import { DEMO_ACCOUNTS, DEMO_ORGANISATION } from './demo-accounts.ts';
 import { memberships, organisations, users } from './schema/index.ts';
 
@@ -11,11 +11,16 @@ import { memberships, organisations, users } from './schema/index.ts';
  * a second `npm start` never overwrites what users changed.
  */
 export async function seedDemo(db: Database): Promise<'seeded' | 'already-present'> {
-  const existing = await db.query.organisations.findFirst({ where: eq(organisations.slug, DEMO_ORGANISATION.slug) });
+  const existing = await db.query.organisations.findFirst({
+    where: eq(organisations.slug, DEMO_ORGANISATION.slug),
+  });
   if (existing) return 'already-present';
   const hashes = await Promise.all(DEMO_ACCOUNTS.map((account) => hashPassword(account.password)));
   await db.transaction(async (tx) => {
-    const [organisation] = await tx.insert(organisations).values({ ...DEMO_ORGANISATION }).returning();
+    const [organisation] = await tx
+      .insert(organisations)
+      .values({ ...DEMO_ORGANISATION })
+      .returning();
     for (const [index, account] of DEMO_ACCOUNTS.entries()) {
       const [user] = await tx
         .insert(users)
@@ -33,7 +38,10 @@ export async function seedDemo(db: Database): Promise<'seeded' | 'already-presen
       action: 'organisation.seeded',
       recordType: 'organisation',
       recordId: organisation!.id,
-      after: { name: organisation!.name, accounts: DEMO_ACCOUNTS.map((account) => ({ email: account.email, roles: account.roles })) },
+      after: {
+        name: organisation!.name,
+        accounts: DEMO_ACCOUNTS.map((account) => ({ email: account.email, roles: account.roles })),
+      },
     });
   });
   return 'seeded';
@@ -48,7 +56,11 @@ if (process.argv[1] === fileURLToPath(import.meta.url)) {
   const handle = openDatabase(url);
   try {
     const outcome = await seedDemo(handle.db);
-    console.log(outcome === 'seeded' ? '[rateledger] demo organisation seeded' : '[rateledger] demo organisation already present; not re-seeded');
+    console.log(
+      outcome === 'seeded'
+        ? '[rateledger] demo organisation seeded'
+        : '[rateledger] demo organisation already present; not re-seeded',
+    );
   } finally {
     await handle.close();
   }

@@ -23,16 +23,22 @@ export const notFound: RequestHandler = (req, _res, next) => {
 function fromFrameworkError(error: unknown): HttpError | null {
   if (error instanceof HttpError) return error;
   if (error instanceof ZodError) {
-    return new HttpError(400, 'Some fields are not valid.', error.issues.map((issue) => ({ field: issue.path.join('.'), message: issue.message })));
+    return new HttpError(
+      400,
+      'Some fields are not valid.',
+      error.issues.map((issue) => ({ field: issue.path.join('.'), message: issue.message })),
+    );
   }
   const typed = error as { status?: number; statusCode?: number; type?: string; code?: string };
   const status = typed.status ?? typed.statusCode;
   if (typed.type === 'entity.parse.failed') return new HttpError(400, 'The request body is not valid JSON.');
-  if (typed.type === 'entity.too.large') return new HttpError(413, 'The request body is larger than this endpoint accepts.');
+  if (typed.type === 'entity.too.large')
+    return new HttpError(413, 'The request body is larger than this endpoint accepts.');
   if (typed.type === 'encoding.unsupported' || typed.type === 'charset.unsupported') {
     return new HttpError(415, 'The request body uses an encoding this endpoint does not accept.');
   }
-  if (status && status >= 400 && status < 500) return new HttpError(status, HEADINGS[status] ?? 'The request was refused.');
+  if (status && status >= 400 && status < 500)
+    return new HttpError(status, HEADINGS[status] ?? 'The request was refused.');
   return null;
 }
 
@@ -40,12 +46,22 @@ function fromFrameworkError(error: unknown): HttpError | null {
 export const errorHandler: ErrorRequestHandler = (error, req, res, _next) => {
   const known = fromFrameworkError(error);
   const status = known?.status ?? 500;
-  const message = known?.message ?? 'An unexpected error stopped this request. It has been logged; nothing was saved half-way.';
+  const message =
+    known?.message ??
+    'An unexpected error stopped this request. It has been logged; nothing was saved half-way.';
   if (!known) console.error(`[http] ${req.method} ${req.originalUrl} failed:`, error);
   if (res.headersSent) return;
   if (req.originalUrl.startsWith('/api/') || req.originalUrl.startsWith('/healthz') || !req.accepts('html')) {
-    res.status(status).json({ error: { status, message, ...(known?.details ? { details: known.details } : {}) } });
+    res
+      .status(status)
+      .json({ error: { status, message, ...(known?.details ? { details: known.details } : {}) } });
     return;
   }
-  renderPage(req, res, 'error', { title: HEADINGS[status] ?? 'Error', status, heading: HEADINGS[status] ?? 'Error', message }, status);
+  renderPage(
+    req,
+    res,
+    'error',
+    { title: HEADINGS[status] ?? 'Error', status, heading: HEADINGS[status] ?? 'Error', message },
+    status,
+  );
 };

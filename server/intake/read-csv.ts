@@ -23,7 +23,8 @@ const CANDIDATE_DELIMITERS = [',', ';', '\t'] as const;
 
 function decode(content: string | Uint8Array): string {
   if (typeof content === 'string') return content.replace(/^\uFEFF/, '');
-  if (content[0] === 0xff && content[1] === 0xfe) return new TextDecoder('utf-16le').decode(content.subarray(2));
+  if (content[0] === 0xff && content[1] === 0xfe)
+    return new TextDecoder('utf-16le').decode(content.subarray(2));
   try {
     return new TextDecoder('utf-8', { fatal: true }).decode(content).replace(/^\uFEFF/, '');
   } catch {
@@ -64,6 +65,8 @@ export function readCsv(content: string | Uint8Array, sheetName = 'Sheet1'): She
       `The CSV file could not be read${where}: ${(error as Error).message}. Check for a quote that is not closed.`,
     );
   }
-  const rows: GridCell[][] = records.map((record) => record.map((cell) => (cell.trim() === '' ? null : cell)));
+  const rows: GridCell[][] = records.map((record) =>
+    record.map((cell) => (cell.trim() === '' ? null : cell)),
+  );
   return [{ name: sheetName, rows }];
 }

@@ -18,8 +18,8 @@
  * B2 = 100.2 gives `[{ name: 'Long term', rows: [['Month', 'Assay'], [0, 100.2]], merges: [] }]`.
  */
 import ExcelJS from 'exceljs';
-import type { GridCell, MergedRange, SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { columnIndex } from '../../shared/intake/cell-reference.ts';
+import type { GridCell, MergedRange, SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { FileReadError } from './file-read-error.ts';
 
 const ZIP_SIGNATURE = [0x50, 0x4b, 0x03, 0x04];
@@ -45,7 +45,10 @@ function checkContainer(bytes: Uint8Array): void {
     );
   }
   if (!startsWith(bytes, ZIP_SIGNATURE)) {
-    throw new FileReadError('not-a-workbook', 'The file is not an Excel workbook (.xlsx). Upload an .xlsx or a CSV file.');
+    throw new FileReadError(
+      'not-a-workbook',
+      'The file is not an Excel workbook (.xlsx). Upload an .xlsx or a CSV file.',
+    );
   }
 }
 
@@ -64,7 +67,8 @@ function plainValue(value: ExcelJS.CellValue): GridCell {
     return plainValue(result as ExcelJS.CellValue);
   }
   if ('error' in value) return value.error;
-  if ('text' in value) return typeof value.text === 'string' ? value.text : plainValue(value.text as ExcelJS.CellValue);
+  if ('text' in value)
+    return typeof value.text === 'string' ? value.text : plainValue(value.text as ExcelJS.CellValue);
   return null;
 }
 
@@ -72,7 +76,12 @@ function parseRange(range: string): MergedRange | null {
   const match = /^\$?([A-Z]+)\$?(\d+):\$?([A-Z]+)\$?(\d+)$/.exec(range);
   if (!match) return null;
   const [, left, top, right, bottom] = match as unknown as [string, string, string, string, string];
-  return { top: Number(top) - 1, left: columnIndex(left), bottom: Number(bottom) - 1, right: columnIndex(right) };
+  return {
+    top: Number(top) - 1,
+    left: columnIndex(left),
+    bottom: Number(bottom) - 1,
+    right: columnIndex(right),
+  };
 }
 
 function readSheet(worksheet: ExcelJS.Worksheet): SheetGrid {

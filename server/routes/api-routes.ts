@@ -19,12 +19,20 @@ export function apiRoutes(services: AppServices): Router {
   router.get('/api/activity', signedIn(), async (req, res) => {
     const query = activityQuerySchema.parse(req.query);
     const rows = await services.db
-      .select({ id: auditEvents.id, occurredAt: auditEvents.occurredAt, action: auditEvents.action, recordType: auditEvents.recordType, recordId: auditEvents.recordId })
+      .select({
+        id: auditEvents.id,
+        occurredAt: auditEvents.occurredAt,
+        action: auditEvents.action,
+        recordType: auditEvents.recordType,
+        recordId: auditEvents.recordId,
+      })
       .from(auditEvents)
       .where(eq(auditEvents.actorUserId, req.user!.id))
       .orderBy(desc(auditEvents.id))
       .limit(query.limit);
-    const body: ActivityResponse = { events: rows.map((row) => ({ ...row, occurredAt: row.occurredAt.toISOString() })) };
+    const body: ActivityResponse = {
+      events: rows.map((row) => ({ ...row, occurredAt: row.occurredAt.toISOString() })),
+    };
     res.json(body);
   });
 

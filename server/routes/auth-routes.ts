@@ -5,8 +5,8 @@ import { appendAuditEvent } from '../audit/audit-trail.ts';
 import { csrfToken } from '../auth/csrf.ts';
 import { PostgresRateLimitStore } from '../auth/postgres-rate-limit-store.ts';
 import { publicRoute, signedIn } from '../auth/route-policy.ts';
-import type { AppServices } from '../services/app-services.ts';
 import { attemptSignIn } from '../services/accounts.ts';
+import type { AppServices } from '../services/app-services.ts';
 import { renderPage } from '../web/render-page.ts';
 
 const signInForm = z.object({
@@ -29,19 +29,40 @@ export function authRoutes(services: AppServices): Router {
     legacyHeaders: false,
     store: new PostgresRateLimitStore(services.pool, `${services.options.rateLimitPrefix}signin:`),
     handler: (req, res) =>
-      renderPage(req, res, 'signin', { title: 'Sign in', error: 'Too many sign-in attempts from this address. Wait 15 minutes and try again.' }, 429),
+      renderPage(
+        req,
+        res,
+        'signin',
+        {
+          title: 'Sign in',
+          error: 'Too many sign-in attempts from this address. Wait 15 minutes and try again.',
+        },
+        429,
+      ),
   });
 
   router.get('/signin', publicRoute(), (req, res) => {
     if (req.user) return res.redirect(303, '/');
-    renderPage(req, res, 'signin', { title: 'Sign in', next: typeof req.query.next === 'string' ? req.query.next : '' });
+    renderPage(req, res, 'signin', {
+      title: 'Sign in',
+      next: typeof req.query.next === 'string' ? req.query.next : '',
+    });
   });
 
   router.post('/signin', publicRoute(), signInLimiter, async (req, res, next) => {
     const form = signInForm.parse(req.body ?? {});
-    const outcome = await attemptSignIn(services.db, form.email, form.password, { ip: req.ip, userAgent: req.get('user-agent') });
+    const outcome = await attemptSignIn(services.db, form.email, form.password, {
+      ip: req.ip,
+      userAgent: req.get('user-agent'),
+    });
     if (!outcome.ok) {
-      return renderPage(req, res, 'signin', { title: 'Sign in', error: outcome.message, email: form.email, next: form.next ?? '' }, 401);
+      return renderPage(
+        req,
+        res,
+        'signin',
+        { title: 'Sign in', error: outcome.message, email: form.email, next: form.next ?? '' },
+        401,
+      );
     }
     // passport 0.7 regenerates the session on login (session fixation defence); a new CSRF token follows.
     req.login(outcome.user, (error) => {
@@ -53,7 +74,13 @@ export function authRoutes(services: AppServices): Router {
 
   router.post('/signout', signedIn(), async (req, res, next) => {
     const user = req.user!;
-    await appendAuditEvent(services.db, { organisationId: user.organisationId, actorUserId: user.id, actorLabel: user.email, action: 'sign-out', context: { ip: req.ip } });
+    await appendAuditEvent(services.db, {
+      organisationId: user.organisationId,
+      actorUserId: user.id,
+      actorLabel: user.email,
+      action: 'sign-out',
+      context: { ip: req.ip },
+    });
     req.logout((error) => {
       if (error) return next(error);
       req.session.destroy(() => {

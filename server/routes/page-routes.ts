@@ -16,7 +16,11 @@ export function pageRoutes(services: AppServices): Router {
     const people = await listPeople(services.db, req.user!.organisationId);
     renderPage(req, res, 'people', {
       title: 'People and roles',
-      people: people.map((person) => ({ ...person, roles: person.roles.join(', '), status: person.active ? 'active' : 'deactivated' })),
+      people: people.map((person) => ({
+        ...person,
+        roles: person.roles.join(', '),
+        status: person.active ? 'active' : 'deactivated',
+      })),
     });
   });
 

@@ -45,14 +45,27 @@ export async function attemptSignIn(
   return db.transaction(async (tx) => {
     // Lock the user row: concurrent attempts must count one by one.
     const [user] = await tx.select().from(users).where(eq(users.id, found.id)).for('update');
-    const clock = await tx.execute<{ now: Date }>(sql`select now() as now`);
-    const now = clock.rows[0]!.now;
+    // drizzle hands raw timestamps back as text, so read the database clock as epoch milliseconds.
+    const clock = await tx.execute<{ ms: string }>(
+      sql`select (extract(epoch from now()) * 1000)::text as ms`,
+    );
+    const now = new Date(Number(clock.rows[0]!.ms));
     if (!user!.active) {
-      await appendAuditEvent(tx, { ...audit, action: 'sign-in.failed', after: { reason: 'account deactivated' }, context: { ...context } });
+      await appendAuditEvent(tx, {
+        ...audit,
+        action: 'sign-in.failed',
+        after: { reason: 'account deactivated' },
+        context: { ...context },
+      });
       return { ok: false, reason: 'inactive', message: WRONG_CREDENTIALS } as const;
     }
     if (user!.lockedUntil && user!.lockedUntil > now) {
-      await appendAuditEvent(tx, { ...audit, action: 'sign-in.refused-locked', after: { lockedUntil: user!.lockedUntil }, context: { ...context } });
+      await appendAuditEvent(tx, {
+        ...audit,
+        action: 'sign-in.refused-locked',
+        after: { lockedUntil: user!.lockedUntil },
+        context: { ...context },
+      });
       return {
         ok: false,
         reason: 'locked',
@@ -68,11 +81,18 @@ export async function attemptSignIn(
         .update(users)
         .set({
           failedSignInCount: lock ? 0 : failures,
-          lockedUntil: lock ? sql`now() + make_interval(mins => ${organisation?.lockoutMinutes ?? 15})` : user!.lockedUntil,
+          lockedUntil: lock
+            ? sql`now() + make_interval(mins => ${organisation?.lockoutMinutes ?? 15})`
+            : user!.lockedUntil,
           updatedAt: sql`now()`,
         })
         .where(eq(users.id, user!.id));
-      await appendAuditEvent(tx, { ...audit, action: 'sign-in.failed', after: { reason: 'wrong password', consecutiveFailures: failures }, context: { ...context } });
+      await appendAuditEvent(tx, {
+        ...audit,
+        action: 'sign-in.failed',
+        after: { reason: 'wrong password', consecutiveFailures: failures },
+        context: { ...context },
+      });
       if (lock) {
         await appendAuditEvent(tx, {
           ...audit,
@@ -91,8 +111,17 @@ export async function attemptSignIn(
       return { ok: false, reason: 'wrong-credentials', message: WRONG_CREDENTIALS } as const;
     }
     if (!organisation) {
-      await appendAuditEvent(tx, { ...audit, action: 'sign-in.failed', after: { reason: 'no organisation membership' }, context: { ...context } });
-      return { ok: false, reason: 'no-membership', message: 'This account belongs to no organisation yet. Ask an administrator.' } as const;
+      await appendAuditEvent(tx, {
+        ...audit,
+        action: 'sign-in.failed',
+        after: { reason: 'no organisation membership' },
+        context: { ...context },
+      });
+      return {
+        ok: false,
+        reason: 'no-membership',
+        message: 'This account belongs to no organisation yet. Ask an administrator.',
+      } as const;
     }
     await tx
       .update(users)
@@ -106,7 +135,11 @@ export async function attemptSignIn(
 
 async function primaryOrganisation(db: Database, userId: number) {
   const [row] = await db
-    .select({ id: organisations.id, lockoutThreshold: organisations.lockoutThreshold, lockoutMinutes: organisations.lockoutMinutes })
+    .select({
+      id: organisations.id,
+      lockoutThreshold: organisations.lockoutThreshold,
+      lockoutMinutes: organisations.lockoutMinutes,
+    })
     .from(memberships)
     .innerJoin(organisations, eq(organisations.id, memberships.organisationId))
     .where(eq(memberships.userId, userId))
@@ -116,7 +149,11 @@ async function primaryOrganisation(db: Database, userId: number) {
 }
 
 /** The signed-in person with their roles in one organisation; null when no longer allowed in. */
-export async function loadSessionUser(db: Database, userId: number, organisationId: number): Promise<SessionUser | null> {
+export async function loadSessionUser(
+  db: Database,
+  userId: number,
+  organisationId: number,
+): Promise<SessionUser | null> {
   const rows = await db
     .select({
       id: users.id,

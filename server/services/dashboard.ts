@@ -29,5 +29,7 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       links: [{ href: '/admin/people', label: 'People and roles' }],
     },
   };
-  return (['analyst', 'reviewer', 'admin'] as const).filter((role) => roles.includes(role)).map((role) => panels[role]);
+  return (['analyst', 'reviewer', 'admin'] as const)
+    .filter((role) => roles.includes(role))
+    .map((role) => panels[role]);
 }

@@ -15,14 +15,28 @@ export interface Person {
 /** Members of an organisation with their roles there. */
 export async function listPeople(db: Database, organisationId: number): Promise<Person[]> {
   const rows = await db
-    .select({ id: users.id, fullName: users.fullName, email: users.email, active: users.active, lastSignInAt: users.lastSignInAt, role: memberships.role })
+    .select({
+      id: users.id,
+      fullName: users.fullName,
+      email: users.email,
+      active: users.active,
+      lastSignInAt: users.lastSignInAt,
+      role: memberships.role,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.organisationId, organisationId))
     .orderBy(asc(users.fullName), asc(memberships.role));
   const people = new Map<number, Person>();
   for (const row of rows) {
-    const person = people.get(row.id) ?? { id: row.id, fullName: row.fullName, email: row.email, active: row.active, lastSignInAt: row.lastSignInAt, roles: [] };
+    const person = people.get(row.id) ?? {
+      id: row.id,
+      fullName: row.fullName,
+      email: row.email,
+      active: row.active,
+      lastSignInAt: row.lastSignInAt,
+      roles: [],
+    };
     person.roles.push(row.role as Role);
     people.set(row.id, person);
   }

@@ -22,7 +22,9 @@ interface ManifestEntry {
 export function readClientAssets(distDir = CLIENT_DIST): ClientAssets {
   const manifestPath = path.join(distDir, '.vite', 'manifest.json');
   if (!existsSync(manifestPath)) {
-    console.warn(`[web] no client build at ${manifestPath}: run \`npx vite build\`; pages render without islands`);
+    console.warn(
+      `[web] no client build at ${manifestPath}: run \`npx vite build\`; pages render without islands`,
+    );
     return { scripts: [], styles: [] };
   }
   const manifest = JSON.parse(readFileSync(manifestPath, 'utf8')) as Record<string, ManifestEntry>;

@@ -15,14 +15,19 @@ export function createViewEngine(viewsDir = VIEWS_DIR) {
   const handlebars = Handlebars.create();
   for (const file of readdirSync(path.join(viewsDir, 'partials'))) {
     if (file.endsWith('.hbs')) {
-      handlebars.registerPartial(path.basename(file, '.hbs'), readFileSync(path.join(viewsDir, 'partials', file), 'utf8'));
+      handlebars.registerPartial(
+        path.basename(file, '.hbs'),
+        readFileSync(path.join(viewsDir, 'partials', file), 'utf8'),
+      );
     }
   }
   handlebars.registerHelper('eq', (a: unknown, b: unknown) => a === b);
   handlebars.registerHelper('json', (value: unknown) => JSON.stringify(value ?? null));
   handlebars.registerHelper('formatTime', (value: unknown) => {
     const date = value instanceof Date ? value : typeof value === 'string' ? new Date(value) : null;
-    return date && !Number.isNaN(date.getTime()) ? `${date.toISOString().replace('T', ' ').slice(0, 19)} UTC` : '';
+    return date && !Number.isNaN(date.getTime())
+      ? `${date.toISOString().replace('T', ' ').slice(0, 19)} UTC`
+      : '';
   });
 
   const cache = new Map<string, Template>();

@@ -6,8 +6,9 @@
  * block's text counts. A header merged across several columns names only its first column, which
  * is where a spreadsheet stores it. Header text is matched without regard to case, surrounding
  * spaces or repeated inner spaces. When no header matches and the name is one to three letters,
- * it is read as a column letter. A name that matches two headers is refused, so the analyst picks
- * one by letter instead of the program guessing.
+ * it is read as a column letter. When a name matches two headers that differ only in case, the one
+ * written exactly so wins; otherwise a name that matches two headers is refused, so the analyst
+ * picks one by letter instead of the program guessing.
  *
  * Never throws; returns `{ ok: false, message }` for the caller to report.
  *
@@ -55,7 +56,11 @@ export function headerTexts(sheet: SheetGrid, headerRow: number): string[] {
 export function resolveColumn(sheet: SheetGrid, headerRow: number, name: string): ResolvedColumn {
   const headers = headerTexts(sheet, headerRow);
   const wanted = normalise(name);
-  const matches = headers.flatMap((header, index) => (normalise(header) === wanted ? [index] : []));
+  let matches = headers.flatMap((header, index) => (normalise(header) === wanted ? [index] : []));
+  if (matches.length > 1) {
+    const sameCase = matches.filter((index) => headers[index]?.replace(/\s+/g, ' ') === name.trim().replace(/\s+/g, ' '));
+    if (sameCase.length === 1) matches = sameCase;
+  }
   if (matches.length === 1 && matches[0] !== undefined) return { ok: true, index: matches[0] };
   if (matches.length > 1) {
     const letters = matches.map((index) => columnLetter(index)).join(' and ');

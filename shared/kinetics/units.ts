@@ -111,6 +111,12 @@ export const KELVIN_AT_ZERO_CELSIUS = 273.15;
 
 export type TemperatureUnit = 'C' | 'K';
 
+/**
+ * Decimal places kept when kelvin become °C, so 298.15 K reads as 25 °C rather than
+ * 25.000000000000004 (binary rounding); far below any thermometer's resolution.
+ */
+const KELVIN_ROUNDING_DIGITS = 9;
+
 /** Reads "C", "°C", "degC", "celsius", "K", "kelvin"; returns null for anything else. */
 export function tryParseTemperatureUnit(text: string): TemperatureUnit | null {
   const key = text.trim().toLowerCase().replace(/^°|^deg\s*/, '');
@@ -121,7 +127,7 @@ export function tryParseTemperatureUnit(text: string): TemperatureUnit | null {
 
 /** Converts a temperature to degrees Celsius; throws below absolute zero. */
 export function toCelsius(value: number, unit: TemperatureUnit): number {
-  const celsius = unit === 'K' ? value - KELVIN_AT_ZERO_CELSIUS : value;
+  const celsius = unit === 'K' ? Number((value - KELVIN_AT_ZERO_CELSIUS).toFixed(KELVIN_ROUNDING_DIGITS)) : value;
   if (!Number.isFinite(celsius) || celsius < -KELVIN_AT_ZERO_CELSIUS) {
     throw new KineticsError('invalid-input', `Temperature ${value} ${unit === 'K' ? 'K' : '°C'} is below absolute zero.`, {
       value,

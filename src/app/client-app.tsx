@@ -7,7 +7,10 @@ export default function ClientApp() {
     <BrowserRouter basename="/app">
       <div className="flex gap-8">
         <nav aria-label="Section" className="w-48 shrink-0 text-sm">
-          <NavLink to="/activity" className={({ isActive }) => (isActive ? 'font-semibold text-ledger' : 'text-ink')}>
+          <NavLink
+            to="/activity"
+            className={({ isActive }) => (isActive ? 'font-semibold text-ledger' : 'text-ink')}
+          >
             My activity
           </NavLink>
         </nav>
@@ -27,7 +30,9 @@ function ActivityPage() {
   return (
     <section>
       <h1 className="font-serif text-2xl">My activity</h1>
-      <p className="mt-1 text-sm text-ink-muted">What the audit trail holds about your own actions, newest first.</p>
+      <p className="mt-1 text-sm text-ink-muted">
+        What the audit trail holds about your own actions, newest first.
+      </p>
       <div className="mt-4 rounded-md border border-rule bg-white p-4">
         <ActivityList limit={50} />
       </div>

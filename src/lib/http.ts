@@ -15,7 +15,11 @@ export class ApiError extends Error {
 }
 
 /** Fetches JSON from the app's API, checks `response.ok` and parses with the shared zod schema. */
-export async function fetchJson<Schema extends z.ZodType>(url: string, schema: Schema, init: RequestInit = {}): Promise<z.infer<Schema>> {
+export async function fetchJson<Schema extends z.ZodType>(
+  url: string,
+  schema: Schema,
+  init: RequestInit = {},
+): Promise<z.infer<Schema>> {
   const headers = new Headers(init.headers);
   headers.set('accept', 'application/json');
   if (init.method && init.method !== 'GET') headers.set('x-csrf-token', csrfToken());

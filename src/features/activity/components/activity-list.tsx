@@ -12,7 +12,12 @@ const ACTION_LABELS: Record<string, string> = {
 export function ActivityList({ limit }: { limit: number }) {
   const activity = useActivity({ limit });
   if (activity.isPending) return <p className="text-ink-muted">Loading your activity…</p>;
-  if (activity.isError) return <p role="alert" className="text-alert">Could not load your activity: {activity.error.message}</p>;
+  if (activity.isError)
+    return (
+      <p role="alert" className="text-alert">
+        Could not load your activity: {activity.error.message}
+      </p>
+    );
   if (activity.data.events.length === 0) return <p className="text-ink-muted">No recorded activity yet.</p>;
   return (
     <table className="w-full text-sm">
