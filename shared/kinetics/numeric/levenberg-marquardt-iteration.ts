@@ -1,4 +1,5 @@
 import { euclideanNorm } from './euclidean-norm.ts';
+import { gaussNewtonPolish } from './gauss-newton-polish.ts';
 import { householderQr } from './householder-qr.ts';
 import { levenbergMarquardtParameter } from './levenberg-marquardt-parameter.ts';
 
@@ -56,14 +57,22 @@ export function runLevenbergMarquardt(
   residuals(parameters, residualVector);
   let functionEvaluations = 1;
   let residualNorm = finiteNorm(residualVector);
-  const stop = (converged: boolean, reason: string, iterations: number): LevenbergMarquardtState => ({
-    parameters,
-    residualSumOfSquares: residualNorm * residualNorm,
-    iterations,
-    functionEvaluations,
-    converged,
-    reason,
-  });
+  const stop = (converged: boolean, reason: string, iterations: number): LevenbergMarquardtState => {
+    if (converged && residualNorm > 0) {
+      const polished = gaussNewtonPolish(parameters, residualNorm, residuals, jacobianColumns, rows);
+      parameters = polished.parameters;
+      residualNorm = polished.residualNorm;
+      functionEvaluations += polished.evaluations;
+    }
+    return {
+      parameters,
+      residualSumOfSquares: residualNorm * residualNorm,
+      iterations,
+      functionEvaluations,
+      converged,
+      reason,
+    };
+  };
   if (!Number.isFinite(residualNorm)) {
     return stop(false, 'the model is not finite at the initial parameters', 0);
   }

@@ -55,7 +55,7 @@ export function prepareRateLaw(
   order: 0 | 1 | 2 | 'n',
   initialValue: number,
   rateConstant: number,
-  n = order === 'n' ? 1 : order,
+  n: number = order === 'n' ? 1 : order,
 ): PreparedRateLaw {
   const logInitial = order === 'n' && initialValue > 0 ? Math.log(initialValue) : Number.NaN;
   const initialPower = order === 'n' ? Math.exp((n - 1) * logInitial) : 1;

@@ -50,7 +50,10 @@ export function ancovaDesign(batches: readonly TransformedBatch[], model: Ancova
       } else if (model === 'common-slope') {
         row = [...batches.map((_, c) => (c === b ? 1 : 0)), centred];
       } else {
-        row = [...batches.map((_, c) => (c === b ? 1 : 0)), ...batches.map((_, c) => (c === b ? centred : 0))];
+        row = [
+          ...batches.map((_, c) => (c === b ? 1 : 0)),
+          ...batches.map((_, c) => (c === b ? centred : 0)),
+        ];
       }
       rows.push(row);
       response.push(batch.responses[i] ?? 0);

@@ -1,6 +1,6 @@
 import type { StabilityTransform } from './stability-batch.ts';
-import { fromStabilityScale, transformReversesOrder } from './stability-scale.ts';
 import { lineMeanAt, type StabilityLine } from './stability-line.ts';
+import { fromStabilityScale, transformReversesOrder } from './stability-scale.ts';
 
 /** One point of the plotted mean line and its confidence limits, on the attribute's own scale. */
 export interface ConfidenceBandPoint {

@@ -121,5 +121,10 @@ export function confidenceLimitCrossing(
       reason: `The ${limitName} does not meet the acceptance limit within ${horizon} time units.`,
     };
   }
-  return { status: 'crossing', time, horizon, reason: `The ${limitName} meets the acceptance limit at ${time}.` };
+  return {
+    status: 'crossing',
+    time,
+    horizon,
+    reason: `The ${limitName} meets the acceptance limit at ${time}.`,
+  };
 }

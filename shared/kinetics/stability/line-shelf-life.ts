@@ -1,6 +1,10 @@
 import { studentTQuantile } from '../numeric/student-t-quantile.ts';
 import { type ConfidenceBandPoint, confidenceBandGrid } from './confidence-band-grid.ts';
-import { type ConfidenceLimitCrossing, confidenceLimitCrossing, type LimitSide } from './confidence-limit-crossing.ts';
+import {
+  type ConfidenceLimitCrossing,
+  confidenceLimitCrossing,
+  type LimitSide,
+} from './confidence-limit-crossing.ts';
 import type { ScaledAcceptanceLimit } from './q1e-acceptance-limits.ts';
 import type { StabilityTransform } from './stability-batch.ts';
 import { lineMeanAt, type StabilityLine } from './stability-line.ts';

@@ -45,12 +45,12 @@ function nestedTest(
   reducedModel: AncovaModel,
   significance: number,
 ): NestedModelTest {
-  const fit = (model: AncovaModel) => {
+  const fitModel = (model: AncovaModel) => {
     const design = ancovaDesign(batches, model);
     return linearLeastSquares(design.rows, design.response, { hasIntercept: true });
   };
-  const full = fit(fullModel);
-  const reduced = fit(reducedModel);
+  const full = fitModel(fullModel);
+  const reduced = fitModel(reducedModel);
   const responses = batches.flatMap((batch) => batch.responses);
   const mean = compensatedMean(responses);
   const totalSumOfSquares = compensatedSum(responses.map((y) => (y - mean) ** 2));
@@ -112,7 +112,10 @@ export function poolability(
   const scale = options.scale ?? 'none';
   const significance = options.significance ?? Q1E_POOLABILITY_SIGNIFICANCE;
   if (!(significance > 0 && significance < 1)) {
-    throw new KineticsError('invalid-input', `Significance must lie strictly between 0 and 1; got ${significance}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `Significance must lie strictly between 0 and 1; got ${significance}.`,
+    );
   }
   if (batches.length < 2) {
     throw new KineticsError(
@@ -133,10 +136,14 @@ export function poolabilityOfTransformed(
   const n = batches.reduce((total, batch) => total + batch.times.length, 0);
   const batchCount = batches.length;
   if (n - 2 * batchCount < 1) {
-    throw new KineticsError('too-few-points', 'The separate-lines model leaves no residual degrees of freedom.', {
-      n,
-      batches: batchCount,
-    });
+    throw new KineticsError(
+      'too-few-points',
+      'The separate-lines model leaves no residual degrees of freedom.',
+      {
+        n,
+        batches: batchCount,
+      },
+    );
   }
   const slopeTest = nestedTest(batches, 'separate', 'common-slope', significance);
   const format = (p: number): string => p.toPrecision(3);

@@ -39,7 +39,12 @@ export function q1eAcceptanceLimits(
   confidence: number,
   lowerLimit: number | undefined,
   upperLimit: number | undefined,
-): { limits: ScaledAcceptanceLimit[]; quantileLevel: number; sidedness: 'one-sided' | 'two-sided'; notes: string[] } {
+): {
+  limits: ScaledAcceptanceLimit[];
+  quantileLevel: number;
+  sidedness: 'one-sided' | 'two-sided';
+  notes: string[];
+} {
   const notes: string[] = [];
   const wanted: { side: LimitSide; value: number }[] = [];
   if (direction === 'decreasing' || direction === 'either') {
@@ -57,13 +62,20 @@ export function q1eAcceptanceLimits(
     }
   }
   if (wanted.length === 0) {
-    throw new KineticsError('invalid-input', 'An attribute that may move either way needs at least one acceptance limit.');
+    throw new KineticsError(
+      'invalid-input',
+      'An attribute that may move either way needs at least one acceptance limit.',
+    );
   }
   if (direction === 'decreasing' && upperLimit !== undefined) {
-    notes.push('The upper acceptance limit is not evaluated: the attribute decreases (one-sided lower limit, ICH Q1E).');
+    notes.push(
+      'The upper acceptance limit is not evaluated: the attribute decreases (one-sided lower limit, ICH Q1E).',
+    );
   }
   if (direction === 'increasing' && lowerLimit !== undefined) {
-    notes.push('The lower acceptance limit is not evaluated: the attribute increases (one-sided upper limit, ICH Q1E).');
+    notes.push(
+      'The lower acceptance limit is not evaluated: the attribute increases (one-sided upper limit, ICH Q1E).',
+    );
   }
   const reverses = transformReversesOrder(transform);
   if (reverses) {
@@ -80,7 +92,12 @@ export function q1eAcceptanceLimits(
     scaledValue: toStabilityScale(value, transform, `${side} acceptance limit`),
     sideOnScale: (reverses ? (side === 'lower' ? 'upper' : 'lower') : side) as LimitSide,
   }));
-  if (direction === 'either' && lowerLimit !== undefined && upperLimit !== undefined && !(lowerLimit < upperLimit)) {
+  if (
+    direction === 'either' &&
+    lowerLimit !== undefined &&
+    upperLimit !== undefined &&
+    !(lowerLimit < upperLimit)
+  ) {
     throw new KineticsError('invalid-input', 'The lower acceptance limit must lie below the upper one.', {
       lowerLimit,
       upperLimit,

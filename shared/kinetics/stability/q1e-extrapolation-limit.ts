@@ -35,12 +35,7 @@ export interface Q1eExtrapolationLimit {
 const SOURCE =
   'ICH Q1E 2.4–2.5 and Appendix A decision tree; caps from memory, outcome structure confirmed by Q1E training slides (DOMAIN.md §1.7)';
 
-function capped(
-  x: number,
-  multiple: number | null,
-  extension: number,
-  rule: string,
-): Q1eExtrapolationLimit {
+function capped(x: number, multiple: number | null, extension: number, rule: string): Q1eExtrapolationLimit {
   const byMultiple = multiple === null ? Number.POSITIVE_INFINITY : multiple * x;
   return {
     extrapolationAllowed: true,
@@ -91,29 +86,55 @@ function none(x: number, rule: string): Q1eExtrapolationLimit {
 export function q1eExtrapolationLimit(input: Q1eExtrapolationCase): Q1eExtrapolationLimit {
   const x = input.longTermMonths;
   if (!(Number.isFinite(x) && x > 0)) {
-    throw new KineticsError('invalid-input', `The long-term period must be a positive number of months; got ${x}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `The long-term period must be a positive number of months; got ${x}.`,
+    );
   }
   const { longTermData, supportingData } = input;
   if (input.storage === 'freezer') {
-    return none(x, 'Freezer storage: no extrapolation; address excursions with a single batch at a higher temperature.');
+    return none(
+      x,
+      'Freezer storage: no extrapolation; address excursions with a single batch at a higher temperature.',
+    );
   }
   if (input.storage === 'refrigerated') {
     if (input.significantChangeAccelerated) {
       return none(x, 'Refrigerated, significant change at the accelerated condition: no extrapolation.');
     }
     if (longTermData !== 'no-statistics') {
-      return capped(x, 1.5, 6, 'Refrigerated, no significant change: up to 1.5X, not more than X + 6 months.');
+      return capped(
+        x,
+        1.5,
+        6,
+        'Refrigerated, no significant change: up to 1.5X, not more than X + 6 months.',
+      );
     }
     return supportingData
-      ? capped(x, null, 3, 'Refrigerated, not analysed statistically, supporting data: not more than X + 3 months.')
+      ? capped(
+          x,
+          null,
+          3,
+          'Refrigerated, not analysed statistically, supporting data: not more than X + 3 months.',
+        )
       : none(x, 'Refrigerated, not analysed statistically and no supporting data: no extrapolation.');
   }
   if (!input.significantChangeAccelerated) {
     if (longTermData !== 'no-statistics') {
-      return capped(x, 2, 12, 'Room temperature, no significant change at accelerated: up to 2X, not more than X + 12 months.');
+      return capped(
+        x,
+        2,
+        12,
+        'Room temperature, no significant change at accelerated: up to 2X, not more than X + 12 months.',
+      );
     }
     return supportingData
-      ? capped(x, 1.5, 6, 'Room temperature, not analysed statistically, supporting data: up to 1.5X, not more than X + 6 months.')
+      ? capped(
+          x,
+          1.5,
+          6,
+          'Room temperature, not analysed statistically, supporting data: up to 1.5X, not more than X + 6 months.',
+        )
       : none(x, 'Room temperature, not analysed statistically and no supporting data: no extrapolation.');
   }
   if (input.significantChangeIntermediate === undefined) {
@@ -129,6 +150,16 @@ export function q1eExtrapolationLimit(input: Q1eExtrapolationCase): Q1eExtrapola
     return none(x, 'Significant change at accelerated and no supporting data: no extrapolation.');
   }
   return longTermData === 'statistics-performed'
-    ? capped(x, 1.5, 6, 'Significant change at accelerated only, statistics and supporting data: up to 1.5X, not more than X + 6 months.')
-    : capped(x, null, 3, 'Significant change at accelerated only, no statistics, supporting data: not more than X + 3 months.');
+    ? capped(
+        x,
+        1.5,
+        6,
+        'Significant change at accelerated only, statistics and supporting data: up to 1.5X, not more than X + 6 months.',
+      )
+    : capped(
+        x,
+        null,
+        3,
+        'Significant change at accelerated only, no statistics, supporting data: not more than X + 3 months.',
+      );
 }

@@ -35,12 +35,21 @@ export interface StabilityLine {
  */
 export function lineMeanAt(line: StabilityLine, time: number): { mean: number; standardError: number } {
   const distance = time - line.centreTime;
-  const variance = line.varianceAtCentre + 2 * distance * line.covarianceCentreSlope + distance ** 2 * line.varianceSlope;
-  return { mean: line.valueAtCentre + line.slope * distance, standardError: Math.sqrt(Math.max(0, variance)) };
+  const variance =
+    line.varianceAtCentre + 2 * distance * line.covarianceCentreSlope + distance ** 2 * line.varianceSlope;
+  return {
+    mean: line.valueAtCentre + line.slope * distance,
+    standardError: Math.sqrt(Math.max(0, variance)),
+  };
 }
 
 /** The line of one batch (or of all, for 'pooled') read from a fitted ANCOVA model. */
-export function lineFromAncova(fit: LinearFit, design: AncovaDesign, index: number, label: string): StabilityLine {
+export function lineFromAncova(
+  fit: LinearFit,
+  design: AncovaDesign,
+  index: number,
+  label: string,
+): StabilityLine {
   const columns = design.columns[index] ?? design.columns[0]!;
   const { intercept, slope } = columns;
   return {

@@ -25,14 +25,20 @@ export function transformedStabilityBatches(
   transform: StabilityTransform,
 ): TransformedBatch[] {
   if (batches.length === 0) {
-    throw new KineticsError('too-few-points', 'A stability evaluation needs at least one batch.', { batches: 0 });
+    throw new KineticsError('too-few-points', 'A stability evaluation needs at least one batch.', {
+      batches: 0,
+    });
   }
   const seen = new Set<string>();
   return batches.map((batch) => {
     if (batch.batch.trim() === '' || seen.has(batch.batch)) {
-      throw new KineticsError('invalid-input', `Batch identifiers must be non-empty and unique; got "${batch.batch}".`, {
-        batch: batch.batch,
-      });
+      throw new KineticsError(
+        'invalid-input',
+        `Batch identifiers must be non-empty and unique; got "${batch.batch}".`,
+        {
+          batch: batch.batch,
+        },
+      );
     }
     seen.add(batch.batch);
     const n = batch.observations.length;
@@ -45,18 +51,26 @@ export function transformedStabilityBatches(
     }
     const times = batch.observations.map((observation, index) => {
       if (!Number.isFinite(observation.time) || observation.time < 0) {
-        throw new KineticsError('invalid-input', `Batch ${batch.batch}, result ${index}: time must be finite and ≥ 0.`, {
-          batch: batch.batch,
-          index,
-        });
+        throw new KineticsError(
+          'invalid-input',
+          `Batch ${batch.batch}, result ${index}: time must be finite and ≥ 0.`,
+          {
+            batch: batch.batch,
+            index,
+          },
+        );
       }
       return observation.time;
     });
     if (times.every((time) => time === times[0])) {
-      throw new KineticsError('single-time', `Batch ${batch.batch} has all its results at one time; no slope exists.`, {
-        batch: batch.batch,
-        time: times[0],
-      });
+      throw new KineticsError(
+        'single-time',
+        `Batch ${batch.batch} has all its results at one time; no slope exists.`,
+        {
+          batch: batch.batch,
+          time: times[0],
+        },
+      );
     }
     const responses = batch.observations.map((observation) =>
       toStabilityScale(observation.value, transform, `value of batch ${batch.batch}`),

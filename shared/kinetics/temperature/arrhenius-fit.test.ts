@@ -18,7 +18,8 @@ const FOUR_DIGITS = 5e-4;
 /** Relative tolerance for the same quantity computed two ways in double precision. */
 const SAME_COMPUTATION = 1e-10;
 
-const relative = (actual: number, expected: number): number => Math.abs(actual - expected) / Math.abs(expected);
+const relative = (actual: number, expected: number): number =>
+  Math.abs(actual - expected) / Math.abs(expected);
 
 describe('arrheniusFit on the 2 HI data set', () => {
   const fit = arrheniusFit(hydrogenIodide);
@@ -40,7 +41,9 @@ describe('arrheniusFit on the 2 HI data set', () => {
   });
 
   it('agrees with simple-statistics linearRegression and jStat t quantile', () => {
-    const points = hydrogenIodide.map((m) => [1 / (m.temperatureC + 273.15), Math.log(m.rateConstant)] as [number, number]);
+    const points = hydrogenIodide.map(
+      (m) => [1 / (m.temperatureC + 273.15), Math.log(m.rateConstant)] as [number, number],
+    );
     const line = linearRegression(points);
     // simple-statistics linearRegression (general-purpose reference library).
     expect(relative(fit.activationEnergy, -MOLAR_GAS_CONSTANT * line.m)).toBeLessThan(SAME_COMPUTATION);
@@ -54,7 +57,9 @@ describe('arrheniusFit on the 2 HI data set', () => {
     const standardError = (MOLAR_GAS_CONSTANT * s) / Math.sqrt(sxx);
     expect(relative(fit.activationEnergyStandardError ?? 0, standardError)).toBeLessThan(1e-9);
     const halfWidth = jStat.studentt.inv(0.975, 3) * standardError;
-    expect(relative(fit.activationEnergyInterval?.[1] ?? 0, fit.activationEnergy + halfWidth)).toBeLessThan(1e-7);
+    expect(relative(fit.activationEnergyInterval?.[1] ?? 0, fit.activationEnergy + halfWidth)).toBeLessThan(
+      1e-7,
+    );
     // se(ln A) = s·√(1/n + x̄²/Sxx), the intercept standard error of OLS (NIST e-Handbook §4.4.4).
     const interceptStandardError = s * Math.sqrt(1 / points.length + meanX ** 2 / sxx);
     expect(relative(fit.lnPreExponentialFactorStandardError ?? 0, interceptStandardError)).toBeLessThan(1e-8);
@@ -91,13 +96,16 @@ describe('arrheniusFit on the 2 HI data set', () => {
 describe('arrheniusFit weighting', () => {
   it('is unchanged by equal relative precision (all weights equal)', () => {
     // Weighted least squares with equal weights is ordinary least squares (NIST e-Handbook §4.4.3.2).
-    const withErrors = hydrogenIodide.map((m) => ({ ...m, rateConstantStandardError: 0.05 * m.rateConstant }));
+    const withErrors = hydrogenIodide.map((m) => ({
+      ...m,
+      rateConstantStandardError: 0.05 * m.rateConstant,
+    }));
     const weighted = arrheniusFit(withErrors, { weighting: 'inverse-variance' });
     const plain = arrheniusFit(hydrogenIodide);
     expect(relative(weighted.activationEnergy, plain.activationEnergy)).toBeLessThan(SAME_COMPUTATION);
-    expect(relative(weighted.activationEnergyStandardError ?? 0, plain.activationEnergyStandardError ?? 1)).toBeLessThan(
-      1e-9,
-    );
+    expect(
+      relative(weighted.activationEnergyStandardError ?? 0, plain.activationEnergyStandardError ?? 1),
+    ).toBeLessThan(1e-9);
     expect(weighted.weighting).toBe('inverse-variance');
   });
 
@@ -170,6 +178,8 @@ describe('arrheniusFit degenerate cases', () => {
       code('invalid-input'),
     );
     expect(() => arrheniusFit(hydrogenIodide, { confidence: 1 })).toThrow(code('invalid-input'));
-    expect(() => predictRateConstant(arrheniusFit(hydrogenIodide), Number.NaN)).toThrow(code('invalid-input'));
+    expect(() => predictRateConstant(arrheniusFit(hydrogenIodide), Number.NaN)).toThrow(
+      code('invalid-input'),
+    );
   });
 });

@@ -1,6 +1,10 @@
 import { studentTQuantile } from '../numeric/student-t-quantile.ts';
 import { KELVIN_AT_ZERO_CELSIUS } from '../units.ts';
-import { fitInverseTemperatureLine, type InverseTemperatureLine, lineValueAt } from './inverse-temperature-line.ts';
+import {
+  fitInverseTemperatureLine,
+  type InverseTemperatureLine,
+  lineValueAt,
+} from './inverse-temperature-line.ts';
 import { MOLAR_GAS_CONSTANT } from './physical-constants.ts';
 import type { RateConstantMeasurement, TemperatureFitWeighting } from './rate-constant-measurement.ts';
 import { temperatureFitInputs } from './temperature-fit-inputs.ts';
@@ -77,13 +81,18 @@ export function arrheniusFit(
 ): ArrheniusFit {
   const weighting = options.weighting ?? 'unweighted';
   const confidence = options.confidence ?? 0.95;
-  const { temperaturesK, lnRateConstants, weights } = temperatureFitInputs(measurements, weighting, confidence);
+  const { temperaturesK, lnRateConstants, weights } = temperatureFitInputs(
+    measurements,
+    weighting,
+    confidence,
+  );
   const line = fitInverseTemperatureLine(temperaturesK, lnRateConstants, weights);
   const lnA = lineValueAt(line, 0);
   const activationEnergy = -MOLAR_GAS_CONSTANT * line.slope;
   const activationEnergyStandardError =
     line.slopeStandardError === null ? null : MOLAR_GAS_CONSTANT * line.slopeStandardError;
-  const quantile = line.degreesOfFreedom > 0 ? studentTQuantile((1 + confidence) / 2, line.degreesOfFreedom) : null;
+  const quantile =
+    line.degreesOfFreedom > 0 ? studentTQuantile((1 + confidence) / 2, line.degreesOfFreedom) : null;
   const interval = (estimate: number, standardError: number | null): [number, number] | null =>
     standardError === null || quantile === null
       ? null
@@ -108,7 +117,10 @@ export function arrheniusFit(
     rSquared: line.rSquared,
     residualStandardDeviation: line.residualStandardDeviation,
     intervalUnavailableReason: line.uncertaintyUnavailableReason,
-    temperatureRangeC: [1 / maximumInverse - KELVIN_AT_ZERO_CELSIUS, 1 / minimumInverse - KELVIN_AT_ZERO_CELSIUS],
+    temperatureRangeC: [
+      1 / maximumInverse - KELVIN_AT_ZERO_CELSIUS,
+      1 / minimumInverse - KELVIN_AT_ZERO_CELSIUS,
+    ],
     line,
   };
 }

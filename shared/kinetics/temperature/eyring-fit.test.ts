@@ -13,7 +13,8 @@ const hydrogenIodide = [
 ];
 /** Relative tolerance for the same quantity computed two ways in double precision. */
 const SAME_COMPUTATION = 1e-9;
-const relative = (actual: number, expected: number): number => Math.abs(actual - expected) / Math.abs(expected);
+const relative = (actual: number, expected: number): number =>
+  Math.abs(actual - expected) / Math.abs(expected);
 
 /** k from the Eyring equation with κ = 1 (IUPAC Gold Book, "transition state theory"). */
 function eyringRateConstant(enthalpy: number, entropy: number, temperatureK: number): number {
@@ -44,7 +45,9 @@ describe('eyringFit', () => {
     expect(Math.abs(fit.entropyOfActivation.estimate - entropy)).toBeLessThan(1e-6);
     // ΔG‡ = ΔH‡ − T·ΔS‡ (Gold Book) at the centre temperature of the fit.
     const centre = fit.gibbsEnergyOfActivationAtReference;
-    expect(relative(centre.estimate, enthalpy - centre.temperatureK * entropy)).toBeLessThan(SAME_COMPUTATION);
+    expect(relative(centre.estimate, enthalpy - centre.temperatureK * entropy)).toBeLessThan(
+      SAME_COMPUTATION,
+    );
     expect(fit.transmissionCoefficient).toBe(1);
   });
 
@@ -54,12 +57,12 @@ describe('eyringFit', () => {
       hydrogenIodide.map((m) => ({ ...m, rateConstant: m.rateConstant * 60 })),
       { secondsPerTimeUnit: 60 },
     );
-    expect(relative(perMinute.entropyOfActivation.estimate, perSecond.entropyOfActivation.estimate)).toBeLessThan(
-      SAME_COMPUTATION,
-    );
-    expect(relative(perMinute.enthalpyOfActivation.estimate, perSecond.enthalpyOfActivation.estimate)).toBeLessThan(
-      SAME_COMPUTATION,
-    );
+    expect(
+      relative(perMinute.entropyOfActivation.estimate, perSecond.entropyOfActivation.estimate),
+    ).toBeLessThan(SAME_COMPUTATION);
+    expect(
+      relative(perMinute.enthalpyOfActivation.estimate, perSecond.enthalpyOfActivation.estimate),
+    ).toBeLessThan(SAME_COMPUTATION);
   });
 
   it('sits about R·T below the Arrhenius Ea (Ea = ΔH‡ + RT)', () => {
@@ -86,8 +89,8 @@ describe('eyringFit', () => {
     expect(() => eyringFit(hydrogenIodide, { secondsPerTimeUnit: 0 })).toThrow(
       expect.objectContaining({ code: 'invalid-input' }),
     );
-    expect(() => eyringFit([{ temperatureC: 25, rateConstant: 0 }, hydrogenIodide[0]!], { secondsPerTimeUnit: 1 })).toThrow(
-      expect.objectContaining({ code: 'non-positive-value' }),
-    );
+    expect(() =>
+      eyringFit([{ temperatureC: 25, rateConstant: 0 }, hydrogenIodide[0]!], { secondsPerTimeUnit: 1 }),
+    ).toThrow(expect.objectContaining({ code: 'non-positive-value' }));
   });
 });

@@ -1,6 +1,10 @@
 import { KineticsError } from '../numeric/kinetics-error.ts';
 import { studentTQuantile } from '../numeric/student-t-quantile.ts';
-import { fitInverseTemperatureLine, type InverseTemperatureLine, lineValueAt } from './inverse-temperature-line.ts';
+import {
+  fitInverseTemperatureLine,
+  type InverseTemperatureLine,
+  lineValueAt,
+} from './inverse-temperature-line.ts';
 import { BOLTZMANN_CONSTANT, MOLAR_GAS_CONSTANT, PLANCK_CONSTANT } from './physical-constants.ts';
 import type { RateConstantMeasurement, TemperatureFitWeighting } from './rate-constant-measurement.ts';
 import { temperatureFitInputs } from './temperature-fit-inputs.ts';
@@ -71,10 +75,16 @@ export interface EyringFit {
  * Example: k = 1e-3 s⁻¹ at exactly T = 298.15 K gives ln(k/T) = −12.60, so for a line through that
  * point ΔG‡(298.15 K) = −R·T·(−12.60 − 23.76) = 90.1 kJ/mol.
  */
-export function eyringFit(measurements: readonly RateConstantMeasurement[], options: EyringFitOptions): EyringFit {
+export function eyringFit(
+  measurements: readonly RateConstantMeasurement[],
+  options: EyringFitOptions,
+): EyringFit {
   const { secondsPerTimeUnit } = options;
   if (!(Number.isFinite(secondsPerTimeUnit) && secondsPerTimeUnit > 0)) {
-    throw new KineticsError('invalid-input', `secondsPerTimeUnit must be finite and positive; got ${secondsPerTimeUnit}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `secondsPerTimeUnit must be finite and positive; got ${secondsPerTimeUnit}.`,
+    );
   }
   const weighting = options.weighting ?? 'unweighted';
   const confidence = options.confidence ?? 0.95;
@@ -84,7 +94,8 @@ export function eyringFit(measurements: readonly RateConstantMeasurement[], opti
   );
   const line = fitInverseTemperatureLine(inputs.temperaturesK, responses, inputs.weights);
   const lnFrequency = Math.log(BOLTZMANN_CONSTANT / PLANCK_CONSTANT);
-  const quantile = line.degreesOfFreedom > 0 ? studentTQuantile((1 + confidence) / 2, line.degreesOfFreedom) : null;
+  const quantile =
+    line.degreesOfFreedom > 0 ? studentTQuantile((1 + confidence) / 2, line.degreesOfFreedom) : null;
   const withInterval = (estimate: number, standardError: number | null): EstimateWithInterval => ({
     estimate,
     standardError,

@@ -57,20 +57,30 @@ export function fitInverseTemperatureLine(
 ): InverseTemperatureLine {
   const n = temperaturesK.length;
   if (responses.length !== n || (weights !== undefined && weights.length !== n)) {
-    throw new KineticsError('invalid-input', 'Temperatures, responses and weights must have the same length.', {
-      temperatures: n,
-      responses: responses.length,
-      weights: weights?.length,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      'Temperatures, responses and weights must have the same length.',
+      {
+        temperatures: n,
+        responses: responses.length,
+        weights: weights?.length,
+      },
+    );
   }
   if (n < 2) {
-    throw new KineticsError('too-few-points', `A temperature dependence needs at least 2 points; got ${n}.`, { n });
+    throw new KineticsError('too-few-points', `A temperature dependence needs at least 2 points; got ${n}.`, {
+      n,
+    });
   }
   temperaturesK.forEach((temperature, index) => {
     if (!Number.isFinite(temperature) || temperature <= 0) {
-      throw new KineticsError('invalid-input', `Absolute temperature must be above 0 K; got ${temperature}.`, {
-        index,
-      });
+      throw new KineticsError(
+        'invalid-input',
+        `Absolute temperature must be above 0 K; got ${temperature}.`,
+        {
+          index,
+        },
+      );
     }
   });
   responses.forEach((value, index) => {
@@ -80,18 +90,26 @@ export function fitInverseTemperatureLine(
   });
   weights?.forEach((weight, index) => {
     if (!Number.isFinite(weight) || weight <= 0) {
-      throw new KineticsError('invalid-input', `Weight ${index} must be finite and positive; got ${weight}.`, {
-        index,
-      });
+      throw new KineticsError(
+        'invalid-input',
+        `Weight ${index} must be finite and positive; got ${weight}.`,
+        {
+          index,
+        },
+      );
     }
   });
   const inverse = temperaturesK.map((temperature) => 1 / temperature);
   const minimum = Math.min(...inverse);
   const maximum = Math.max(...inverse);
   if (minimum === maximum) {
-    throw new KineticsError('zero-variance', 'All temperatures are equal, so the temperature dependence is undetermined.', {
-      temperatureK: temperaturesK[0],
-    });
+    throw new KineticsError(
+      'zero-variance',
+      'All temperatures are equal, so the temperature dependence is undetermined.',
+      {
+        temperatureK: temperaturesK[0],
+      },
+    );
   }
   const w = weights ?? inverse.map(() => 1);
   const reference = compensatedSum(inverse.map((x, i) => (w[i] ?? 1) * x)) / compensatedSum(w);

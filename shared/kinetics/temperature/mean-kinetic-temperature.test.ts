@@ -35,7 +35,10 @@ describe('meanKineticTemperature (USP <1160> constants)', () => {
     const weighted = meanKineticTemperature([20, 30], { durations: [2, 1] });
     const listed = meanKineticTemperature([20, 20, 30]);
     expect(weighted.meanKineticTemperatureC).toBeCloseTo(listed.meanKineticTemperatureC, 12);
-    expect(meanKineticTemperature([20, 90], { durations: [1, 0] }).meanKineticTemperatureC).toBeCloseTo(20, 10);
+    expect(meanKineticTemperature([20, 90], { durations: [1, 0] }).meanKineticTemperatureC).toBeCloseTo(
+      20,
+      10,
+    );
   });
 
   it('survives a huge ΔH where every exponential underflows (log-sum-exp)', () => {

@@ -60,17 +60,35 @@ export function meanKineticTemperature(
   const gasConstant = options.gasConstant ?? USP_MEAN_KINETIC_TEMPERATURE_GAS_CONSTANT;
   const n = temperaturesC.length;
   if (n === 0) {
-    throw new KineticsError('too-few-points', 'The mean kinetic temperature needs at least one temperature.', { n });
+    throw new KineticsError(
+      'too-few-points',
+      'The mean kinetic temperature needs at least one temperature.',
+      { n },
+    );
   }
-  if (!(Number.isFinite(activationEnergy) && activationEnergy > 0 && Number.isFinite(gasConstant) && gasConstant > 0)) {
-    throw new KineticsError('invalid-input', 'ΔH and R must be finite and positive.', { activationEnergy, gasConstant });
+  if (
+    !(
+      Number.isFinite(activationEnergy) &&
+      activationEnergy > 0 &&
+      Number.isFinite(gasConstant) &&
+      gasConstant > 0
+    )
+  ) {
+    throw new KineticsError('invalid-input', 'ΔH and R must be finite and positive.', {
+      activationEnergy,
+      gasConstant,
+    });
   }
   const durations = options.durations ?? temperaturesC.map(() => 1);
   if (durations.length !== n || durations.some((t) => !Number.isFinite(t) || t < 0)) {
-    throw new KineticsError('invalid-input', 'Durations must be finite, non-negative and one per temperature.', {
-      temperatures: n,
-      durations: durations.length,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      'Durations must be finite, non-negative and one per temperature.',
+      {
+        temperatures: n,
+        durations: durations.length,
+      },
+    );
   }
   const totalDuration = compensatedSum(durations);
   if (!(totalDuration > 0)) {
@@ -86,7 +104,9 @@ export function meanKineticTemperature(
   const ratio = activationEnergy / gasConstant;
   const exponents = kelvin.map((temperature) => -ratio / temperature);
   const largest = Math.max(...exponents.filter((_, i) => (durations[i] ?? 0) > 0));
-  const scaledSum = compensatedSum(exponents.map((e, i) => ((durations[i] ?? 0) / totalDuration) * Math.exp(e - largest)));
+  const scaledSum = compensatedSum(
+    exponents.map((e, i) => ((durations[i] ?? 0) / totalDuration) * Math.exp(e - largest)),
+  );
   const logMean = largest + Math.log(scaledSum);
   const meanKineticTemperatureK = -ratio / logMean;
   return {

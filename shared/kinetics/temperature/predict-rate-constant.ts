@@ -52,7 +52,10 @@ export function predictRateConstant(
   confidence: number = fit.confidence,
 ): RateConstantPrediction {
   if (!(confidence > 0 && confidence < 1)) {
-    throw new KineticsError('invalid-input', `Confidence must lie strictly between 0 and 1; got ${confidence}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `Confidence must lie strictly between 0 and 1; got ${confidence}.`,
+    );
   }
   const temperatureK = celsiusToKelvin(temperatureC);
   if (!(temperatureK > 0)) {
@@ -101,7 +104,9 @@ export function predictRateConstant(
     confidenceInterval === null || (predictionInterval === null && !fit.line.weighted)
       ? 'An interval bound overflows a double.'
       : null,
-    fit.line.weighted ? 'No prediction interval for a weighted fit: the weight of a new determination is unknown.' : null,
+    fit.line.weighted
+      ? 'No prediction interval for a weighted fit: the weight of a new determination is unknown.'
+      : null,
   ].filter((reason): reason is string => reason !== null);
   return {
     ...base,

@@ -23,7 +23,9 @@ function checkedInterval(lowerC: number, upperC: number): [number, number] {
   const lower = checkedKelvin(lowerC, 'The lower temperature');
   const upper = checkedKelvin(upperC, 'The upper temperature');
   if (lower === upper) {
-    throw new KineticsError('zero-variance', 'Q10 needs two different temperatures.', { temperatureC: lowerC });
+    throw new KineticsError('zero-variance', 'Q10 needs two different temperatures.', {
+      temperatureC: lowerC,
+    });
   }
   return [lower, upper];
 }
@@ -49,7 +51,9 @@ export function q10FromRateConstants(
       throw new KineticsError('invalid-input', 'Rate constants must be finite numbers.', { rateConstant: k });
     }
     if (k <= 0) {
-      throw new KineticsError('non-positive-value', `Q10 needs positive rate constants; got ${k}.`, { rateConstant: k });
+      throw new KineticsError('non-positive-value', `Q10 needs positive rate constants; got ${k}.`, {
+        rateConstant: k,
+      });
     }
   }
   const exponent = 10 / (temperature2C - temperature1C);

@@ -22,7 +22,10 @@ export function temperatureFitInputs(
   confidence: number,
 ): { temperaturesK: number[]; lnRateConstants: number[]; weights: number[] | undefined } {
   if (!(confidence > 0 && confidence < 1)) {
-    throw new KineticsError('invalid-input', `Confidence must lie strictly between 0 and 1; got ${confidence}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `Confidence must lie strictly between 0 and 1; got ${confidence}.`,
+    );
   }
   const temperaturesK = measurements.map((measurement, index) => {
     const kelvin = celsiusToKelvin(measurement.temperatureC);
