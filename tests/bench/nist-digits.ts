@@ -16,7 +16,9 @@ import {
 import { readNistDataset, significantDigits } from '../../shared/kinetics/numeric/nist-strd-reader.ts';
 
 const analytic = !process.argv.includes('--numeric-jacobian');
-const rows: string[][] = [['problem', 'difficulty', 'start', 'converged', 'param digits', 'SD digits', 'iterations', 'reason']];
+const rows: string[][] = [
+  ['problem', 'difficulty', 'start', 'converged', 'param digits', 'SD digits', 'iterations', 'reason'],
+];
 for (const name of [...NIST_NONLINEAR_LOWER_AVERAGE, ...NIST_NONLINEAR_HIGHER]) {
   const dataset = readNistDataset(name);
   for (const start of [1, 2] as const) {

@@ -36,7 +36,7 @@ export function accurateDotProduct(a: ArrayLike<number>, b: ArrayLike<number>, c
     const ySplit = SPLIT_FACTOR * y;
     const yHigh = ySplit - (ySplit - y);
     const yLow = y - yHigh;
-    const productError = xLow * yLow - (((product - xHigh * yHigh) - xLow * yHigh) - xHigh * yLow);
+    const productError = xLow * yLow - (product - xHigh * yHigh - xLow * yHigh - xHigh * yLow);
     // TwoSum.
     const next = sum + product;
     const back = next - sum;

@@ -9,10 +9,14 @@ import { KineticsError } from './kinetics-error.ts';
  */
 export function assertOpenProbability(probability: number, name: string): void {
   if (!(Number.isFinite(probability) && probability > 0 && probability < 1)) {
-    throw new KineticsError('invalid-input', `${name} must lie strictly between 0 and 1; got ${probability}.`, {
-      name,
-      value: probability,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      `${name} must lie strictly between 0 and 1; got ${probability}.`,
+      {
+        name,
+        value: probability,
+      },
+    );
   }
 }
 
@@ -26,10 +30,14 @@ export function assertOpenProbability(probability: number, name: string): void {
  */
 export function assertDegreesOfFreedom(degreesOfFreedom: number, name: string): void {
   if (!(Number.isFinite(degreesOfFreedom) && degreesOfFreedom > 0)) {
-    throw new KineticsError('invalid-input', `${name} must be a finite positive number; got ${degreesOfFreedom}.`, {
-      name,
-      value: degreesOfFreedom,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      `${name} must be a finite positive number; got ${degreesOfFreedom}.`,
+      {
+        name,
+        value: degreesOfFreedom,
+      },
+    );
   }
 }
 

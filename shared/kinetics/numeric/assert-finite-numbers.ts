@@ -17,11 +17,15 @@ export function assertFiniteNumbers(values: readonly number[], name: string): vo
   for (let index = 0; index < values.length; index++) {
     const value = values[index];
     if (typeof value !== 'number' || !Number.isFinite(value)) {
-      throw new KineticsError('invalid-input', `${name}[${index}] is ${String(value)}, not a finite number.`, {
-        name,
-        index,
-        value: String(value),
-      });
+      throw new KineticsError(
+        'invalid-input',
+        `${name}[${index}] is ${String(value)}, not a finite number.`,
+        {
+          name,
+          index,
+          value: String(value),
+        },
+      );
     }
   }
 }
@@ -45,10 +49,14 @@ export function assertValidWeights(weights: readonly number[], expectedLength: n
   assertFiniteNumbers(weights, 'weights');
   for (let index = 0; index < weights.length; index++) {
     if (weights[index]! <= 0) {
-      throw new KineticsError('invalid-input', `weights[${index}] is ${weights[index]}; weights must be positive.`, {
-        index,
-        value: weights[index],
-      });
+      throw new KineticsError(
+        'invalid-input',
+        `weights[${index}] is ${weights[index]}; weights must be positive.`,
+        {
+          index,
+          value: weights[index],
+        },
+      );
     }
   }
 }

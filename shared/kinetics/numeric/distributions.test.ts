@@ -31,7 +31,9 @@ describe('studentTQuantile', () => {
     it(`matches the NIST table for ${degreesOfFreedom} degrees of freedom`, () => {
       row.forEach((expected, column) => {
         const p = probabilities[column]!;
-        expect(Math.abs(studentTQuantile(p, Number(degreesOfFreedom)) - expected)).toBeLessThanOrEqual(TABLE_ROUNDING);
+        expect(Math.abs(studentTQuantile(p, Number(degreesOfFreedom)) - expected)).toBeLessThanOrEqual(
+          TABLE_ROUNDING,
+        );
         // Symmetry: the lower quantile is the negative of the upper one (common practice).
         expect(studentTQuantile(1 - p, Number(degreesOfFreedom))).toBeCloseTo(-expected, 3);
       });

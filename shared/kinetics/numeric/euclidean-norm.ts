@@ -13,7 +13,7 @@
  *
  * Throws nothing; an empty range has length 0.
  *
- * Example: `euclideanNorm([3e200, 4e200])` is `5e200`.
+ * Example: `euclideanNorm([3e200, 4e200])` is 5e200 (to the last digit; squaring directly gives Infinity).
  */
 export function euclideanNorm(values: ArrayLike<number>, start = 0, length = values.length - start): number {
   let largest = 0;

@@ -19,7 +19,11 @@ import { assertDegreesOfFreedom, assertStatistic } from './assert-distribution-a
  *
  * Example: `fDistributionUpperTail(4.965, 1, 10)` is about 0.05 (table value F(0.95; 1, 10) = 4.965).
  */
-export function fDistributionUpperTail(f: number, degreesOfFreedom1: number, degreesOfFreedom2: number): number {
+export function fDistributionUpperTail(
+  f: number,
+  degreesOfFreedom1: number,
+  degreesOfFreedom2: number,
+): number {
   assertStatistic(f, 'f', 0);
   assertDegreesOfFreedom(degreesOfFreedom1, 'degreesOfFreedom1');
   assertDegreesOfFreedom(degreesOfFreedom2, 'degreesOfFreedom2');

@@ -167,7 +167,9 @@ export function runLevenbergMarquardt(
       const ratio = predictedReduction === 0 ? 0 : actualReduction / predictedReduction;
       if (ratio <= SHRINK_RATIO) {
         let factor =
-          actualReduction >= 0 ? 0.5 : (0.5 * directionalDerivative) / (directionalDerivative + 0.5 * actualReduction);
+          actualReduction >= 0
+            ? 0.5
+            : (0.5 * directionalDerivative) / (directionalDerivative + 0.5 * actualReduction);
         if (0.1 * trialNorm >= residualNorm || factor < 0.1 || !Number.isFinite(factor)) {
           factor = 0.1;
         }
@@ -190,24 +192,41 @@ export function runLevenbergMarquardt(
         0.5 * ratio <= 1;
       const stepSmall = delta <= settings.relativeStepTolerance * scaledParameterNorm;
       if (reductionSmall || stepSmall) {
-        const what = reductionSmall && stepSmall ? 'relative reduction and step' : reductionSmall ? 'relative reduction' : 'relative step';
+        const what =
+          reductionSmall && stepSmall
+            ? 'relative reduction and step'
+            : reductionSmall
+              ? 'relative reduction'
+              : 'relative step';
         return stop(true, `${what} of the sum of squares below tolerance`, iteration);
       }
       if (residualNorm === 0) {
         return stop(true, 'the model fits the data exactly', iteration);
       }
       if (functionEvaluations >= settings.maxFunctionEvaluations) {
-        return stop(false, `no convergence within ${settings.maxFunctionEvaluations} function evaluations`, iteration);
+        return stop(
+          false,
+          `no convergence within ${settings.maxFunctionEvaluations} function evaluations`,
+          iteration,
+        );
       }
       if (
         Math.abs(actualReduction) <= Number.EPSILON &&
         predictedReduction <= Number.EPSILON &&
         0.5 * ratio <= 1
       ) {
-        return stop(true, 'no further reduction of the sum of squares is possible in double precision', iteration);
+        return stop(
+          true,
+          'no further reduction of the sum of squares is possible in double precision',
+          iteration,
+        );
       }
       if (delta <= Number.EPSILON * scaledParameterNorm) {
-        return stop(true, 'no further improvement of the parameters is possible in double precision', iteration);
+        return stop(
+          true,
+          'no further improvement of the parameters is possible in double precision',
+          iteration,
+        );
       }
       if (gradientCosine <= Number.EPSILON) {
         return stop(true, 'the gradient vanishes to double precision', iteration);

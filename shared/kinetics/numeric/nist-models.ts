@@ -235,7 +235,11 @@ function nistModel(dataset: NistDataset): NistModel {
         jacobian: (b, x) => {
           const g = Math.exp(-0.5 * ((x - b[2]!) / b[1]!) ** 2);
           const f = (b[0]! / b[1]!) * g;
-          return [g / b[1]!, -f / b[1]! + (f * (x - b[2]!) ** 2) / b[1]! ** 3, (f * (x - b[2]!)) / b[1]! ** 2];
+          return [
+            g / b[1]!,
+            -f / b[1]! + (f * (x - b[2]!) ** 2) / b[1]! ** 3,
+            (f * (x - b[2]!)) / b[1]! ** 2,
+          ];
         },
       };
     case 'Rat43':
@@ -267,7 +271,11 @@ function nistModel(dataset: NistDataset): NistModel {
  * `analyticJacobian` is false) none, so that the fit uses central differences. Nelson's response
  * is log(y), as its model line states.
  */
-export function nistNonlinearProblem(dataset: NistDataset, start: 1 | 2, analyticJacobian = true): NonlinearProblem {
+export function nistNonlinearProblem(
+  dataset: NistDataset,
+  start: 1 | 2,
+  analyticJacobian = true,
+): NonlinearProblem {
   const { model, jacobian } = nistModel(dataset);
   const initial = dataset.parameters.map((parameter) => {
     const value = start === 1 ? parameter.start1 : parameter.start2;
@@ -287,7 +295,33 @@ export function nistNonlinearProblem(dataset: NistDataset, start: 1 | 2, analyti
 
 /** Lower and average difficulty problems (must converge and match), then the higher ones. */
 export const NIST_NONLINEAR_LOWER_AVERAGE = [
-  'Misra1a', 'Chwirut2', 'Chwirut1', 'Lanczos3', 'Gauss1', 'Gauss2', 'DanWood', 'Misra1b',
-  'Kirby2', 'Hahn1', 'Nelson', 'MGH17', 'Lanczos1', 'Lanczos2', 'Gauss3', 'Misra1c', 'Misra1d', 'Roszman1', 'ENSO',
+  'Misra1a',
+  'Chwirut2',
+  'Chwirut1',
+  'Lanczos3',
+  'Gauss1',
+  'Gauss2',
+  'DanWood',
+  'Misra1b',
+  'Kirby2',
+  'Hahn1',
+  'Nelson',
+  'MGH17',
+  'Lanczos1',
+  'Lanczos2',
+  'Gauss3',
+  'Misra1c',
+  'Misra1d',
+  'Roszman1',
+  'ENSO',
 ] as const;
-export const NIST_NONLINEAR_HIGHER = ['MGH09', 'Thurber', 'BoxBOD', 'Rat42', 'MGH10', 'Eckerle4', 'Rat43', 'Bennett5'] as const;
+export const NIST_NONLINEAR_HIGHER = [
+  'MGH09',
+  'Thurber',
+  'BoxBOD',
+  'Rat42',
+  'MGH10',
+  'Eckerle4',
+  'Rat43',
+  'Bennett5',
+] as const;

@@ -15,7 +15,13 @@ import { fileURLToPath } from 'node:url';
 
 const repositoryRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
 /** Where the NIST StRD files are kept, outside the repository. */
-export const NIST_STRD_DIRECTORY = path.resolve(repositoryRoot, '..', 'shared', 'reference-data', 'nist-strd');
+export const NIST_STRD_DIRECTORY = path.resolve(
+  repositoryRoot,
+  '..',
+  'shared',
+  'reference-data',
+  'nist-strd',
+);
 
 export interface CertifiedParameter {
   name: string;
@@ -123,4 +129,23 @@ export function significantDigits(estimate: number, certified: number): number {
   }
   const relative = certified === 0 ? difference : difference / Math.abs(certified);
   return Math.min(15, Math.max(0, -Math.log10(relative)));
+}
+
+/** A NIST univariate dataset: the values and the certified sample mean (as printed). */
+export function readNistUnivariate(name: string): { values: number[]; certifiedMean: number } {
+  const entry = certifiedEntries()[name] as unknown as {
+    file: string;
+    data_lines: { first: string; last: string };
+    certified: { sample_mean: { value: string } };
+  };
+  const lines = readFileSync(path.join(NIST_STRD_DIRECTORY, entry.file), 'latin1').split('\n');
+  const values: number[] = [];
+  for (
+    let lineNumber = Number(entry.data_lines.first);
+    lineNumber <= Number(entry.data_lines.last);
+    lineNumber++
+  ) {
+    values.push(Number((lines[lineNumber - 1] ?? '').trim()));
+  }
+  return { values, certifiedMean: Number(entry.certified.sample_mean.value) };
 }

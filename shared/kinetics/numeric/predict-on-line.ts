@@ -58,9 +58,13 @@ export function predictOnLine(
 ): LinePrediction {
   assertFiniteNumbers([x], 'x');
   if (!(confidence > 0 && confidence < 1)) {
-    throw new KineticsError('invalid-input', `confidence must lie strictly between 0 and 1; got ${confidence}.`, {
-      confidence,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      `confidence must lie strictly between 0 and 1; got ${confidence}.`,
+      {
+        confidence,
+      },
+    );
   }
   const newObservationWeight = options.newObservationWeight ?? 1;
   if (!(Number.isFinite(newObservationWeight) && newObservationWeight > 0)) {
@@ -77,11 +81,18 @@ export function predictOnLine(
   const standardErrorOfNew = Math.sqrt(residualVariance * (leverage + 1 / newObservationWeight));
   const probability = options.sides === 'one-sided' ? confidence : (1 + confidence) / 2;
   const tQuantile = studentTQuantile(probability, fit.degreesOfFreedom);
-  const estimate = fit.throughOrigin ? fit.slope * x : fit.intercept + fit.slope * x;
+  // About the centre, so that far from the data no cancellation between intercept and slope·x occurs.
+  const estimate = fit.throughOrigin ? fit.slope * x : fit.meanY + fit.slope * distance;
   return {
     estimate,
-    confidenceInterval: [estimate - tQuantile * standardErrorOfMean, estimate + tQuantile * standardErrorOfMean],
-    predictionInterval: [estimate - tQuantile * standardErrorOfNew, estimate + tQuantile * standardErrorOfNew],
+    confidenceInterval: [
+      estimate - tQuantile * standardErrorOfMean,
+      estimate + tQuantile * standardErrorOfMean,
+    ],
+    predictionInterval: [
+      estimate - tQuantile * standardErrorOfNew,
+      estimate + tQuantile * standardErrorOfNew,
+    ],
     standardErrorOfMean,
     tQuantile,
   };

@@ -22,6 +22,8 @@ export interface StraightLineFit {
   n: number;
   /** Weighted mean of x (the centre the line was fitted about); 0 through the origin. */
   meanX: number;
+  /** Weighted mean of y; 0 through the origin. The line passes through (meanX, meanY). */
+  meanY: number;
   /** Σ wᵢ·(xᵢ − meanX)² (through the origin: Σ wᵢ·xᵢ²). */
   sxx: number;
   /** Σ wᵢ (n when unweighted). */
@@ -121,7 +123,9 @@ export function simpleLinearRegression(
     slope,
     intercept,
     slopeStandardError: Math.sqrt(residualVariance / sxx),
-    interceptStandardError: throughOrigin ? 0 : Math.sqrt(residualVariance * (1 / sumOfWeights + (meanX * meanX) / sxx)),
+    interceptStandardError: throughOrigin
+      ? 0
+      : Math.sqrt(residualVariance * (1 / sumOfWeights + (meanX * meanX) / sxx)),
     covarianceInterceptSlope: throughOrigin ? 0 : (-meanX * residualVariance) / sxx,
     residualSumOfSquares,
     degreesOfFreedom,
@@ -129,6 +133,7 @@ export function simpleLinearRegression(
     rSquared: syy === 0 ? 1 : 1 - residualSumOfSquares / syy,
     n,
     meanX,
+    meanY,
     sxx,
     sumOfWeights,
     throughOrigin,

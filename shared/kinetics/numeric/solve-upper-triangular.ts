@@ -31,7 +31,10 @@ export function solveUpperTriangular(qr: HouseholderQr, rightHandSide: ArrayLike
  *
  * Example: R = [[2, 1], [0, 4]] and right-hand side [2, 9] give z = [1, 2].
  */
-export function solveUpperTriangularTransposed(qr: HouseholderQr, rightHandSide: ArrayLike<number>): Float64Array {
+export function solveUpperTriangularTransposed(
+  qr: HouseholderQr,
+  rightHandSide: ArrayLike<number>,
+): Float64Array {
   const size = qr.columns.length;
   const solution = new Float64Array(size);
   for (let i = 0; i < size; i++) {

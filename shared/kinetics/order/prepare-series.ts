@@ -13,8 +13,8 @@ import { KineticsError } from '../numeric/kinetics-error.ts';
  * can be fitted with an estimate of its scatter), and `KineticsError('single-time')` when every remaining
  * point has the same time (no change with time can be measured).
  *
- * Example: observations at times 6, 0, 3 (the one at 3 excluded, reason "vial broken") give times [0, 6]…
- * which then throws 'too-few-points'; with a fourth point at 9 the times are [0, 6, 9].
+ * Example: observations at times 6, 0, 3, 9 with the one at 3 excluded (reason "vial broken") give times
+ * [0, 6, 9] and one excluded point with its reason.
  */
 
 export interface ExcludedPoint {

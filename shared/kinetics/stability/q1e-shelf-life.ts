@@ -121,8 +121,8 @@ function fittedLines(
  * `poolability` and `linearLeastSquares`.
  *
  * Example: one batch at 100.1, 99.5, 99.0, 98.6, 98.1 % at 0, 3, 6, 9, 12 months, decreasing,
- * lower limit 95 % on the 'none' scale: the lower 95 % one-sided limit meets 95 at about 26.5
- * months — beyond the 12 months observed, so `beyondObservedData` is true.
+ * lower limit 95 % on the 'none' scale: the lower 95 % one-sided limit meets 95 at 28.73
+ * months (scipy brentq on the same formula agrees) — beyond the 12 months observed, so `beyondObservedData` is true.
  */
 export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShelfLifeOptions): Q1eShelfLife {
   const confidence = options.confidence ?? 0.95;

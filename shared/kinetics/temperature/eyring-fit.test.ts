@@ -74,7 +74,7 @@ describe('eyringFit', () => {
     const difference = arrhenius.activationEnergy - eyring.enthalpyOfActivation.estimate;
     expect(difference).toBeGreaterThan(MOLAR_GAS_CONSTANT * (283 + 273.15));
     expect(difference).toBeLessThan(MOLAR_GAS_CONSTANT * (508 + 273.15));
-    // Same residual scatter direction: both intervals exist with the same degrees of freedom.
+    // Both fits use the same points, so both have n − 2 degrees of freedom and finite intervals.
     expect(eyring.degreesOfFreedom).toBe(arrhenius.degreesOfFreedom);
     expect(eyring.enthalpyOfActivation.interval).not.toBeNull();
     expect(eyring.entropyOfActivation.interval).not.toBeNull();

@@ -1,0 +1,108 @@
+/**
+ * The study form: what an analyst types to describe a stability study, validated the same way in
+ * the browser and on the server (`POST /studies`, `POST /studies/:id`).
+ *
+ * The form arrives as text (a server-rendered form posts strings), so numbers are read from text:
+ * blank means "not given", a decimal comma is accepted ("95,0"), anything else is refused with a
+ * message beside the field. The acceptance criterion needs at least one limit, and a lower limit
+ * below the upper one. Batches are written one per line or separated by commas or semicolons;
+ * repeats are dropped, order is kept.
+ *
+ * Example: `studyFormSchema.parse({ title: 'Long-term 25 °C', product: 'Veltrazine 10 mg',
+ * attribute: 'Assay', unit: '% of label claim', direction: 'decreasing', lowerLimit: '95,0',
+ * batches: 'VZ-001, VZ-002' })` gives `lowerLimit: 95`, `upperLimit: null`,
+ * `batches: ['VZ-001', 'VZ-002']`.
+ */
+import { z } from 'zod';
+
+export const STUDY_DIRECTIONS = ['decreasing', 'increasing', 'either'] as const;
+export const MAX_BATCHES = 100;
+
+function optionalNumber(label: string, minimum: number, maximum: number) {
+  return z.preprocess(
+    (raw) => {
+      if (raw === undefined || raw === null) return null;
+      if (typeof raw === 'number') return raw;
+      const text = String(raw).trim();
+      if (text === '') return null;
+      return /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/.test(text) ? Number(text.replace(',', '.')) : Number.NaN;
+    },
+    z
+      .number({ error: `${label} must be a number, e.g. 95 or 95.5.` })
+      .min(minimum, `${label} must be at least ${minimum}.`)
+      .max(maximum, `${label} must be at most ${maximum}.`)
+      .nullable(),
+  );
+}
+
+const text = (label: string, max: number) =>
+  z
+    .string({ error: `${label} is required.` })
+    .trim()
+    .min(1, `${label} is required.`)
+    .max(max, `${label} can be at most ${max} characters.`);
+
+const batchList = z.preprocess(
+  (raw) => {
+    const items = Array.isArray(raw) ? raw.map(String) : String(raw ?? '').split(/[\n,;]/);
+    return [...new Set(items.map((item) => item.trim()).filter((item) => item !== ''))];
+  },
+  z
+    .array(z.string().max(80, 'A batch name can be at most 80 characters.'))
+    .max(MAX_BATCHES, `At most ${MAX_BATCHES} batches.`),
+);
+
+export const studyFormSchema = z
+  .object({
+    title: text('Title', 200),
+    product: text('Product', 200),
+    attribute: text('Attribute', 120),
+    unit: text('Unit', 60),
+    direction: z.enum(STUDY_DIRECTIONS, { error: 'Choose decreasing, increasing or either.' }),
+    lowerLimit: optionalNumber('Lower limit', -1e12, 1e12),
+    upperLimit: optionalNumber('Upper limit', -1e12, 1e12),
+    storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
+    storageHumidityPercent: optionalNumber('Relative humidity', 0, 100),
+    batches: batchList,
+    notes: z.string().trim().max(4000, 'Notes can be at most 4000 characters.').default(''),
+  })
+  .superRefine((study, context) => {
+    if (study.lowerLimit === null && study.upperLimit === null) {
+      context.addIssue({
+        code: 'custom',
+        path: ['lowerLimit'],
+        message: 'Give a lower limit, an upper limit or both: the acceptance criterion needs at least one.',
+      });
+    }
+    if (study.lowerLimit !== null && study.upperLimit !== null && !(study.lowerLimit < study.upperLimit)) {
+      context.addIssue({ code: 'custom', path: ['upperLimit'], message: 'The upper limit must be above the lower limit.' });
+    }
+  });
+
+export type StudyFormInput = z.input<typeof studyFormSchema>;
+export type StudyInput = z.output<typeof studyFormSchema>;
+
+/** The fields of a study the form edits and the audit trail records, in form order. */
+export const STUDY_FIELDS = [
+  'title',
+  'product',
+  'attribute',
+  'unit',
+  'direction',
+  'lowerLimit',
+  'upperLimit',
+  'storageTemperatureC',
+  'storageHumidityPercent',
+  'batches',
+  'notes',
+] as const satisfies readonly (keyof StudyInput)[];
+
+/** Field name → first message, for showing errors beside each field of the form. */
+export function fieldErrors(error: z.ZodError): Record<string, string> {
+  const errors: Record<string, string> = {};
+  for (const issue of error.issues) {
+    const field = String(issue.path[0] ?? 'form');
+    errors[field] ??= issue.message;
+  }
+  return errors;
+}

@@ -1,0 +1,336 @@
+import { type DerivedFigure, derivedFigure, type ModelSummary, modelSummary } from './derived/model-summary.ts';
+import { type PredictedValue, predictedValue } from './derived/predicted-value.ts';
+import { KineticsError } from './numeric/kinetics-error.ts';
+import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
+import { fitRateLaw, type RateLawFit, type RateLawModel } from './order/fit-rate-law.ts';
+import { type LinearisedFit, linearisedFits } from './order/linearised-fits.ts';
+import { MIN_FRACTION_REACTED } from './order/order-decision-thresholds.ts';
+import { type ExcludedPoint, prepareSeries } from './order/prepare-series.ts';
+import { type ResidualDiagnostics, residualDiagnostics } from './order/residual-diagnostics.ts';
+import { type ModelFits, type OrderSelection, selectOrder } from './order/select-order.ts';
+import { startingValues } from './order/starting-values.ts';
+import type { ErrorModel, IntegerOrder, Series } from './types.ts';
+
+/**
+ * Analyses one degradation series: linearised plots, nonlinear fits of the integrated rate laws of order
+ * 0, 1, 2 and a free order n, the order decision (which abstains when the evidence is thin), the rate
+ * constant with its interval, half-life, t90, time to specification limits, predicted values, residual
+ * diagnostics and warnings — as one JSON-serialisable object (no NaN or Infinity; null = not estimable).
+ *
+ * Convention: −dC/dt = k·Cⁿ (k > 0 for a falling value; unit valueUnit^(1−n)/timeUnit). Steps: prepare the
+ * points (`prepare-series.ts`); fit the straight-line plots (`linearised-fits.ts`); choose the error model
+ * (`choose-error-model.ts`) unless the caller fixes it; fit the four laws on the original scale
+ * (`fit-rate-law.ts`); decide the order (`select-order.ts`); report the derived figures of the named order,
+ * or of the analyst's order when `options.order` is set (as is done in ICH shelf-life work), else none.
+ *
+ * Reference: DOMAIN.md §3 (method) and §5 (laws); each step's file names its own sources.
+ *
+ * Throws `KineticsError`: 'too-few-points' (fewer than 3 usable points), 'single-time' (all at one time),
+ * 'invalid-input' (non-finite numbers, confidence level outside (0, 1), exclusion without reason),
+ * 'non-positive-value' (caller asked for proportional error with a value ≤ 0). A law that cannot be fitted
+ * is reported as not applicable with its reason instead.
+ *
+ * Example: the N2O5 series of DOMAIN.md §4.1 gives selectedOrder 1, k = 6.213e-4 1/s, half-life 1116 s.
+ */
+
+export interface SeriesOptions {
+  confidenceLevel?: number;
+  errorModel?: 'auto' | ErrorModel;
+  lowerLimit?: number;
+  upperLimit?: number;
+  predictAt?: number[];
+  order?: IntegerOrder;
+}
+
+export interface AnalysisWarning {
+  code:
+    | 'low-fraction-reacted'
+    | 'order-not-identified'
+    | 'analyst-order-disfavoured'
+    | 'possible-outliers'
+    | 'systematic-misfit'
+    | 'not-converged'
+    | 'extrapolation';
+  message: string;
+}
+
+export interface SeriesAnalysis {
+  id: string;
+  timeUnit: string;
+  valueUnit: string;
+  n: number;
+  timeSpan: [number, number];
+  excluded: ExcludedPoint[];
+  selectedOrder: IntegerOrder | null;
+  orderSource: 'data' | 'analyst';
+  verdict: string;
+  errorModel: ErrorModel;
+  errorModelChoice: ErrorModelChoice;
+  fractionReacted: number | null;
+  halfLivesCovered: number | null;
+  models: ModelSummary[];
+  linearized: LinearisedFit[];
+  selection: Omit<OrderSelection, 'verdict' | 'selectedOrder'>;
+  /** Derived figures of the reported order (the named or the analyst's order); null otherwise. */
+  reportedOrder: IntegerOrder | null;
+  halfLife: DerivedFigure | null;
+  t90: DerivedFigure | null;
+  derivedReason?: string;
+  timeToLimit?: { lower?: DerivedFigure | null; upper?: DerivedFigure | null };
+  predictions?: PredictedValue[];
+  diagnostics: ResidualDiagnostics | null;
+  warnings: AnalysisWarning[];
+  confidenceLevel: number;
+}
+
+const MODELS: readonly RateLawModel[] = [0, 1, 2, 'n'];
+/** Runs-test level below which the residual pattern is worth a warning (the order decision uses a stricter level). */
+const MISFIT_WARNING_ALPHA = 0.05;
+
+export function analyseSeries(series: Series, options: SeriesOptions = {}): SeriesAnalysis {
+  const confidenceLevel = options.confidenceLevel ?? 0.95;
+  if (!(confidenceLevel > 0 && confidenceLevel < 1)) {
+    throw new KineticsError('invalid-input', `The confidence level must lie between 0 and 1; got ${confidenceLevel}.`);
+  }
+  for (const [name, value] of [
+    ['lowerLimit', options.lowerLimit],
+    ['upperLimit', options.upperLimit],
+    ...(options.predictAt ?? []).map((time) => ['predictAt', time] as const),
+  ] as const) {
+    if (value !== undefined && !Number.isFinite(value)) {
+      throw new KineticsError('invalid-input', `${name} must be a finite number; got ${value}.`, { name, value });
+    }
+  }
+  const prepared = prepareSeries(series);
+  const { times, values } = prepared;
+  const pointCount = times.length;
+  const lastTime = times[pointCount - 1]!;
+  const largestValue = Math.max(...values);
+  const linearised = linearisedFits(times, values, prepared.labels);
+  const allPositive = values.every((value) => value > 0);
+
+  const fits: (RateLawFit | null)[] = [null, null, null, null];
+  const failures: (string | undefined)[] = [undefined, undefined, undefined, undefined];
+  const fitIntegers = (errorModel: ErrorModel): void => {
+    for (const order of [0, 1, 2] as IntegerOrder[]) {
+      const start = startingValues(order, linearised, largestValue);
+      [fits[order], failures[order]] = attempt(() => fitRateLaw(order, times, values, errorModel, start));
+    }
+  };
+  const requested = options.errorModel ?? 'auto';
+  let errorModelChoice: ErrorModelChoice;
+  if (requested === 'auto') {
+    fitIntegers('constant');
+    const bestConstant = lowestRss(fits);
+    const proportional =
+      bestConstant === null || !allPositive
+        ? null
+        : attempt(() =>
+            fitRateLaw(bestConstant.model, times, values, 'proportional', {
+              initialValue: bestConstant.initialValue,
+              rateConstant: bestConstant.rateConstant,
+            }),
+          )[0];
+    errorModelChoice =
+      bestConstant === null
+        ? { ...chooseErrorModel(fits[0]!, null), reason: 'no law could be fitted' }
+        : chooseErrorModel(bestConstant, proportional);
+    if (!allPositive) errorModelChoice.reason = 'some values are not positive, so only constant error can be fitted';
+    if (errorModelChoice.errorModel === 'proportional') fitIntegers('proportional');
+  } else {
+    fitIntegers(requested);
+    errorModelChoice = {
+      errorModel: requested,
+      source: 'caller',
+      logLikelihoodConstant: null,
+      logLikelihoodProportional: null,
+      reason: 'set by the caller',
+    };
+  }
+  const errorModel = errorModelChoice.errorModel;
+  const bestInteger = lowestRss(fits);
+  if (bestInteger !== null) {
+    [fits[3], failures[3]] = attempt(() =>
+      fitRateLaw('n', times, values, errorModel, {
+        initialValue: bestInteger.initialValue,
+        rateConstant: bestInteger.rateConstant,
+        n: bestInteger.n,
+      }),
+    );
+  } else {
+    failures[3] = 'no integer-order law could be fitted to start from';
+  }
+
+  const selection = selectOrder(fits as unknown as ModelFits, times, values, confidenceLevel, series.valueUnit);
+  const units = { valueUnit: series.valueUnit, timeUnit: series.timeUnit };
+  const models = MODELS.map((model, index) =>
+    modelSummary(
+      model,
+      fits[index]!,
+      failures[index],
+      selection.aicc[index]!,
+      selection.weights[index]!,
+      units,
+      confidenceLevel,
+      lastTime,
+    ),
+  );
+
+  const orderSource = options.order === undefined ? 'data' : 'analyst';
+  const reportedOrder = options.order ?? selection.selectedOrder;
+  const reportedFit = reportedOrder === null ? null : fits[reportedOrder]!;
+  const diagnosticFit = reportedFit ?? (selection.bestIntegerOrder === null ? null : fits[selection.bestIntegerOrder]!);
+  const diagnostics = diagnosticFit === null ? null : residualDiagnostics(diagnosticFit, times, values);
+  const figure = (level: { fractionRemaining: number } | { value: number }): DerivedFigure | null =>
+    reportedFit === null ? null : derivedFigure(reportedFit, level, confidenceLevel, series.timeUnit, lastTime);
+
+  const analysis: SeriesAnalysis = {
+    id: series.id,
+    timeUnit: series.timeUnit,
+    valueUnit: series.valueUnit,
+    n: pointCount,
+    timeSpan: [times[0]!, lastTime],
+    excluded: prepared.excluded,
+    selectedOrder: reportedOrder,
+    orderSource,
+    verdict:
+      orderSource === 'analyst'
+        ? `Order fixed by the analyst: ${['zero', 'first', 'second'][options.order!]} order. What the data alone say: ${selection.verdict}`
+        : selection.verdict,
+    errorModel,
+    errorModelChoice,
+    fractionReacted: selection.fractionReacted,
+    halfLivesCovered: selection.halfLivesCovered,
+    models,
+    linearized: linearised,
+    selection: withoutVerdict(selection),
+    reportedOrder,
+    halfLife: figure({ fractionRemaining: 0.5 }),
+    t90: figure({ fractionRemaining: 0.9 }),
+    diagnostics,
+    warnings: [],
+    confidenceLevel,
+  };
+  if (reportedOrder === null) {
+    analysis.derivedReason =
+      'no order is named, so no half-life or t90 is reported; each law’s own figures are under models';
+  } else if (reportedFit === null) {
+    analysis.derivedReason = `the ${['zero', 'first', 'second'][reportedOrder]}-order law could not be fitted: ${failures[reportedOrder]}`;
+  }
+  if (options.lowerLimit !== undefined || options.upperLimit !== undefined) {
+    analysis.timeToLimit = {};
+    if (options.lowerLimit !== undefined) analysis.timeToLimit.lower = figure({ value: options.lowerLimit });
+    if (options.upperLimit !== undefined) analysis.timeToLimit.upper = figure({ value: options.upperLimit });
+  }
+  if (options.predictAt !== undefined && reportedFit !== null) {
+    analysis.predictions = options.predictAt.map((time) => predictedValue(reportedFit, time, confidenceLevel));
+  }
+  analysis.warnings = collectWarnings(analysis, selection, fits, options);
+  return finiteOnly(analysis);
+}
+
+function attempt(fit: () => RateLawFit): [RateLawFit | null, string | undefined] {
+  try {
+    return [fit(), undefined];
+  } catch (error) {
+    if (error instanceof KineticsError) return [null, error.message];
+    throw error;
+  }
+}
+
+function lowestRss(fits: readonly (RateLawFit | null)[]): RateLawFit | null {
+  let best: RateLawFit | null = null;
+  for (const fit of fits.slice(0, 3)) {
+    if (fit !== null && (best === null || fit.residualSumOfSquares < best.residualSumOfSquares)) best = fit;
+  }
+  return best;
+}
+
+function withoutVerdict(selection: OrderSelection): SeriesAnalysis['selection'] {
+  const { verdict: _verdict, selectedOrder: _selected, ...rest } = selection;
+  return rest;
+}
+
+function collectWarnings(
+  analysis: SeriesAnalysis,
+  selection: OrderSelection,
+  fits: readonly (RateLawFit | null)[],
+  options: SeriesOptions,
+): AnalysisWarning[] {
+  const warnings: AnalysisWarning[] = [];
+  const fraction = selection.fractionReacted;
+  if (fraction !== null && fraction >= 0 && fraction < MIN_FRACTION_REACTED) {
+    warnings.push({
+      code: 'low-fraction-reacted',
+      message: `Only ${(fraction * 100).toFixed(1)} % of the initial value has reacted; the reaction order cannot be told from these data.`,
+    });
+  }
+  if (selection.selectedOrder === null && options.order === undefined) {
+    warnings.push({ code: 'order-not-identified', message: selection.verdict });
+  }
+  const best = selection.bestIntegerOrder;
+  if (options.order !== undefined && best !== null && best !== options.order) {
+    const delta = (selection.aicc[options.order] ?? Number.NaN) - (selection.aicc[best] ?? Number.NaN);
+    if (delta >= 10) {
+      warnings.push({
+        code: 'analyst-order-disfavoured',
+        message: `The data favour ${['zero', 'first', 'second'][best]} order over the analyst's order by ΔAICc ${delta.toFixed(1)}.`,
+      });
+    }
+  }
+  const diagnostics = analysis.diagnostics;
+  if (diagnostics !== null && diagnostics.possibleOutliers.length > 0) {
+    const listed = diagnostics.possibleOutliers.slice(0, 10).map((index) => diagnostics.points[index]!.time);
+    warnings.push({
+      code: 'possible-outliers',
+      message: `${diagnostics.possibleOutliers.length} point(s) lie more than ${diagnostics.outlierThreshold} studentised residuals from the curve (times ${listed.join(', ')}${diagnostics.possibleOutliers.length > 10 ? ', …' : ''}); investigate them — none was excluded.`,
+    });
+  }
+  if (diagnostics !== null && diagnostics.runsTest.p < MISFIT_WARNING_ALPHA) {
+    warnings.push({
+      code: 'systematic-misfit',
+      message: `The residuals of the ${diagnostics.model === 'n' ? 'free' : diagnostics.model}-order fit run in long stretches (runs test p = ${diagnostics.runsTest.p.toPrecision(2)}), a sign that the law misses the shape of the curve.`,
+    });
+  }
+  fits.forEach((fit, index) => {
+    if (fit !== null && !fit.converged) {
+      warnings.push({
+        code: 'not-converged',
+        message: `The ${index === 3 ? 'free' : index}-order fit did not converge: ${fit.reason}.`,
+      });
+    }
+  });
+  const last = analysis.timeSpan[1];
+  const beyond: string[] = [];
+  if (analysis.halfLife?.beyondObservedTime) beyond.push('the half-life');
+  if (analysis.t90?.beyondObservedTime) beyond.push('t90');
+  if (analysis.timeToLimit?.lower?.beyondObservedTime) beyond.push('the time to the lower limit');
+  if (analysis.timeToLimit?.upper?.beyondObservedTime) beyond.push('the time to the upper limit');
+  const outside = (analysis.predictions ?? []).filter((p) => p.time > last || p.time < analysis.timeSpan[0]);
+  if (outside.length > 0) beyond.push(`predictions at ${outside.map((p) => p.time).join(', ')}`);
+  if (beyond.length > 0) {
+    warnings.push({
+      code: 'extrapolation',
+      message: `${beyond.join(', ')} lie(s) outside the observed time span (${analysis.timeSpan[0]} to ${last} ${analysis.timeUnit}); the law is extrapolated.`,
+    });
+  }
+  return warnings;
+}
+
+/** Replaces any non-finite number by null, so the result serialises to JSON without loss. */
+function finiteOnly<T>(value: T): T {
+  const visit = (item: unknown): unknown => {
+    if (typeof item === 'number') return Number.isFinite(item) ? item : null;
+    if (Array.isArray(item)) {
+      for (let i = 0; i < item.length; i++) item[i] = visit(item[i]);
+      return item;
+    }
+    if (item !== null && typeof item === 'object') {
+      const record = item as Record<string, unknown>;
+      for (const key of Object.keys(record)) record[key] = visit(record[key]);
+      return record;
+    }
+    return item;
+  };
+  return visit(value) as T;
+}
