@@ -11,6 +11,9 @@ import { apiRoutes } from './routes/api-routes.ts';
 import { authRoutes } from './routes/auth-routes.ts';
 import { healthRoutes } from './routes/health-routes.ts';
 import { pageRoutes } from './routes/page-routes.ts';
+import { reportRoutes } from './routes/report-routes.ts';
+import { studyRoutes } from './routes/study-routes.ts';
+import { uploadRoutes } from './routes/upload-routes.ts';
 import type { AppOptions, AppServices } from './services/app-services.ts';
 import { CLIENT_DIST, readClientAssets } from './web/assets.ts';
 import { createViewEngine, VIEWS_DIR } from './web/view-engine.ts';
@@ -96,6 +99,9 @@ export function createApp(
   app.use(authRoutes(services));
   app.use(pageRoutes(services));
   app.use(apiRoutes(services));
+  app.use(reportRoutes(services));
+  app.use(studyRoutes(services));
+  app.use(uploadRoutes(services));
 
   app.use(notFound);
   app.use(errorHandler);

@@ -3,6 +3,7 @@ import { createApp } from './app.ts';
 import { parseEnvironment } from './config/env.ts';
 import { openDatabase } from './db/client.ts';
 import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
+import { startInProcessRenderWorker } from './jobs/in-process-worker.ts';
 
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
 const environment = parseEnvironment();
@@ -19,12 +20,16 @@ const server: Server = app.listen(environment.PORT, environment.HOST, () => {
   console.log('Press Ctrl-C to stop.\n');
 });
 
+// Renders reports in this process too unless RENDER_WORKER=off (then only `npm run worker` does).
+const renderWorker = startInProcessRenderWorker(database, environment.DATABASE_URL);
+
 let stopping = false;
 async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
   console.log(`[rateledger] ${signal}: stopping`);
   server.close(async () => {
+    await renderWorker.close();
     await database.close();
     process.exit(0);
   });

@@ -55,7 +55,12 @@ export async function findStudy(db: Executor, organisationId: number, studyId: n
   return study;
 }
 
-export async function createStudy(db: Database, actor: SessionUser, input: StudyInput, context: AuditContext) {
+export async function createStudy(
+  db: Database,
+  actor: SessionUser,
+  input: StudyInput,
+  context: AuditContext,
+) {
   return db.transaction(async (tx) => {
     const [study] = await tx
       .insert(studies)
@@ -166,4 +171,3 @@ export async function studyOverview(db: Executor, organisationId: number, studyI
     runs: runRows,
   };
 }
-

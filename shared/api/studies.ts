@@ -25,7 +25,9 @@ function optionalNumber(label: string, minimum: number, maximum: number) {
       if (typeof raw === 'number') return raw;
       const text = String(raw).trim();
       if (text === '') return null;
-      return /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/.test(text) ? Number(text.replace(',', '.')) : Number.NaN;
+      return /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/.test(text)
+        ? Number(text.replace(',', '.'))
+        : Number.NaN;
     },
     z
       .number({ error: `${label} must be a number, e.g. 95 or 95.5.` })
@@ -52,6 +54,16 @@ const batchList = z.preprocess(
     .max(MAX_BATCHES, `At most ${MAX_BATCHES} batches.`),
 );
 
+const limitsSchema = z.object({
+  lowerLimit: optionalNumber('Lower limit', -1e12, 1e12),
+  upperLimit: optionalNumber('Upper limit', -1e12, 1e12),
+});
+
+/** Run the criterion checks whenever both limits read as numbers, even if other fields failed. */
+const whenLimitsRead = {
+  when: (payload: { value: unknown }) => limitsSchema.safeParse(payload.value).success,
+};
+
 export const studyFormSchema = z
   .object({
     title: text('Title', 200),
@@ -59,24 +71,21 @@ export const studyFormSchema = z
     attribute: text('Attribute', 120),
     unit: text('Unit', 60),
     direction: z.enum(STUDY_DIRECTIONS, { error: 'Choose decreasing, increasing or either.' }),
-    lowerLimit: optionalNumber('Lower limit', -1e12, 1e12),
-    upperLimit: optionalNumber('Upper limit', -1e12, 1e12),
+    ...limitsSchema.shape,
     storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
     storageHumidityPercent: optionalNumber('Relative humidity', 0, 100),
     batches: batchList,
     notes: z.string().trim().max(4000, 'Notes can be at most 4000 characters.').default(''),
   })
-  .superRefine((study, context) => {
-    if (study.lowerLimit === null && study.upperLimit === null) {
-      context.addIssue({
-        code: 'custom',
-        path: ['lowerLimit'],
-        message: 'Give a lower limit, an upper limit or both: the acceptance criterion needs at least one.',
-      });
-    }
-    if (study.lowerLimit !== null && study.upperLimit !== null && !(study.lowerLimit < study.upperLimit)) {
-      context.addIssue({ code: 'custom', path: ['upperLimit'], message: 'The upper limit must be above the lower limit.' });
-    }
+  .refine((study) => study.lowerLimit !== null || study.upperLimit !== null, {
+    path: ['lowerLimit'],
+    message: 'Give a lower limit, an upper limit or both: the acceptance criterion needs at least one.',
+    ...whenLimitsRead,
+  })
+  .refine((study) => study.lowerLimit === null || study.upperLimit === null || study.lowerLimit < study.upperLimit, {
+    path: ['upperLimit'],
+    message: 'The upper limit must be above the lower limit.',
+    ...whenLimitsRead,
   });
 
 export type StudyFormInput = z.input<typeof studyFormSchema>;
@@ -106,3 +115,10 @@ export function fieldErrors(error: z.ZodError): Record<string, string> {
   }
   return errors;
 }
+
+/** A record id in a path (`/studies/:studyId`). */
+export const recordIdSchema = z.coerce
+  .number({ error: 'The id in the address must be a number.' })
+  .int('The id in the address must be a whole number.')
+  .positive('The id in the address must be a positive number.')
+  .max(2_147_483_647, 'The id in the address is too large.');

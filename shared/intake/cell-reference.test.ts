@@ -14,7 +14,8 @@ describe('cell references', () => {
   });
 
   it('reads letters back to the index', () => {
-    for (const index of [0, 1, 25, 26, 51, 52, 701, 702, 16383]) expect(columnIndex(columnLetter(index))).toBe(index);
+    for (const index of [0, 1, 25, 26, 51, 52, 701, 702, 16383])
+      expect(columnIndex(columnLetter(index))).toBe(index);
     expect(columnIndex('xfd')).toBe(16383);
   });
 

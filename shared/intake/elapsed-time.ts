@@ -28,7 +28,8 @@ function addCalendarMonths(start: Date, months: number): number {
 }
 
 function calendarMonths(start: Date, end: Date): number {
-  let whole = (end.getUTCFullYear() - start.getUTCFullYear()) * 12 + (end.getUTCMonth() - start.getUTCMonth());
+  let whole =
+    (end.getUTCFullYear() - start.getUTCFullYear()) * 12 + (end.getUTCMonth() - start.getUTCMonth());
   while (whole > 0 && addCalendarMonths(start, whole) > end.getTime()) whole -= 1;
   while (addCalendarMonths(start, whole + 1) <= end.getTime()) whole += 1;
   const from = addCalendarMonths(start, whole);

@@ -33,15 +33,24 @@ describe('parseDateCell', () => {
   it('reads ISO 8601 and dotted day.month.year dates as UTC wall-clock times (ISO 8601-1:2019)', () => {
     expect(parseDateCell('2024-03-15')).toEqual({ ok: true, value: new Date('2024-03-15T00:00:00Z') });
     expect(parseDateCell('2024-03-15 14:30')).toEqual({ ok: true, value: new Date('2024-03-15T14:30:00Z') });
-    expect(parseDateCell('2024-03-15T14:30:05')).toEqual({ ok: true, value: new Date('2024-03-15T14:30:05Z') });
+    expect(parseDateCell('2024-03-15T14:30:05')).toEqual({
+      ok: true,
+      value: new Date('2024-03-15T14:30:05Z'),
+    });
     expect(parseDateCell('15.03.2024')).toEqual({ ok: true, value: new Date('2024-03-15T00:00:00Z') });
     const date = new Date('2023-11-02T08:00:00Z');
     expect(parseDateCell(date)).toEqual({ ok: true, value: date });
   });
 
   it('refuses slash dates and impossible dates with a hint', () => {
-    expect(parseDateCell('03/04/2024')).toMatchObject({ ok: false, reason: expect.stringMatching(/slash dates/) });
-    expect(parseDateCell('2023-02-29')).toMatchObject({ ok: false, reason: expect.stringMatching(/not a valid calendar date/) });
+    expect(parseDateCell('03/04/2024')).toMatchObject({
+      ok: false,
+      reason: expect.stringMatching(/slash dates/),
+    });
+    expect(parseDateCell('2023-02-29')).toMatchObject({
+      ok: false,
+      reason: expect.stringMatching(/not a valid calendar date/),
+    });
     expect(parseDateCell('soon')).toMatchObject({ ok: false, blank: false });
     expect(parseDateCell(null)).toMatchObject({ ok: false, blank: true });
   });

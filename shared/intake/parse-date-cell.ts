@@ -12,8 +12,9 @@
  *
  * Example: `parseDateCell('15.03.2024')` is `{ ok: true, value: new Date('2024-03-15T00:00:00Z') }`.
  */
-import { type GridCell, isBlankCell, isFormulaWithoutValue } from './sheet-grid.ts';
+
 import { FORMULA_WITHOUT_VALUE_REASON } from './parse-number-cell.ts';
+import { type GridCell, isBlankCell, isFormulaWithoutValue } from './sheet-grid.ts';
 
 export type DateCellResult = { ok: true; value: Date } | { ok: false; blank: boolean; reason: string };
 
@@ -31,7 +32,9 @@ export function parseDateCell(cell: GridCell | undefined): DateCellResult {
   if (isBlankCell(cell)) return { ok: false, blank: true, reason: 'is empty' };
   if (isFormulaWithoutValue(cell)) return { ok: false, blank: false, reason: FORMULA_WITHOUT_VALUE_REASON };
   if (cell instanceof Date) {
-    return Number.isNaN(cell.getTime()) ? { ok: false, blank: false, reason: 'is not a valid date' } : { ok: true, value: cell };
+    return Number.isNaN(cell.getTime())
+      ? { ok: false, blank: false, reason: 'is not a valid date' }
+      : { ok: true, value: cell };
   }
   const text = String(cell).trim();
   const iso = ISO_PATTERN.exec(text);

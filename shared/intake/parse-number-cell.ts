@@ -31,7 +31,8 @@ export function parseNumberCell(cell: GridCell | undefined): NumberCellResult {
       ? { ok: true, value: cell }
       : { ok: false, blank: false, reason: `${cell} is not a finite number` };
   }
-  if (typeof cell === 'boolean') return { ok: false, blank: false, reason: `${cell ? 'TRUE' : 'FALSE'} is not a number` };
+  if (typeof cell === 'boolean')
+    return { ok: false, blank: false, reason: `${cell ? 'TRUE' : 'FALSE'} is not a number` };
   if (cell instanceof Date) return { ok: false, blank: false, reason: 'is a date, not a number' };
   const text = String(cell).trim().replace(/\s+/g, '');
   if (NUMBER_PATTERN.test(text)) {

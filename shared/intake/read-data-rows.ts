@@ -49,13 +49,18 @@ export interface DataRowsResult {
 
 function cellAt(sheet: SheetGrid, rowIndex: number, column: number): GridCell | undefined {
   const merge = sheet.merges?.find(
-    (range) => range.top <= rowIndex && rowIndex <= range.bottom && range.left <= column && column <= range.right,
+    (range) =>
+      range.top <= rowIndex && rowIndex <= range.bottom && range.left <= column && column <= range.right,
   );
   if (merge) return sheet.rows[merge.top]?.[merge.left];
   return sheet.rows[rowIndex]?.[column];
 }
 
-export function readDataRows(sheet: SheetGrid, mapping: ColumnMapping, columns: MappedColumns): DataRowsResult {
+export function readDataRows(
+  sheet: SheetGrid,
+  mapping: ColumnMapping,
+  columns: MappedColumns,
+): DataRowsResult {
   const rows: DataRow[] = [];
   const problems: IntakeProblem[] = [];
   const warnings: IntakeProblem[] = [];
@@ -66,11 +71,13 @@ export function readDataRows(sheet: SheetGrid, mapping: ColumnMapping, columns: 
     const cell = (column: number) => cellAt(sheet, rowIndex, column);
     if (mapped.every((column) => isBlankCell(cell(column)))) continue;
     const rowProblems: IntakeProblem[] = [];
-    const report = (column: number, message: string) => rowProblems.push(intakeProblem(reference(rowIndex, column), message));
+    const report = (column: number, message: string) =>
+      rowProblems.push(intakeProblem(reference(rowIndex, column), message));
 
     const timeCell = cell(columns.time);
     const valueCell = cell(columns.value);
-    const timeResult = mapping.timeFormat === 'datetime' ? parseDateCell(timeCell) : parseNumberCell(timeCell);
+    const timeResult =
+      mapping.timeFormat === 'datetime' ? parseDateCell(timeCell) : parseNumberCell(timeCell);
     const valueResult = parseNumberCell(valueCell);
     if (!valueResult.ok && valueResult.blank && timeResult.ok) {
       warnings.push(intakeProblem(reference(rowIndex, columns.value), 'no value; row skipped'));
@@ -78,8 +85,13 @@ export function readDataRows(sheet: SheetGrid, mapping: ColumnMapping, columns: 
     }
     if (!timeResult.ok) {
       const dateHint =
-        mapping.timeFormat === 'elapsed' && timeCell instanceof Date ? ' (this column holds dates: choose the date-time format)' : '';
-      report(columns.time, timeResult.blank ? 'no time given for this value' : `${timeResult.reason}${dateHint}`);
+        mapping.timeFormat === 'elapsed' && timeCell instanceof Date
+          ? ' (this column holds dates: choose the date-time format)'
+          : '';
+      report(
+        columns.time,
+        timeResult.blank ? 'no time given for this value' : `${timeResult.reason}${dateHint}`,
+      );
     } else if (typeof timeResult.value === 'number' && timeResult.value < 0) {
       report(columns.time, `time ${timeResult.value} is negative; times are elapsed since the first sample`);
     }
@@ -105,7 +117,10 @@ export function readDataRows(sheet: SheetGrid, mapping: ColumnMapping, columns: 
       if (!temperature.ok) {
         report(columns.temperature, temperature.blank ? 'no temperature given' : temperature.reason);
       } else if (temperature.value < (mapping.temperatureUnit === 'K' ? 0 : -273.15)) {
-        report(columns.temperature, `${temperature.value} ${mapping.temperatureUnit === 'K' ? 'K' : '°C'} is below absolute zero`);
+        report(
+          columns.temperature,
+          `${temperature.value} ${mapping.temperatureUnit === 'K' ? 'K' : '°C'} is below absolute zero`,
+        );
       } else {
         temperatureC = toCelsius(temperature.value, mapping.temperatureUnit);
       }

@@ -14,7 +14,10 @@ describe('seriesFromGrid', () => {
       name: 'Sheet1',
       rows: [['Month', 'Assay (%)'], [6, '97,9'], [0, 100.1], [3, 98.8], [0, '100,3'], [], [null, '  ']],
     };
-    const result = seriesFromGrid([sheet], mapping({ timeColumn: 'month', timeUnit: 'month', valueColumn: 'Assay (%)' }));
+    const result = seriesFromGrid(
+      [sheet],
+      mapping({ timeColumn: 'month', timeUnit: 'month', valueColumn: 'Assay (%)' }),
+    );
     expect(result.ok).toBe(true);
     if (!result.ok) return;
     expect(result.series).toHaveLength(1);
@@ -59,7 +62,15 @@ describe('seriesFromGrid', () => {
   });
 
   it('skips a planned pull point without a result, with a warning', () => {
-    const sheet: SheetGrid = { name: 'Sheet1', rows: [['t', 'y'], [0, 100], [3, 99], [6, null]] };
+    const sheet: SheetGrid = {
+      name: 'Sheet1',
+      rows: [
+        ['t', 'y'],
+        [0, 100],
+        [3, 99],
+        [6, null],
+      ],
+    };
     const result = seriesFromGrid([sheet], mapping({ timeColumn: 't', timeUnit: 'month', valueColumn: 'y' }));
     expect(result.ok && result.series[0]?.observations).toHaveLength(2);
     expect(result.warnings.map((warning) => warning.text)).toEqual(['Sheet1!B4: no value; row skipped']);
@@ -90,7 +101,7 @@ describe('seriesFromGrid', () => {
     expect(result.series.map((series) => [series.id, series.batch, series.temperatureC])).toEqual([
       ['VZ-001 @ 25 °C', 'VZ-001', 25],
       ['VZ-001 @ 40 °C', 'VZ-001', 40],
-      ['VZ-002', 'VZ-002', 40],
+      ['VZ-002 @ 40 °C', 'VZ-002', 40],
     ]);
   });
 
@@ -112,7 +123,13 @@ describe('seriesFromGrid', () => {
   });
 
   it('asks for the date-time format when an elapsed-time column holds dates', () => {
-    const sheet: SheetGrid = { name: 'S', rows: [['t', 'y'], [new Date('2024-01-01'), 100]] };
+    const sheet: SheetGrid = {
+      name: 'S',
+      rows: [
+        ['t', 'y'],
+        [new Date('2024-01-01'), 100],
+      ],
+    };
     const result = seriesFromGrid([sheet], mapping({ timeColumn: 't', timeUnit: 'd', valueColumn: 'y' }));
     expect(!result.ok && result.problems[0]?.text).toBe(
       'S!A2: is a date, not a number (this column holds dates: choose the date-time format)',
@@ -133,29 +150,56 @@ describe('seriesFromGrid', () => {
         { top: 0, left: 1, bottom: 0, right: 2 },
       ],
     };
-    const result = seriesFromGrid([sheet], mapping({ headerRow: 2, timeColumn: 'time (h)', timeUnit: 'h', valueColumn: 'Assay' }));
+    const result = seriesFromGrid(
+      [sheet],
+      mapping({ headerRow: 2, timeColumn: 'time (h)', timeUnit: 'h', valueColumn: 'Assay' }),
+    );
     expect(result.ok && result.series[0]?.observations.map((o) => o.value)).toEqual([100.0, 99.1]);
 
     const replicates: SheetGrid = {
       name: 'Sheet1',
-      rows: [['Batch', 't', 'y'], ['VZ-003', 0, 100.2], [null, 0, 99.9], [null, 1, 99.0]],
+      rows: [
+        ['Batch', 't', 'y'],
+        ['VZ-003', 0, 100.2],
+        [null, 0, 99.9],
+        [null, 1, 99.0],
+      ],
       merges: [{ top: 1, left: 0, bottom: 3, right: 0 }],
     };
     const grouped = seriesFromGrid(
       [replicates],
       mapping({ timeColumn: 't', timeUnit: 'month', valueColumn: 'y', seriesColumn: 'Batch' }),
     );
-    expect(grouped.ok && grouped.series.map((series) => [series.id, series.observations.length])).toEqual([['VZ-003', 3]]);
+    expect(grouped.ok && grouped.series.map((series) => [series.id, series.observations.length])).toEqual([
+      ['VZ-003', 3],
+    ]);
   });
 
   it('reads columns by letter when there is no header row', () => {
-    const sheet: SheetGrid = { name: 'raw', rows: [[0, 'x', 1.0], [10, 'x', 0.9]] };
-    const result = seriesFromGrid([sheet], mapping({ headerRow: 0, timeColumn: 'A', timeUnit: 's', valueColumn: 'c' }));
+    const sheet: SheetGrid = {
+      name: 'raw',
+      rows: [
+        [0, 'x', 1.0],
+        [10, 'x', 0.9],
+      ],
+    };
+    const result = seriesFromGrid(
+      [sheet],
+      mapping({ headerRow: 0, timeColumn: 'A', timeUnit: 's', valueColumn: 'c' }),
+    );
     expect(result.ok && result.series[0]?.observations.map((o) => o.value)).toEqual([1.0, 0.9]);
   });
 
   it('reports a repeated replicate label at one time', () => {
-    const sheet: SheetGrid = { name: 'S', rows: [['t', 'y', 'rep'], [0, 100, 1], [0, 99.8, 1], [0, 99.9, 2]] };
+    const sheet: SheetGrid = {
+      name: 'S',
+      rows: [
+        ['t', 'y', 'rep'],
+        [0, 100, 1],
+        [0, 99.8, 1],
+        [0, 99.9, 2],
+      ],
+    };
     const result = seriesFromGrid(
       [sheet],
       mapping({ timeColumn: 't', timeUnit: 'd', valueColumn: 'y', replicateColumn: 'rep' }),
@@ -167,8 +211,17 @@ describe('seriesFromGrid', () => {
 
   it('explains sheet-level problems: missing sheet, empty sheet, unknown or ambiguous header', () => {
     const base = mapping({ timeColumn: 'Time', timeUnit: 'd', valueColumn: 'Assay' });
-    const good: SheetGrid = { name: 'Data', rows: [['Time', 'Assay', 'Assay'], [0, 1, 1]] };
-    expect(seriesFromGrid([], base)).toMatchObject({ ok: false, problems: [{ text: 'the file has no sheets' }] });
+    const good: SheetGrid = {
+      name: 'Data',
+      rows: [
+        ['Time', 'Assay', 'Assay'],
+        [0, 1, 1],
+      ],
+    };
+    expect(seriesFromGrid([], base)).toMatchObject({
+      ok: false,
+      problems: [{ text: 'the file has no sheets' }],
+    });
     expect(seriesFromGrid([good], { ...base, sheet: 'Other' })).toMatchObject({
       ok: false,
       problems: [{ text: 'no sheet named "Other" (sheets: Data)' }],
@@ -179,20 +232,37 @@ describe('seriesFromGrid', () => {
     });
     expect(seriesFromGrid([good], base)).toMatchObject({
       ok: false,
-      problems: [{ text: 'Data: value column: the header "Assay" appears in columns B and C; name the column by its letter' }],
+      problems: [
+        {
+          text: 'Data: value column: the header "Assay" appears in columns B and C; name the column by its letter',
+        },
+      ],
     });
     expect(seriesFromGrid([good], { ...base, valueColumn: 'Potency' })).toMatchObject({
       ok: false,
-      problems: [{ text: 'Data: value column: no column headed "Potency" in header row 1 (headers: Time, Assay, Assay)' }],
+      problems: [
+        {
+          text: 'Data: value column: no column headed "Potency" in header row 1 (headers: Time, Assay, Assay)',
+        },
+      ],
     });
-    expect(seriesFromGrid([{ name: 'Data', rows: [['Time', 'Assay']] }], { ...base, valueColumn: 'B' })).toMatchObject({
+    expect(
+      seriesFromGrid([{ name: 'Data', rows: [['Time', 'Assay']] }], { ...base, valueColumn: 'B' }),
+    ).toMatchObject({
       ok: false,
       problems: [{ text: 'Data: no data rows below header row 1' }],
     });
   });
 
   it('refuses negative times and temperatures below absolute zero', () => {
-    const sheet: SheetGrid = { name: 'S', rows: [['t', 'y', 'T'], [-1, 100, 25], [1, 99, -300]] };
+    const sheet: SheetGrid = {
+      name: 'S',
+      rows: [
+        ['t', 'y', 'T'],
+        [-1, 100, 25],
+        [1, 99, -300],
+      ],
+    };
     const result = seriesFromGrid(
       [sheet],
       mapping({ timeColumn: 't', timeUnit: 'd', valueColumn: 'y', temperatureColumn: 'T' }),

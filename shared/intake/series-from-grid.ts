@@ -9,7 +9,7 @@
  * list of problems with cell references, so a file is fixed in one pass rather than one error at
  * a time.
  *
- * Series ids: the batch name; "batch @ 40 °C" when one batch appears at several temperatures;
+ * Series ids: the batch name; "batch @ 40 °C" when the sheet holds several temperatures;
  * "40 °C" when only a temperature column is mapped; the value column's header otherwise.
  *
  * Never throws; returns `{ ok: false, problems }` instead.
@@ -35,7 +35,11 @@ function formatTemperature(celsius: number): string {
   return `${Number(celsius.toFixed(2))} °C`;
 }
 
-function findColumns(sheet: SheetGrid, mapping: ColumnMapping, problems: IntakeProblem[]): MappedColumns | null {
+function findColumns(
+  sheet: SheetGrid,
+  mapping: ColumnMapping,
+  problems: IntakeProblem[],
+): MappedColumns | null {
   const where = sheetPrefix(sheet.name);
   const find = (name: string | undefined, role: string): number | undefined => {
     if (name === undefined) return undefined;
@@ -64,18 +68,13 @@ function findColumns(sheet: SheetGrid, mapping: ColumnMapping, problems: IntakeP
 }
 
 function groupRows(rows: DataRow[], fallbackId: string): Map<string, DataRow[]> {
-  const temperaturesByLabel = new Map<string, Set<number>>();
-  for (const row of rows) {
-    const set = temperaturesByLabel.get(row.seriesLabel ?? '') ?? new Set<number>();
-    if (row.temperatureC !== undefined) set.add(row.temperatureC);
-    temperaturesByLabel.set(row.seriesLabel ?? '', set);
-  }
+  const temperatures = new Set(rows.map((row) => row.temperatureC).filter((value) => value !== undefined));
   const groups = new Map<string, DataRow[]>();
   for (const row of rows) {
     const label = row.seriesLabel;
     const temperature = row.temperatureC === undefined ? undefined : formatTemperature(row.temperatureC);
     let id: string;
-    if (label !== undefined && temperature !== undefined && (temperaturesByLabel.get(label)?.size ?? 0) > 1) {
+    if (label !== undefined && temperature !== undefined && temperatures.size > 1) {
       id = `${label} @ ${temperature}`;
     } else if (label !== undefined) id = label;
     else if (temperature !== undefined) id = temperature;
@@ -91,11 +90,16 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
   const dates = rows.flatMap((row) => (row.time instanceof Date ? [row.time.getTime()] : []));
   const start = dates.length > 0 ? new Date(Math.min(...dates)) : undefined;
   const observations: Observation[] = rows.map((row) => ({
-    time: row.time instanceof Date && start ? elapsedTime(start, row.time, mapping.timeUnit) : (row.time as number),
+    time:
+      row.time instanceof Date && start
+        ? elapsedTime(start, row.time, mapping.timeUnit)
+        : (row.time as number),
     value: row.value,
     source: { row: row.rowIndex + 1, cell: row.valueCell },
   }));
-  const order = observations.map((_, index) => index).sort((a, b) => observations[a]!.time - observations[b]!.time);
+  const order = observations
+    .map((_, index) => index)
+    .sort((a, b) => observations[a]!.time - observations[b]!.time);
   if (mapping.replicateColumn !== undefined) {
     const seen = new Map<string, DataRow>();
     for (const row of rows) {
@@ -103,7 +107,10 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
       const earlier = seen.get(key);
       if (earlier) {
         problems.push(
-          intakeProblem(row.valueCell, `replicate "${row.replicateLabel}" at this time already given in row ${earlier.rowIndex + 1}`),
+          intakeProblem(
+            row.valueCell,
+            `replicate "${row.replicateLabel}" at this time already given in row ${earlier.rowIndex + 1}`,
+          ),
         );
       } else seen.set(key, row);
     }
@@ -123,11 +130,17 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
 
 export function seriesFromGrid(sheets: readonly SheetGrid[], mapping: ColumnMapping): IntakeResult {
   const problems: IntakeProblem[] = [];
-  if (sheets.length === 0) return { ok: false, problems: [intakeProblem(undefined, 'the file has no sheets')], warnings: [] };
-  const sheet = mapping.sheet === undefined ? sheets[0] : sheets.find((candidate) => candidate.name === mapping.sheet);
+  if (sheets.length === 0)
+    return { ok: false, problems: [intakeProblem(undefined, 'the file has no sheets')], warnings: [] };
+  const sheet =
+    mapping.sheet === undefined ? sheets[0] : sheets.find((candidate) => candidate.name === mapping.sheet);
   if (!sheet) {
     const names = sheets.map((candidate) => candidate.name).join(', ');
-    return { ok: false, problems: [intakeProblem(undefined, `no sheet named "${mapping.sheet}" (sheets: ${names})`)], warnings: [] };
+    return {
+      ok: false,
+      problems: [intakeProblem(undefined, `no sheet named "${mapping.sheet}" (sheets: ${names})`)],
+      warnings: [],
+    };
   }
   const where = sheetPrefix(sheet.name);
   if (sheet.rows.every((row) => row.every((cell) => isBlankCell(cell)))) {
@@ -145,7 +158,9 @@ export function seriesFromGrid(sheets: readonly SheetGrid[], mapping: ColumnMapp
     problems.push(intakeProblem(where, `no data rows below header row ${mapping.headerRow}`));
   }
   const fallbackId = headerTexts(sheet, mapping.headerRow)[columns.value] || sheet.name;
-  const series = [...groupRows(read.rows, fallbackId)].map(([id, rows]) => buildSeries(id, rows, mapping, problems));
+  const series = [...groupRows(read.rows, fallbackId)].map(([id, rows]) =>
+    buildSeries(id, rows, mapping, problems),
+  );
   if (problems.length > 0) return { ok: false, problems, warnings: read.warnings };
   return { ok: true, series, warnings: read.warnings };
 }

@@ -36,7 +36,9 @@ export interface SheetGrid {
 
 /** True for the marker a reader leaves where a formula has no stored result. */
 export function isFormulaWithoutValue(cell: GridCell | undefined): cell is FormulaWithoutValue {
-  return typeof cell === 'object' && cell !== null && !(cell instanceof Date) && 'formulaWithoutValue' in cell;
+  return (
+    typeof cell === 'object' && cell !== null && !(cell instanceof Date) && 'formulaWithoutValue' in cell
+  );
 }
 
 /** True for an empty cell: null, missing, or text that is only white space. */

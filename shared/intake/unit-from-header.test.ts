@@ -1,5 +1,10 @@
 import { describe, expect, it } from 'vitest';
-import { temperatureUnitFromHeader, timeUnitFromHeader, unitTextOfHeader, valueUnitFromHeader } from './unit-from-header.ts';
+import {
+  temperatureUnitFromHeader,
+  timeUnitFromHeader,
+  unitTextOfHeader,
+  valueUnitFromHeader,
+} from './unit-from-header.ts';
 
 // Header conventions: "quantity (unit)" and "quantity / unit" (ISO 80000-1:2022 §7.1, the
 // quantity-calculus form for table headings); bare unit words as headers are common practice.

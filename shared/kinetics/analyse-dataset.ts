@@ -1,4 +1,4 @@
-import { type SeriesAnalysis, type SeriesOptions, analyseSeries } from './analyse-series.ts';
+import { analyseSeries, type SeriesAnalysis, type SeriesOptions } from './analyse-series.ts';
 import { type MethodStatement, methodStatement } from './method-statement.ts';
 import { KineticsError, type KineticsErrorCode } from './numeric/kinetics-error.ts';
 import { type Q1eShelfLife, q1eShelfLife } from './stability/q1e-shelf-life.ts';
@@ -145,7 +145,14 @@ function poolTemperature(temperatureC: number, points: { id: string; k: number; 
   const lnKs = points.map((point) => Math.log(point.k));
   if (points.length === 1) {
     const [point] = points as [(typeof points)[number]];
-    return { temperatureC, k: point.k, kStandardError: point.se, lnK: lnKs[0] as number, seriesIds: [point.id], pooling: 'single-series' as const };
+    return {
+      temperatureC,
+      k: point.k,
+      kStandardError: point.se,
+      lnK: lnKs[0] as number,
+      seriesIds: [point.id],
+      pooling: 'single-series' as const,
+    };
   }
   const weighted = points.every((point) => point.se !== null && point.se > 0);
   const weights = points.map((point) => (weighted ? (point.k / (point.se as number)) ** 2 : 1));
@@ -162,17 +169,15 @@ function poolTemperature(temperatureC: number, points: { id: string; k: number; 
   };
 }
 
-function transformedInterval(constant: number, ci: [number, number] | null): { estimate: number; ci: [number, number] | null } | null {
-  return null === ci ? null : { estimate: Number.NaN, ci: [constant / ci[1], constant / ci[0]] };
-}
-
 function datasetArrhenius(
   results: readonly SeriesResult[],
   seriesList: readonly Series[],
   options: DatasetOptions,
   warnings: DatasetWarning[],
 ): DatasetArrhenius | null {
-  const temperatures = new Set(results.flatMap((result) => (result.temperatureC === null ? [] : [result.temperatureC])));
+  const temperatures = new Set(
+    results.flatMap((result) => (result.temperatureC === null ? [] : [result.temperatureC])),
+  );
   if (temperatures.size < 2) return null;
   const { order, source, totals } = commonOrder(results, options.order);
   const first = seriesList[0];
@@ -192,7 +197,11 @@ function datasetArrhenius(
       'no common reaction order: no series had enough points to compare the orders; fix the order to fit Arrhenius';
     return base;
   }
-  const named = new Set(results.flatMap((result) => (result.analysis?.selectedOrder == null ? [] : [result.analysis.selectedOrder])));
+  const named = new Set(
+    results.flatMap((result) =>
+      result.analysis?.selectedOrder == null ? [] : [result.analysis.selectedOrder],
+    ),
+  );
   if (source === 'data' && [...named].some((other) => other !== order)) {
     warnings.push({
       code: 'order-disagreement',
@@ -209,16 +218,24 @@ function datasetArrhenius(
     if (!result.analysis || !model) {
       base.excludedSeries.push({ id: result.id, reason: result.error?.message ?? 'not analysed' });
     } else if (model.k === null || !model.applicable) {
-      base.excludedSeries.push({ id: result.id, reason: `the ${ORDER_WORDS[order]}-order law could not be fitted: ${model.reason ?? 'no k'}` });
+      base.excludedSeries.push({
+        id: result.id,
+        reason: `the ${ORDER_WORDS[order]}-order law could not be fitted: ${model.reason ?? 'no k'}`,
+      });
     } else if (!(model.k > 0)) {
-      base.excludedSeries.push({ id: result.id, reason: `k = ${model.k.toPrecision(3)} is not positive (no measurable loss), so ln k does not exist` });
+      base.excludedSeries.push({
+        id: result.id,
+        reason: `k = ${model.k.toPrecision(3)} is not positive (no measurable loss), so ln k does not exist`,
+      });
     } else {
       const list = byTemperature.get(result.temperatureC) ?? [];
       list.push({ id: result.id, k: model.k, se: model.kStandardError });
       byTemperature.set(result.temperatureC, list);
     }
   }
-  base.rateConstants = [...byTemperature].sort(([a], [b]) => a - b).map(([temperatureC, points]) => poolTemperature(temperatureC, points));
+  base.rateConstants = [...byTemperature]
+    .sort(([a], [b]) => a - b)
+    .map(([temperatureC, points]) => poolTemperature(temperatureC, points));
   if (base.rateConstants.length < 2) {
     base.notApplicableReason = `rate constants at ${base.rateConstants.length} temperature(s) only; an Arrhenius line needs at least 2`;
     return base;
@@ -246,15 +263,20 @@ function datasetArrhenius(
       return base;
     }
     const prediction = predicted.value;
-    const derived = (constant: number) => {
-      const interval = transformedInterval(constant, prediction.confidenceInterval);
-      return { estimate: constant / prediction.rateConstant, ci: interval?.ci ?? null };
-    };
+    // A monotone decreasing function of k: the interval ends of k swap (DOMAIN.md §3.4).
+    const interval = prediction.confidenceInterval;
+    const derived = (constant: number) => ({
+      estimate: constant / prediction.rateConstant,
+      ci: interval === null ? null : ([constant / interval[1], constant / interval[0]] as [number, number]),
+    });
     base.prediction = {
       ...prediction,
       t90: order === 1 ? derived(Math.log(10 / 9)) : null,
       halfLife: order === 1 ? derived(Math.LN2) : null,
-      derivedReason: order === 1 ? null : `for ${ORDER_WORDS[order]} order, t90 and half-life depend on the initial value; see each series`,
+      derivedReason:
+        order === 1
+          ? null
+          : `for ${ORDER_WORDS[order]} order, t90 and half-life depend on the initial value; see each series`,
     };
     if (prediction.extrapolation !== null) {
       const [low, high] = fitted.value.temperatureRangeC;
@@ -267,7 +289,11 @@ function datasetArrhenius(
   return base;
 }
 
-function conditionShelfLives(results: readonly SeriesResult[], seriesList: readonly Series[], options: DatasetOptions): ConditionShelfLife[] {
+function conditionShelfLives(
+  results: readonly SeriesResult[],
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+): ConditionShelfLife[] {
   const direction: AttributeDirection =
     options.direction ??
     (options.lowerLimit !== undefined && options.upperLimit !== undefined
@@ -276,12 +302,20 @@ function conditionShelfLives(results: readonly SeriesResult[], seriesList: reado
         ? 'decreasing'
         : 'increasing');
   const groups = new Map<number | null, number[]>();
-  results.forEach((result, index) => groups.set(result.temperatureC, [...(groups.get(result.temperatureC) ?? []), index]));
+  for (const [index, result] of results.entries()) {
+    groups.set(result.temperatureC, [...(groups.get(result.temperatureC) ?? []), index]);
+  }
   return [...groups].map(([temperatureC, indices]) => {
-    const members = indices.map((index) => ({ result: results[index] as SeriesResult, series: seriesList[index] as Series }));
-    const named = members.map((member) => member.result.analysis?.selection ? member.result.analysis.selectedOrder : null);
+    const members = indices.map((index) => ({
+      result: results[index] as SeriesResult,
+      series: seriesList[index] as Series,
+    }));
+    const named = members.map((member) =>
+      member.result.analysis?.selection ? member.result.analysis.selectedOrder : null,
+    );
     let order: IntegerOrder = 0;
-    let transformReason = 'the reaction order was not named for every batch, so the values are regressed linearly on time (ICH Q1E default)';
+    let transformReason =
+      'the reaction order was not named for every batch, so the values are regressed linearly on time (ICH Q1E default)';
     if (options.order !== undefined) {
       order = options.order;
       transformReason = `the analyst fixed ${ORDER_WORDS[order]} order`;
@@ -293,7 +327,9 @@ function conditionShelfLives(results: readonly SeriesResult[], seriesList: reado
     const timeUnit = tryParseTimeUnit(members[0]?.series.timeUnit ?? '');
     const batches = members.map(({ series }) => ({
       batch: series.id,
-      observations: series.observations.filter((observation) => !observation.excluded).map(({ time, value }) => ({ time, value })),
+      observations: series.observations
+        .filter((observation) => !observation.excluded)
+        .map(({ time, value }) => ({ time, value })),
     }));
     const evaluated = kineticsFailure(() =>
       q1eShelfLife(batches, {
@@ -326,13 +362,18 @@ function finiteOnly<T>(value: T, warnings: DatasetWarning[]): T {
     }
     if (Array.isArray(item)) return item.map((entry, index) => visit(entry, `${where}[${index}]`));
     if (item !== null && typeof item === 'object') {
-      return Object.fromEntries(Object.entries(item).map(([key, entry]) => [key, visit(entry, `${where}.${key}`)]));
+      return Object.fromEntries(
+        Object.entries(item).map(([key, entry]) => [key, visit(entry, `${where}.${key}`)]),
+      );
     }
     return item;
   };
   const cleaned = visit(value, '') as T;
   if (places.length > 0) {
-    warnings.push({ code: 'non-finite-replaced', message: `Non-finite numbers were replaced by null at ${places.slice(0, 5).join(', ')}.` });
+    warnings.push({
+      code: 'non-finite-replaced',
+      message: `Non-finite numbers were replaced by null at ${places.slice(0, 5).join(', ')}.`,
+    });
   }
   return cleaned;
 }
@@ -340,9 +381,17 @@ function finiteOnly<T>(value: T, warnings: DatasetWarning[]): T {
 export function analyseDataset(seriesList: readonly Series[], options: DatasetOptions = {}): DatasetAnalysis {
   const confidenceLevel = options.confidenceLevel ?? 0.95;
   if (!(confidenceLevel > 0 && confidenceLevel < 1)) {
-    throw new KineticsError('invalid-input', `The confidence level must lie between 0 and 1; got ${confidenceLevel}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `The confidence level must lie between 0 and 1; got ${confidenceLevel}.`,
+    );
   }
-  const { storageTemperatureC: _storage, direction: _direction, arrheniusWeighting: _weighting, ...seriesOptions } = options;
+  const {
+    storageTemperatureC: _storage,
+    direction: _direction,
+    arrheniusWeighting: _weighting,
+    ...seriesOptions
+  } = options;
   const warnings: DatasetWarning[] = [];
   const results: SeriesResult[] = seriesList.map((series) => {
     const outcome = kineticsFailure(() => analyseSeries(series, seriesOptions));
@@ -353,13 +402,21 @@ export function analyseDataset(seriesList: readonly Series[], options: DatasetOp
       analysis: 'value' in outcome ? outcome.value : null,
       error: 'error' in outcome ? { code: outcome.error.code, message: outcome.error.message } : null,
     };
-    if (result.error) warnings.push({ code: 'series-not-analysed', message: `${series.id}: ${result.error.message}` });
+    if (result.error)
+      warnings.push({ code: 'series-not-analysed', message: `${series.id}: ${result.error.message}` });
     return result;
   });
   const arrhenius = datasetArrhenius(results, seriesList, options, warnings);
   const hasLimit = options.lowerLimit !== undefined || options.upperLimit !== undefined;
   const shelfLife = hasLimit ? conditionShelfLives(results, seriesList, options) : null;
-  const partial = { engineVersion: ENGINE_VERSION, confidenceLevel, series: results, arrhenius, shelfLife, warnings };
+  const partial = {
+    engineVersion: ENGINE_VERSION,
+    confidenceLevel,
+    series: results,
+    arrhenius,
+    shelfLife,
+    warnings,
+  };
   const cleaned = finiteOnly(partial, warnings);
   return { ...cleaned, warnings, methodStatement: methodStatement(cleaned, seriesList, options) };
 }

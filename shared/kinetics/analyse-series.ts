@@ -1,4 +1,9 @@
-import { type DerivedFigure, derivedFigure, type ModelSummary, modelSummary } from './derived/model-summary.ts';
+import {
+  type DerivedFigure,
+  derivedFigure,
+  type ModelSummary,
+  modelSummary,
+} from './derived/model-summary.ts';
 import { type PredictedValue, predictedValue } from './derived/predicted-value.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
@@ -90,7 +95,10 @@ const MISFIT_WARNING_ALPHA = 0.05;
 export function analyseSeries(series: Series, options: SeriesOptions = {}): SeriesAnalysis {
   const confidenceLevel = options.confidenceLevel ?? 0.95;
   if (!(confidenceLevel > 0 && confidenceLevel < 1)) {
-    throw new KineticsError('invalid-input', `The confidence level must lie between 0 and 1; got ${confidenceLevel}.`);
+    throw new KineticsError(
+      'invalid-input',
+      `The confidence level must lie between 0 and 1; got ${confidenceLevel}.`,
+    );
   }
   for (const [name, value] of [
     ['lowerLimit', options.lowerLimit],
@@ -98,15 +106,20 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     ...(options.predictAt ?? []).map((time) => ['predictAt', time] as const),
   ] as const) {
     if (value !== undefined && !Number.isFinite(value)) {
-      throw new KineticsError('invalid-input', `${name} must be a finite number; got ${value}.`, { name, value });
+      throw new KineticsError('invalid-input', `${name} must be a finite number; got ${value}.`, {
+        name,
+        value,
+      });
     }
   }
   const prepared = prepareSeries(series);
-  const { times, values } = prepared;
+  const times = Float64Array.from(prepared.times);
+  const values = Float64Array.from(prepared.values);
   const pointCount = times.length;
   const lastTime = times[pointCount - 1]!;
-  const largestValue = Math.max(...values);
-  const linearised = linearisedFits(times, values, prepared.labels);
+  let largestValue = values[0]!;
+  for (const value of values) if (value > largestValue) largestValue = value;
+  const linearised = linearisedFits(times, values, prepared.labelOf);
   const allPositive = values.every((value) => value > 0);
 
   const fits: (RateLawFit | null)[] = [null, null, null, null];
@@ -135,9 +148,18 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
       bestConstant === null
         ? { ...chooseErrorModel(fits[0]!, null), reason: 'no law could be fitted' }
         : chooseErrorModel(bestConstant, proportional);
-    if (!allPositive) errorModelChoice.reason = 'some values are not positive, so only constant error can be fitted';
+    if (!allPositive)
+      errorModelChoice.reason = 'some values are not positive, so only constant error can be fitted';
     if (errorModelChoice.errorModel === 'proportional') fitIntegers('proportional');
   } else {
+    if (requested === 'proportional' && !allPositive) {
+      const index = values.findIndex((value) => !(value > 0));
+      throw new KineticsError(
+        'non-positive-value',
+        `Proportional error is fitted on ln(value), but ${prepared.labelOf(index)} has value ${values[index]}.`,
+        { id: series.id, index, value: values[index] },
+      );
+    }
     fitIntegers(requested);
     errorModelChoice = {
       errorModel: requested,
@@ -161,7 +183,13 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     failures[3] = 'no integer-order law could be fitted to start from';
   }
 
-  const selection = selectOrder(fits as unknown as ModelFits, times, values, confidenceLevel, series.valueUnit);
+  const selection = selectOrder(
+    fits as unknown as ModelFits,
+    times,
+    values,
+    confidenceLevel,
+    series.valueUnit,
+  );
   const units = { valueUnit: series.valueUnit, timeUnit: series.timeUnit };
   const models = MODELS.map((model, index) =>
     modelSummary(
@@ -179,10 +207,13 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
   const orderSource = options.order === undefined ? 'data' : 'analyst';
   const reportedOrder = options.order ?? selection.selectedOrder;
   const reportedFit = reportedOrder === null ? null : fits[reportedOrder]!;
-  const diagnosticFit = reportedFit ?? (selection.bestIntegerOrder === null ? null : fits[selection.bestIntegerOrder]!);
+  const diagnosticFit =
+    reportedFit ?? (selection.bestIntegerOrder === null ? null : fits[selection.bestIntegerOrder]!);
   const diagnostics = diagnosticFit === null ? null : residualDiagnostics(diagnosticFit, times, values);
   const figure = (level: { fractionRemaining: number } | { value: number }): DerivedFigure | null =>
-    reportedFit === null ? null : derivedFigure(reportedFit, level, confidenceLevel, series.timeUnit, lastTime);
+    reportedFit === null
+      ? null
+      : derivedFigure(reportedFit, level, confidenceLevel, series.timeUnit, lastTime);
 
   const analysis: SeriesAnalysis = {
     id: series.id,
@@ -223,15 +254,17 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     if (options.upperLimit !== undefined) analysis.timeToLimit.upper = figure({ value: options.upperLimit });
   }
   if (options.predictAt !== undefined && reportedFit !== null) {
-    analysis.predictions = options.predictAt.map((time) => predictedValue(reportedFit, time, confidenceLevel));
+    analysis.predictions = options.predictAt.map((time) =>
+      predictedValue(reportedFit, time, confidenceLevel),
+    );
   }
   analysis.warnings = collectWarnings(analysis, selection, fits, options);
-  return finiteOnly(analysis);
+  return finiteOnly(analysis, diagnostics?.points);
 }
 
-function attempt(fit: () => RateLawFit): [RateLawFit | null, string | undefined] {
+function attempt(runFit: () => RateLawFit): [RateLawFit | null, string | undefined] {
   try {
-    return [fit(), undefined];
+    return [runFit(), undefined];
   } catch (error) {
     if (error instanceof KineticsError) return [null, error.message];
     throw error;
@@ -317,8 +350,11 @@ function collectWarnings(
   return warnings;
 }
 
-/** Replaces any non-finite number by null, so the result serialises to JSON without loss. */
-function finiteOnly<T>(value: T): T {
+/**
+ * Replaces any non-finite number by null, so the result serialises to JSON without loss. `skip` (the
+ * per-point residual table, up to 10⁵ rows) is left alone: `residualDiagnostics` builds it finite.
+ */
+function finiteOnly<T>(value: T, skip: unknown): T {
   const visit = (item: unknown): unknown => {
     if (typeof item === 'number') return Number.isFinite(item) ? item : null;
     if (Array.isArray(item)) {
@@ -326,6 +362,7 @@ function finiteOnly<T>(value: T): T {
       return item;
     }
     if (item !== null && typeof item === 'object') {
+      if (item === skip) return item;
       const record = item as Record<string, unknown>;
       for (const key of Object.keys(record)) record[key] = visit(record[key]);
       return record;

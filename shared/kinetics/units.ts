@@ -119,7 +119,10 @@ const KELVIN_ROUNDING_DIGITS = 9;
 
 /** Reads "C", "°C", "degC", "celsius", "K", "kelvin"; returns null for anything else. */
 export function tryParseTemperatureUnit(text: string): TemperatureUnit | null {
-  const key = text.trim().toLowerCase().replace(/^°|^deg\s*/, '');
+  const key = text
+    .trim()
+    .toLowerCase()
+    .replace(/^°|^deg\s*/, '');
   if (key === 'c' || key === 'celsius') return 'C';
   if (key === 'k' || key === 'kelvin') return 'K';
   return null;
@@ -127,12 +130,17 @@ export function tryParseTemperatureUnit(text: string): TemperatureUnit | null {
 
 /** Converts a temperature to degrees Celsius; throws below absolute zero. */
 export function toCelsius(value: number, unit: TemperatureUnit): number {
-  const celsius = unit === 'K' ? Number((value - KELVIN_AT_ZERO_CELSIUS).toFixed(KELVIN_ROUNDING_DIGITS)) : value;
+  const celsius =
+    unit === 'K' ? Number((value - KELVIN_AT_ZERO_CELSIUS).toFixed(KELVIN_ROUNDING_DIGITS)) : value;
   if (!Number.isFinite(celsius) || celsius < -KELVIN_AT_ZERO_CELSIUS) {
-    throw new KineticsError('invalid-input', `Temperature ${value} ${unit === 'K' ? 'K' : '°C'} is below absolute zero.`, {
-      value,
-      unit,
-    });
+    throw new KineticsError(
+      'invalid-input',
+      `Temperature ${value} ${unit === 'K' ? 'K' : '°C'} is below absolute zero.`,
+      {
+        value,
+        unit,
+      },
+    );
   }
   return celsius;
 }

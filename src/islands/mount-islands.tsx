@@ -6,6 +6,9 @@ import { createRoot } from 'react-dom/client';
 const ISLANDS: Record<string, () => Promise<{ default: ComponentType }>> = {
   'recent-activity': () => import('./recent-activity-island.tsx'),
   'client-app': () => import('../app/client-app.tsx'),
+  'column-mapping': () => import('./column-mapping-island.tsx'),
+  'study-upload': () => import('./study-upload-island.tsx'),
+  'study-run-analysis': () => import('./study-run-analysis-island.tsx'),
 };
 
 /** Mounts every island found in the page; unknown names are left as server-rendered HTML. */

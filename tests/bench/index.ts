@@ -18,7 +18,9 @@ const scripts = readdirSync(folder)
 let failures = 0;
 for (const script of scripts) {
   console.log(`\n== ${script} ==`);
-  const run = spawnSync(process.execPath, ['--import', 'tsx', path.join(folder, script)], { stdio: 'inherit' });
+  const run = spawnSync(process.execPath, ['--import', 'tsx', path.join(folder, script)], {
+    stdio: 'inherit',
+  });
   if (run.status !== 0) {
     failures += 1;
     console.log(`${script} exited with ${run.status ?? run.signal}`);

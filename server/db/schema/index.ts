@@ -4,6 +4,8 @@ export * from './datasets.ts';
 export * from './memberships.ts';
 export * from './organisations.ts';
 export * from './rate-limit-hits.ts';
+export * from './report-templates.ts';
+export * from './reports.ts';
 export * from './sessions.ts';
 export * from './studies.ts';
 export * from './uploads.ts';

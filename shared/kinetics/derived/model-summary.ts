@@ -133,7 +133,7 @@ export function modelSummary(
     summary.n = fit.n;
     summary.nCi95 = interval(fit.n, 2);
   }
-  if (!fit.converged) summary.reason = fit.reason;
+  if (!fit.converged || fit.atSearchLimit) summary.reason = fit.reason;
   return summary;
 }
 

@@ -59,8 +59,14 @@ export function predictedValue(fit: RateLawFit, time: number, confidenceLevel: n
     return {
       time,
       estimate,
-      confidenceInterval: [estimate * Math.exp(-confidenceHalfWidth), estimate * Math.exp(confidenceHalfWidth)],
-      predictionInterval: [estimate * Math.exp(-predictionHalfWidth), estimate * Math.exp(predictionHalfWidth)],
+      confidenceInterval: [
+        estimate * Math.exp(-confidenceHalfWidth),
+        estimate * Math.exp(confidenceHalfWidth),
+      ],
+      predictionInterval: [
+        estimate * Math.exp(-predictionHalfWidth),
+        estimate * Math.exp(predictionHalfWidth),
+      ],
     };
   }
   return {

@@ -48,12 +48,15 @@ export function timeToLevel(fit: RateLawFit, level: Level, confidenceLevel: numb
   const falling = k > 0;
   if (k === 0) return none('the fitted rate constant is zero, so the value never changes');
   if (falling ? target >= c0 : target <= c0) {
-    return none(`the fitted initial value ${c0} is already ${falling ? 'at or below' : 'at or above'} the level ${target}`);
+    return none(
+      `the fitted initial value ${c0} is already ${falling ? 'at or below' : 'at or above'} the level ${target}`,
+    );
   }
   if (falling && (target < 0 || (target === 0 && fit.n >= 1))) {
     return none(`a falling ${orderWords(fit)} curve never reaches ${target}`);
   }
-  if (fit.covariance === null) return { ...estimateOnly(fit, level), reason: 'no covariance, so no interval' };
+  if (fit.covariance === null)
+    return { ...estimateOnly(fit, level), reason: 'no covariance, so no interval' };
   if (fit.model === 'n') return deltaLogInterval(fit, level, quantile);
 
   const cov = fit.covariance;
@@ -78,7 +81,8 @@ export function timeToLevel(fit: RateLawFit, level: Level, confidenceLevel: numb
       estimate: ratio.estimate,
       ci: null,
       method: 'fieller',
-      reason: 'not estimable: the rate constant is not significantly different from zero at this confidence level',
+      reason:
+        'not estimable: the rate constant is not significantly different from zero at this confidence level',
     };
   }
   return { estimate: ratio.estimate, ci: [Math.max(0, ratio.lower), ratio.upper], method: 'fieller' };
@@ -94,7 +98,8 @@ export function generalOrderTime(c0: number, k: number, n: number, level: Level)
 
 function deltaLogInterval(fit: RateLawFit, level: Level, quantile: number): TimeToLevel {
   const parameters = [fit.initialValue, fit.rateConstant, fit.n];
-  const logTime = (values: number[]): number => Math.log(generalOrderTime(values[0]!, values[1]!, values[2]!, level));
+  const logTime = (values: number[]): number =>
+    Math.log(generalOrderTime(values[0]!, values[1]!, values[2]!, level));
   const centre = logTime(parameters);
   if (!Number.isFinite(centre)) return none('the free-order curve does not reach this level');
   const gradient = parameters.map((value, index) => {
@@ -107,10 +112,16 @@ function deltaLogInterval(fit: RateLawFit, level: Level, quantile: number): Time
   });
   const cov = fit.covariance!;
   let variance = 0;
-  for (let a = 0; a < 3; a++) for (let b = 0; b < 3; b++) variance += gradient[a]! * cov[a * 3 + b]! * gradient[b]!;
+  for (let a = 0; a < 3; a++)
+    for (let b = 0; b < 3; b++) variance += gradient[a]! * cov[a * 3 + b]! * gradient[b]!;
   const estimate = Math.exp(centre);
   if (!(variance >= 0) || !Number.isFinite(variance)) {
-    return { estimate, ci: null, method: 'delta-log', reason: 'not estimable: the interval could not be formed' };
+    return {
+      estimate,
+      ci: null,
+      method: 'delta-log',
+      reason: 'not estimable: the interval could not be formed',
+    };
   }
   const half = quantile * Math.sqrt(variance);
   return { estimate, ci: [Math.exp(centre - half), Math.exp(centre + half)], method: 'delta-log' };
@@ -126,5 +137,7 @@ function none(reason: string): TimeToLevel {
 }
 
 function orderWords(fit: RateLawFit): string {
-  return fit.model === 'n' ? `order-${fit.n.toFixed(2)}` : ['zero-order', 'first-order', 'second-order'][fit.model]!;
+  return fit.model === 'n'
+    ? `order-${fit.n.toFixed(2)}`
+    : ['zero-order', 'first-order', 'second-order'][fit.model]!;
 }

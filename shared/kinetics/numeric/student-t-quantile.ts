@@ -1,4 +1,4 @@
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 import { assertDegreesOfFreedom, assertOpenProbability } from './assert-distribution-arguments.ts';
 
 /**

@@ -38,7 +38,10 @@ export interface ErrorModelChoice {
   reason: string;
 }
 
-export function chooseErrorModel(constantFit: RateLawFit, proportionalFit: RateLawFit | null): ErrorModelChoice {
+export function chooseErrorModel(
+  constantFit: RateLawFit,
+  proportionalFit: RateLawFit | null,
+): ErrorModelChoice {
   if (proportionalFit === null) {
     return {
       errorModel: 'constant',

@@ -1,6 +1,6 @@
-import type { ErrorModel } from '../types.ts';
 import { KineticsError } from '../numeric/kinetics-error.ts';
-import { prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
+import type { ErrorModel } from '../types.ts';
+import { type NormalEquations, rateLawObjective } from './rate-law-objective.ts';
 import { invertSmallSymmetric, solveSmallSymmetric } from './small-cholesky.ts';
 
 /**
@@ -21,7 +21,10 @@ import { invertSmallSymmetric, solveSmallSymmetric } from './small-cholesky.ts';
  * the step when the residual sum of squares falls (then λ shrinks tenfold), otherwise raise λ
  * tenfold. Stop when the Bates–Watts relative offset √(rᵀP r/p)/√(rᵀr/(N − p)), P the projection
  * onto the tangent plane, is below `RELATIVE_OFFSET_TOLERANCE`. Covariance = s²·(JᵀJ)⁻¹ with
- * s² = RSS/(N − p).
+ * s² = RSS/(N − p). The free order is iterated in initial-rate form (C0, r0 = k·C0ⁿ, n), which is far
+ * better conditioned at low conversion, and converted back to (C0, k, n) for the covariance. n is kept in
+ * `ORDER_SEARCH_RANGE`; once a step is stopped at a limit, n stays there and the fit is reported with the
+ * reason "the data do not determine the order".
  *
  * Reference: D. W. Marquardt, J. Soc. Ind. Appl. Math. 11 (1963) 431–441; D. M. Bates & D. G. Watts,
  * Nonlinear Regression Analysis and Its Applications (1988) §2.2.3 (relative offset criterion).
@@ -63,24 +66,26 @@ export interface RateLawFit {
   logLikelihood: number;
   iterations: number;
   converged: boolean;
+  /** Free order only: the fit stopped at an end of `ORDER_SEARCH_RANGE` (the data do not determine n). */
+  atSearchLimit: boolean;
   reason: string;
 }
 
 /** Bates–Watts relative offset below which the fit has converged (they suggest 1e-3; tighter costs little here). */
 export const RELATIVE_OFFSET_TOLERANCE = 1e-6;
+/**
+ * Relative offset that rounding in sums over 10⁵ points can leave; below it a step that fails to lower the
+ * RSS ends the fit as converged (Bates & Watts' own suggestion is 1e-3: the parameters then sit within
+ * 0.1 % of a standard error of the minimum).
+ */
+const ROUNDING_OFFSET_TOLERANCE = 1e-3;
 /** A residual sum of squares this small relative to Σy² is an exact fit. */
 const EXACT_FIT_TOLERANCE = 1e-26;
 export const MAX_ITERATIONS = 200;
 const INITIAL_DAMPING = 1e-3;
 const MAX_DAMPING = 1e16;
-/** The free order is searched on this interval; a fit that ends on a bound is reported as not converged. */
+/** The free order is searched on this interval. */
 export const ORDER_SEARCH_RANGE: readonly [number, number] = [-1, 5];
-
-interface PassResult {
-  rss: number;
-  normal: Float64Array;
-  gradient: Float64Array;
-}
 
 export function fitRateLaw(
   model: RateLawModel,
@@ -90,7 +95,7 @@ export function fitRateLaw(
   start: RateLawStart,
 ): RateLawFit {
   const pointCount = times.length;
-  const p = model === 'n' ? 3 : 2;
+  const p: 2 | 3 = model === 'n' ? 3 : 2;
   if (pointCount <= p) {
     throw new KineticsError(
       'too-few-points',
@@ -115,53 +120,30 @@ export function fitRateLaw(
     if (logScale) sumOfLogValues += response[i]!;
     sumOfSquaresOfResponse += response[i]! ** 2;
   }
+  const objective = rateLawObjective(model, times, response, logScale);
 
-  const theta = new Float64Array([start.initialValue, start.rateConstant, start.n ?? (model === 'n' ? 1 : model)]);
-  const scratch = new Float64Array(3);
-  const pass = (parameters: Float64Array, withNormal: PassResult | null): number => {
-    const law = prepareRateLaw(model, parameters[0]!, parameters[1]!, parameters[2]!);
-    let rss = 0;
-    let compensation = 0;
-    if (withNormal !== null) {
-      withNormal.normal.fill(0);
-      withNormal.gradient.fill(0);
-    }
-    for (let i = 0; i < pointCount; i++) {
-      const predicted = rateLawAt(law, times[i]!, withNormal === null ? null : scratch);
-      let residual: number;
-      if (logScale) {
-        if (!(predicted > 0)) return Number.NaN;
-        residual = response[i]! - Math.log(predicted);
-        if (withNormal !== null) for (let a = 0; a < p; a++) scratch[a] = scratch[a]! / predicted;
-      } else {
-        if (Number.isNaN(predicted)) return Number.NaN;
-        residual = response[i]! - predicted;
-      }
-      const square = residual * residual;
-      const next = rss + square;
-      compensation += rss >= square ? rss - next + square : square - next + rss;
-      rss = next;
-      if (withNormal !== null) {
-        for (let a = 0; a < p; a++) {
-          const ja = scratch[a]!;
-          withNormal.gradient[a] = withNormal.gradient[a]! + ja * residual;
-          for (let b = 0; b <= a; b++) withNormal.normal[a * p + b] = withNormal.normal[a * p + b]! + ja * scratch[b]!;
-        }
-      }
-    }
-    if (withNormal !== null) {
-      for (let a = 0; a < p; a++) for (let b = 0; b < a; b++) withNormal.normal[b * p + a] = withNormal.normal[a * p + b]!;
-    }
-    const total = rss + compensation;
-    return Number.isFinite(total) ? total : Number.NaN;
+  // The free order is iterated in initial-rate form (C0, r0 = k·C0ⁿ, n); see `initialRateLawAt`.
+  const freeOrder = model === 'n';
+  const startOrder = freeOrder ? (start.n ?? 1) : model;
+  const theta = new Float64Array([
+    start.initialValue,
+    freeOrder ? start.rateConstant * Math.exp(startOrder * Math.log(start.initialValue)) : start.rateConstant,
+    startOrder,
+  ]);
+  let current: NormalEquations & { rss: number } = {
+    rss: 0,
+    normal: new Float64Array(p * p),
+    gradient: new Float64Array(p),
   };
-
-  let current: PassResult = { rss: 0, normal: new Float64Array(p * p), gradient: new Float64Array(p) };
-  let trial: PassResult = { rss: 0, normal: new Float64Array(p * p), gradient: new Float64Array(p) };
-  current.rss = pass(theta, current);
+  let trial: NormalEquations & { rss: number } = {
+    rss: 0,
+    normal: new Float64Array(p * p),
+    gradient: new Float64Array(p),
+  };
+  current.rss = objective(theta, current);
   for (let attempt = 0; Number.isNaN(current.rss) && attempt < 60; attempt++) {
     theta[1] = theta[1]! / 2; // an infeasible start is almost always a rate constant too large for the time span
-    current.rss = pass(theta, current);
+    current.rss = objective(theta, current);
   }
   if (Number.isNaN(current.rss)) {
     throw new KineticsError('not-converged', `No feasible starting point for the ${describe(model)} fit.`, {
@@ -170,62 +152,84 @@ export function fitRateLaw(
   }
 
   const step = new Float64Array(p);
-  const damped = new Float64Array(p * p);
+  const block = new Float64Array(p * p);
   const candidate = new Float64Array(3);
   const degreesOfFreedom = pointCount - p;
   let damping = INITIAL_DAMPING;
   let iterations = 0;
   let converged = false;
   let reason = 'iteration limit reached';
+  // Parameters still free: all of them, or (C0, r0) once the free order has been stopped at a search limit.
+  let active: 2 | 3 = p;
+  let atSearchLimit = false;
   for (; iterations < MAX_ITERATIONS; iterations++) {
     if (current.rss <= EXACT_FIT_TOLERANCE * sumOfSquaresOfResponse) {
       converged = true;
       reason = 'exact fit';
       break;
     }
-    const offset = relativeOffset(current, step, p, degreesOfFreedom);
+    leadingBlock(current.normal, p, active, block);
+    const offset = relativeOffset(block, current.gradient, current.rss, step, active, degreesOfFreedom);
     if (offset !== null && offset < RELATIVE_OFFSET_TOLERANCE) {
       converged = true;
       reason = 'relative offset below tolerance';
       break;
     }
     let accepted = false;
+    let clamped = false;
     while (damping <= MAX_DAMPING) {
-      damped.set(current.normal);
-      for (let a = 0; a < p; a++) damped[a * p + a] = current.normal[a * p + a]! * (1 + damping);
-      if (solveSmallSymmetric(damped, current.gradient, step, p)) {
+      leadingBlock(current.normal, p, active, block);
+      for (let a = 0; a < active; a++) block[a * active + a] = block[a * active + a]! * (1 + damping);
+      if (solveSmallSymmetric(block, current.gradient, step, active)) {
         candidate.set(theta);
-        for (let a = 0; a < p; a++) candidate[a] = theta[a]! + step[a]!;
-        if (model === 'n') candidate[2] = Math.min(ORDER_SEARCH_RANGE[1], Math.max(ORDER_SEARCH_RANGE[0], candidate[2]!));
-        trial.rss = pass(candidate, trial);
+        for (let a = 0; a < active; a++) candidate[a] = theta[a]! + step[a]!;
+        clamped = false;
+        if (active === 3) {
+          const limited = Math.min(ORDER_SEARCH_RANGE[1], Math.max(ORDER_SEARCH_RANGE[0], candidate[2]!));
+          clamped = limited !== candidate[2];
+          candidate[2] = limited;
+        }
+        trial.rss = objective(candidate, trial);
         if (!Number.isNaN(trial.rss) && trial.rss < current.rss) {
           accepted = true;
           break;
         }
       }
+      // Within rounding of the minimum (long series), a rejected step means there is nothing left to gain.
+      if (offset !== null && offset < ROUNDING_OFFSET_TOLERANCE) break;
       damping *= 10;
     }
     if (!accepted) {
       // No step lowers the sum of squares: at a minimum to working precision unless the offset says otherwise.
-      converged = offset === null || offset < Math.sqrt(RELATIVE_OFFSET_TOLERANCE);
+      converged = offset !== null && offset < ROUNDING_OFFSET_TOLERANCE;
       reason = converged ? 'no further decrease possible' : 'no decrease found';
       break;
     }
     theta.set(candidate);
     [current, trial] = [trial, current];
     damping = Math.max(damping / 10, 1e-12);
+    if (clamped) {
+      active = 2;
+      atSearchLimit = true;
+    }
   }
 
-  const n = model === 'n' ? theta[2]! : model;
-  if (model === 'n' && (n <= ORDER_SEARCH_RANGE[0] || n >= ORDER_SEARCH_RANGE[1])) {
-    converged = false;
-    reason = `the fitted order reached the search limit ${n}`;
+  // Back to (C0, k, n): k = r0·C0^(−n) for the free order, and JᵀJ in those parameters for the covariance.
+  if (freeOrder) {
+    theta[1] = theta[1]! * Math.exp(-theta[2]! * Math.log(theta[0]!));
+    current.rss = objective(theta, current, true);
+  }
+  const n = freeOrder ? theta[2]! : model;
+  if (atSearchLimit && converged) {
+    reason = `the data do not determine the order: the fit stopped at the search limit n = ${n}`;
   }
   const residualVariance = current.rss / degreesOfFreedom;
   const inverse = invertSmallSymmetric(current.normal, p);
   const covariance = inverse === null ? null : Array.from(inverse, (entry) => entry * residualVariance);
   const standardErrors =
-    covariance === null ? null : Array.from({ length: p }, (_, a) => Math.sqrt(Math.max(0, covariance[a * p + a]!)));
+    covariance === null
+      ? null
+      : Array.from({ length: p }, (_, a) => Math.sqrt(Math.max(0, covariance[a * p + a]!)));
   if (covariance === null) {
     converged = false;
     reason = 'the parameters are not determined by the data (singular JᵀJ)';
@@ -249,17 +253,29 @@ export function fitRateLaw(
     logLikelihood,
     iterations,
     converged,
+    atSearchLimit,
     reason,
   };
 }
 
+/** Copies the leading `active`×`active` block of a p×p row-major matrix into `out` (row-major, stride `active`). */
+function leadingBlock(matrix: Float64Array, p: number, active: number, out: Float64Array): void {
+  for (let a = 0; a < active; a++) for (let b = 0; b < active; b++) out[a * active + b] = matrix[a * p + b]!;
+}
+
 /** Bates–Watts relative offset from the undamped Gauss–Newton step; null when JᵀJ is singular. */
-function relativeOffset(current: PassResult, step: Float64Array, p: number, degreesOfFreedom: number): number | null {
-  if (!solveSmallSymmetric(current.normal, current.gradient, step, p)) return null;
+function relativeOffset(
+  normal: Float64Array,
+  gradient: Float64Array,
+  rss: number,
+  step: Float64Array,
+  active: number,
+  degreesOfFreedom: number,
+): number | null {
+  if (!solveSmallSymmetric(normal, gradient, step, active)) return null;
   let projected = 0;
-  for (let a = 0; a < p; a++) projected += current.gradient[a]! * step[a]!;
-  const scatter = current.rss / degreesOfFreedom;
-  return Math.sqrt(Math.max(0, projected) / p / scatter);
+  for (let a = 0; a < active; a++) projected += gradient[a]! * step[a]!;
+  return Math.sqrt(Math.max(0, projected) / active / (rss / degreesOfFreedom));
 }
 
 function describe(model: RateLawModel): string {

@@ -145,3 +145,42 @@ export function rateLawValue(
 ): number {
   return rateLawAt(prepareRateLaw(order, initialValue, rateConstant, n), time, gradient);
 }
+
+/**
+ * The general law in initial-rate form, used by the free-order fit: parameters C0, r0 = k·C0ⁿ (the
+ * initial rate, −dC/dt at t = 0) and n. Then u = (r0/C0)·t no longer depends on n, and at low
+ * conversion C0 and r0 are fixed by the data almost independently of n, which straightens the long
+ * curved valley of the (C0, k, n) parametrisation (a standard reparametrisation for conditioning;
+ * Bates & Watts 1988 §3.2, from memory). ∂ln C/∂C0 = (1 + u/(1 + x))/C0, ∂ln C/∂r0 = −t/(C0·(1 + x)),
+ * ∂ln C/∂n = −u²·q(x)/(1 + x). Returns NaN where the law is undefined (C0 ≤ 0, or 1 + x ≤ 0 with n > 1).
+ *
+ * Example: `initialRateLawAt(100, 1, 1, 10, null)` is 100·e^(−0.1) = 90.48 (first order, k = 0.01).
+ */
+export function initialRateLawAt(
+  initialValue: number,
+  initialRate: number,
+  n: number,
+  time: number,
+  gradient: Float64Array | null,
+): number {
+  if (!(initialValue > 0)) return Number.NaN;
+  const m = n - 1;
+  const u = (initialRate / initialValue) * time;
+  const x = m * u;
+  const onePlusX = 1 + x;
+  if (!(onePlusX > 0)) {
+    if (m < 0) {
+      if (gradient !== null) gradient.fill(0);
+      return 0;
+    }
+    return Number.NaN;
+  }
+  const log1pX = Math.log1p(x);
+  const value = initialValue * Math.exp(-(x === 0 ? u : (u * log1pX) / x));
+  if (gradient !== null) {
+    gradient[0] = (value * (1 + u / onePlusX)) / initialValue;
+    gradient[1] = (-value * time) / (initialValue * onePlusX);
+    gradient[2] = (-value * u * u * q(x, log1pX)) / onePlusX;
+  }
+  return value;
+}

@@ -1,5 +1,5 @@
 import type { IntegerOrder } from '../types.ts';
-import { simpleLinearRegression } from '../numeric/simple-linear-regression.ts';
+import { transformedStraightLine } from './transformed-straight-line.ts';
 
 /**
  * The three classical straight-line plots of kinetics — value, ln(value) and 1/value against time —
@@ -20,8 +20,8 @@ import { simpleLinearRegression } from '../numeric/simple-linear-regression.ts';
  *
  * Reference: DOMAIN.md §5 table (OpenStax Chemistry §12.4 "Integrated Rate Laws").
  *
- * Throws `KineticsError('too-few-points' | 'single-time' | 'invalid-input')` from the straight-line fit
- * of the values themselves (fewer than 3 points, one time only, non-finite numbers).
+ * Throws `KineticsError('too-few-points' | 'single-time')` from the straight-line fit of the values
+ * themselves (fewer than 3 points, one time only); callers pass finite numbers (`prepare-series.ts`).
  *
  * Example: times [0, 1, 2], values [100, 50, 25] give a first-order plot with slope −ln 2, k = 0.6931,
  * C0 = 100 and R² = 1.
@@ -51,34 +51,27 @@ export interface LinearisedFit {
 const TRANSFORMS: readonly LinearisedTransform[] = ['value', 'ln(value)', '1/value'];
 
 export function linearisedFits(
-  times: readonly number[],
-  values: readonly number[],
-  pointLabels?: readonly string[],
+  times: ArrayLike<number>,
+  values: ArrayLike<number>,
+  labelOf?: (index: number) => string,
 ): [LinearisedFit, LinearisedFit, LinearisedFit] {
   const zero = straightLine(0, times, values);
-  const firstNonPositive = values.findIndex((value) => !(value > 0));
+  let firstNonPositive = -1;
+  for (let i = 0; i < values.length && firstNonPositive < 0; i++) if (!(values[i]! > 0)) firstNonPositive = i;
   if (firstNonPositive >= 0) {
-    const label = pointLabels?.[firstNonPositive] ?? `point ${firstNonPositive + 1}`;
+    const label = labelOf?.(firstNonPositive) ?? `point ${firstNonPositive + 1}`;
     const reason = `${label} has value ${values[firstNonPositive]}, which has no logarithm or meaningful reciprocal`;
     return [zero, notApplicable(1, times.length, reason), notApplicable(2, times.length, reason)];
   }
-  return [
-    zero,
-    straightLine(
-      1,
-      times,
-      values.map((value) => Math.log(value)),
-    ),
-    straightLine(
-      2,
-      times,
-      values.map((value) => 1 / value),
-    ),
-  ];
+  return [zero, straightLine(1, times, values), straightLine(2, times, values)];
 }
 
-function straightLine(order: IntegerOrder, times: readonly number[], transformed: readonly number[]): LinearisedFit {
-  const line = simpleLinearRegression(times, transformed);
+function straightLine(
+  order: IntegerOrder,
+  times: ArrayLike<number>,
+  values: ArrayLike<number>,
+): LinearisedFit {
+  const line = transformedStraightLine(times, values, TRANSFORMS[order]!);
   const k = order === 2 ? line.slope : -line.slope;
   const c0 = order === 0 ? line.intercept : order === 1 ? Math.exp(line.intercept) : 1 / line.intercept;
   const fit: LinearisedFit = {

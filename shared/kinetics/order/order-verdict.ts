@@ -50,14 +50,19 @@ export function orderVerdict(
       coverage,
     ];
     if (freeOrder !== '') {
-      parts.push(`${freeOrder}, consistent with ${ORDER_NAMES[best]}${bestTest ? ` (F-test p = ${pValue(bestTest.p)})` : ''}`);
+      parts.push(
+        `${freeOrder}, consistent with ${ORDER_NAMES[best]}${bestTest ? ` (F-test p = ${pValue(bestTest.p)})` : ''}`,
+      );
     }
     return `${parts.filter((part) => part !== '').join('; ')}.`;
   }
   const why = [...reasons];
-  if (bestFit !== null && !bestFit.converged) why.push(`the best-fitting law did not converge (${bestFit.reason})`);
+  if (bestFit !== null && !bestFit.converged)
+    why.push(`the best-fitting law did not converge (${bestFit.reason})`);
   if (bestFit !== null && bestFit.rateConstant <= 0) {
-    why.push('the values do not fall over time, and these order laws describe the loss of the measured substance');
+    why.push(
+      'the values do not fall over time, and these order laws describe the loss of the measured substance',
+    );
   } else if (fraction !== null && fraction < MIN_FRACTION_REACTED) {
     why.push(
       `only ${coverage}; at least ${percent(MIN_FRACTION_REACTED)} is needed to tell the orders apart`,

@@ -1,5 +1,5 @@
-import type { Series } from '../types.ts';
 import { KineticsError } from '../numeric/kinetics-error.ts';
+import type { Series } from '../types.ts';
 
 /**
  * Turns a series into the points the fits use: excluded observations set aside with their reasons,
@@ -27,8 +27,8 @@ export interface ExcludedPoint {
 export interface PreparedSeries {
   times: number[];
   values: number[];
-  /** How each used point is named in messages, e.g. "the point at time 3 (row 7)". */
-  labels: string[];
+  /** How a used point is named in messages, e.g. "the point at time 3 (row 7)" (built on demand). */
+  labelOf: (index: number) => string;
   excluded: ExcludedPoint[];
 }
 
@@ -36,25 +36,42 @@ export const MIN_POINTS = 3;
 
 export function prepareSeries(series: Series): PreparedSeries {
   if (!Array.isArray(series.observations)) {
-    throw new KineticsError('invalid-input', `Series ${series.id} has no list of observations.`, { id: series.id });
+    throw new KineticsError('invalid-input', `Series ${series.id} has no list of observations.`, {
+      id: series.id,
+    });
   }
-  const used: { time: number; value: number; label: string; index: number }[] = [];
+  const used: { time: number; value: number; index: number }[] = [];
   const excluded: ExcludedPoint[] = [];
-  series.observations.forEach((observation, index) => {
-    const label = `the point at time ${observation.time}${
+  const observations = series.observations;
+  const labelOfObservation = (index: number): string => {
+    const observation = observations[index]!;
+    return `the point at time ${observation.time}${
       observation.source?.row === undefined ? '' : ` (row ${observation.source.row})`
     }`;
+  };
+  let sorted = true;
+  for (let index = 0; index < observations.length; index++) {
+    const observation = observations[index]!;
     if (!Number.isFinite(observation.time) || !Number.isFinite(observation.value)) {
       throw new KineticsError(
         'invalid-input',
         `Observation ${index + 1} of series ${series.id} has a time or value that is not a finite number.`,
-        { id: series.id, index, time: observation.time, value: observation.value, source: observation.source },
+        {
+          id: series.id,
+          index,
+          time: observation.time,
+          value: observation.value,
+          source: observation.source,
+        },
       );
     }
     if (observation.excluded !== undefined) {
       const reason = observation.excluded.reason?.trim() ?? '';
       if (reason === '') {
-        throw new KineticsError('invalid-input', `Excluding ${label} needs a reason.`, { id: series.id, index });
+        throw new KineticsError('invalid-input', `Excluding ${labelOfObservation(index)} needs a reason.`, {
+          id: series.id,
+          index,
+        });
       }
       excluded.push({
         time: observation.time,
@@ -62,11 +79,12 @@ export function prepareSeries(series: Series): PreparedSeries {
         reason,
         ...(observation.source === undefined ? {} : { source: observation.source }),
       });
-      return;
+      continue;
     }
-    used.push({ time: observation.time, value: observation.value, label, index });
-  });
-  used.sort((a, b) => a.time - b.time || a.index - b.index);
+    if (used.length > 0 && observation.time < used[used.length - 1]!.time) sorted = false;
+    used.push({ time: observation.time, value: observation.value, index });
+  }
+  if (!sorted) used.sort((a, b) => a.time - b.time || a.index - b.index);
   if (used.length < MIN_POINTS) {
     throw new KineticsError(
       'too-few-points',
@@ -84,7 +102,7 @@ export function prepareSeries(series: Series): PreparedSeries {
   return {
     times: used.map((point) => point.time),
     values: used.map((point) => point.value),
-    labels: used.map((point) => point.label),
+    labelOf: (index: number) => labelOfObservation(used[index]!.index),
     excluded,
   };
 }

@@ -21,7 +21,7 @@ import { invertSmallSymmetric } from './small-cholesky.ts';
  * Influence in Regression (1982) §2.2 (studentised residuals, from memory).
  *
  * Throws nothing: where 1 − hᵢ or ν − rᵢ² is not positive (a point that alone determines a parameter,
- * or ν < 2) the studentised residuals are null.
+ * or ν < 2) the studentised residuals are null; every number in the result is finite (non-finite → null).
  *
  * Example: for a straight line through (0, 0), (1, 1), (2, 2), (3, 4) the leverages are 0.7, 0.3, 0.3, 0.7.
  */
@@ -34,8 +34,8 @@ const LEVERAGE_LIMIT = 1 - 1e-10;
 export interface ResidualPoint {
   time: number;
   value: number;
-  fitted: number;
-  residual: number;
+  fitted: number | null;
+  residual: number | null;
   leverage: number | null;
   studentised: number | null;
   externallyStudentised: number | null;
@@ -97,15 +97,16 @@ export function residualDiagnostics(
       const room = nu - studentised * studentised;
       if (nu >= 2 && room > 0) externallyStudentised = studentised * Math.sqrt((nu - 1) / room);
     }
-    if (externallyStudentised !== null && Math.abs(externallyStudentised) > OUTLIER_THRESHOLD) possibleOutliers.push(i);
+    if (externallyStudentised !== null && Math.abs(externallyStudentised) > OUTLIER_THRESHOLD)
+      possibleOutliers.push(i);
     points[i] = {
       time: times[i]!,
       value: values[i]!,
-      fitted: fitted[i]!,
-      residual: residuals[i]!,
-      leverage,
-      studentised,
-      externallyStudentised,
+      fitted: finiteOrNull(fitted[i]!),
+      residual: finiteOrNull(residuals[i]!),
+      leverage: leverage === null ? null : finiteOrNull(leverage),
+      studentised: studentised === null ? null : finiteOrNull(studentised),
+      externallyStudentised: externallyStudentised === null ? null : finiteOrNull(externallyStudentised),
     };
   }
   return {
@@ -116,4 +117,8 @@ export function residualDiagnostics(
     outlierThreshold: OUTLIER_THRESHOLD,
     possibleOutliers,
   };
+}
+
+function finiteOrNull(value: number): number | null {
+  return Number.isFinite(value) ? value : null;
 }

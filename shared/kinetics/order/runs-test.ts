@@ -1,4 +1,4 @@
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 
 /**
  * Wald–Wolfowitz runs test on the signs of residuals taken in time order: too few runs (long stretches
@@ -55,7 +55,14 @@ export function runsTest(residuals: ArrayLike<number>): RunsTestResult {
     return { runs, positives, negatives, expectedRuns, p: 1, method: 'exact' };
   }
   if (total <= EXACT_LIMIT) {
-    return { runs, positives, negatives, expectedRuns, p: exactLowerTail(runs, positives, negatives), method: 'exact' };
+    return {
+      runs,
+      positives,
+      negatives,
+      expectedRuns,
+      p: exactLowerTail(runs, positives, negatives),
+      method: 'exact',
+    };
   }
   const product = 2 * positives * negatives;
   const variance = (product * (product - total)) / (total * total * (total - 1));

@@ -1,6 +1,6 @@
-import type { IntegerOrder } from '../types.ts';
 import { studentTQuantile } from '../numeric/student-t-quantile.ts';
-import { type FTestResult, extraSumOfSquaresFTest } from './extra-sum-of-squares-f-test.ts';
+import type { IntegerOrder } from '../types.ts';
+import { extraSumOfSquaresFTest, type FTestResult } from './extra-sum-of-squares-f-test.ts';
 import type { RateLawFit } from './fit-rate-law.ts';
 import { aicc, akaikeWeights } from './information-criteria.ts';
 import { prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
@@ -43,7 +43,6 @@ import { runsTest } from './runs-test.ts';
  * "Reaction order not identified: only 10 % of the initial value has reacted".
  */
 
-
 export type ModelFits = readonly [RateLawFit | null, RateLawFit | null, RateLawFit | null, RateLawFit | null];
 
 export interface OrderSelection {
@@ -80,7 +79,9 @@ export function selectOrder(
   valueUnit: string,
 ): OrderSelection {
   const pointCount = times.length;
-  const criteria = fits.map((fit) => (fit === null ? null : aicc(fit.logLikelihood, fit.parameterCount, pointCount)));
+  const criteria = fits.map((fit) =>
+    fit === null ? null : aicc(fit.logLikelihood, fit.parameterCount, pointCount),
+  );
   const weights = akaikeWeights(criteria);
   const integerWeights = akaikeWeights(criteria.slice(0, 3));
   const integerFits = fits.slice(0, 3);
@@ -104,7 +105,9 @@ export function selectOrder(
   const bestCriterion = best === null ? null : criteria[best]!;
   const runnerCriterion = runnerUp === null ? null : criteria[runnerUp]!;
   const deltaAiccToRunnerUp =
-    bestCriterion !== null && runnerCriterion !== null && ranked.length === 3 ? runnerCriterion - bestCriterion : null;
+    bestCriterion !== null && runnerCriterion !== null && ranked.length === 3
+      ? runnerCriterion - bestCriterion
+      : null;
 
   let fractionReacted: number | null = null;
   let curveSeparation: number | null = null;
@@ -114,23 +117,31 @@ export function selectOrder(
     for (let i = 1; i < pointCount; i++) lastTime = Math.max(lastTime, times[i]!);
     const bestLaw = prepareRateLaw(bestFit.model, bestFit.initialValue, bestFit.rateConstant, bestFit.n);
     const endValue = rateLawAt(bestLaw, lastTime, null);
-    if (Number.isFinite(endValue) && bestFit.initialValue > 0) fractionReacted = 1 - endValue / bestFit.initialValue;
+    if (Number.isFinite(endValue) && bestFit.initialValue > 0)
+      fractionReacted = 1 - endValue / bestFit.initialValue;
     const runnerFit = runnerUp === null ? null : fits[runnerUp]!;
     const runnerLaw =
-      runnerFit === null ? null : prepareRateLaw(runnerFit.model, runnerFit.initialValue, runnerFit.rateConstant);
+      runnerFit === null
+        ? null
+        : prepareRateLaw(runnerFit.model, runnerFit.initialValue, runnerFit.rateConstant);
     const residuals = new Float64Array(pointCount);
     let separation = 0;
     for (let i = 0; i < pointCount; i++) {
       const predicted = rateLawAt(bestLaw, times[i]!, null);
       residuals[i] =
-        bestFit.errorModel === 'proportional' ? Math.log(values[i]!) - Math.log(predicted) : values[i]! - predicted;
-      if (runnerLaw !== null) separation = Math.max(separation, Math.abs(predicted - rateLawAt(runnerLaw, times[i]!, null)));
+        bestFit.errorModel === 'proportional'
+          ? Math.log(values[i]!) - Math.log(predicted)
+          : values[i]! - predicted;
+      if (runnerLaw !== null)
+        separation = Math.max(separation, Math.abs(predicted - rateLawAt(runnerLaw, times[i]!, null)));
     }
     curveSeparation = runnerLaw === null ? null : separation;
     runsTestP = runsTest(residuals).p;
   }
   const halfLivesCovered =
-    fractionReacted !== null && fractionReacted > 0 && fractionReacted < 1 ? -Math.log2(1 - fractionReacted) : null;
+    fractionReacted !== null && fractionReacted > 0 && fractionReacted < 1
+      ? -Math.log2(1 - fractionReacted)
+      : null;
   let freeOrder: OrderSelection['freeOrder'] = null;
   if (free !== null) {
     const se = free.standardErrors?.[2];

@@ -64,7 +64,12 @@ export function invertSmallSymmetric(matrix: Float64Array, dimension: number): F
   return inverse;
 }
 
-function choleskyFactor(matrix: Float64Array, scale: Float64Array, lower: Float64Array, dimension: number): boolean {
+function choleskyFactor(
+  matrix: Float64Array,
+  scale: Float64Array,
+  lower: Float64Array,
+  dimension: number,
+): boolean {
   for (let j = 0; j < dimension; j++) {
     let pivot = matrix[j * dimension + j]! * scale[j]! * scale[j]!;
     for (let k = 0; k < j; k++) pivot -= lower[j * 3 + k]! ** 2;

@@ -1,4 +1,4 @@
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 import { describe, expect, it } from 'vitest';
 import { poolability } from './poolability.ts';
 import { lineBatch, referenceLine } from './q1e-test-fixtures.ts';

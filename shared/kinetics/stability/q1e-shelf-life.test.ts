@@ -1,4 +1,4 @@
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 import { describe, expect, it } from 'vitest';
 import { q1eShelfLife } from './q1e-shelf-life.ts';
 import { lineBatch, MONTHS, referenceLine } from './q1e-test-fixtures.ts';

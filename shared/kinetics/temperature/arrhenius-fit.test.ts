@@ -1,4 +1,4 @@
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 import { linearRegression, rSquared, sum } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { arrheniusFit } from './arrhenius-fit.ts';

@@ -1,0 +1,216 @@
+/**
+ * The JSON document the `fit` command prints with `--json`: a stable, documented shape
+ * (docs/fit-cli.md) built from the engine's dataset analysis, so scripts that read it do not
+ * break when the engine's internal records grow.
+ *
+ * Field names follow the brief of the command: per series `id`, `n`, `selectedOrder`, `verdict`,
+ * `models` (order, k, kCi95, c0, aicc, weight), `linearized` (slope, intercept, r2, k), `halfLife`
+ * and `t90` with intervals, `shelfLife` when a limit is given; at top level `arrhenius` (eaJPerMol,
+ * eaCi95, lnA) when a temperature column is given. Every number is finite or null.
+ *
+ * Throws nothing.
+ *
+ * Example: for one series the document has `series.length === 1` and `arrhenius === null`.
+ */
+import type {
+  ConditionShelfLife,
+  DatasetAnalysis,
+  SeriesResult,
+} from '../../shared/kinetics/analyse-dataset.ts';
+import type { DerivedFigure } from '../../shared/kinetics/derived/model-summary.ts';
+
+export interface FitDocumentContext {
+  file: string;
+  sheet: string;
+  timeUnit: string;
+  valueUnit: string;
+  temperatureColumnGiven: boolean;
+  intakeWarnings: string[];
+}
+
+function figure(value: DerivedFigure | null | undefined) {
+  if (!value) return null;
+  return {
+    estimate: value.estimate,
+    ci95: value.ci95,
+    unit: value.unit,
+    beyondObservedTime: value.beyondObservedTime,
+    ...(value.reason === undefined ? {} : { reason: value.reason }),
+  };
+}
+
+function seriesShelfLife(result: SeriesResult, conditions: ConditionShelfLife[] | null) {
+  if (conditions === null) return undefined;
+  const condition = conditions.find((candidate) => candidate.seriesIds.includes(result.id));
+  if (!condition?.result) {
+    return {
+      estimate: null,
+      status: null,
+      model: null,
+      line: null,
+      reason: condition?.notApplicableReason ?? 'not evaluated',
+    };
+  }
+  const line = condition.result.lines.find((candidate) => candidate.batches.includes(result.id));
+  return {
+    estimate: line?.shelfLife ?? null,
+    status: line?.status ?? null,
+    model: condition.result.model,
+    line: line?.label ?? null,
+    reason: line?.reason ?? condition.result.reason,
+  };
+}
+
+function seriesEntry(result: SeriesResult, conditions: ConditionShelfLife[] | null) {
+  const analysis = result.analysis;
+  const base = { id: result.id, batch: result.batch, temperatureC: result.temperatureC };
+  if (!analysis) {
+    return {
+      ...base,
+      n: 0,
+      selectedOrder: null,
+      verdict: `not analysed: ${result.error?.message}`,
+      error: result.error,
+    };
+  }
+  const shelfLife = seriesShelfLife(result, conditions);
+  return {
+    ...base,
+    n: analysis.n,
+    excluded: analysis.excluded,
+    timeSpan: analysis.timeSpan,
+    selectedOrder: analysis.selectedOrder,
+    orderSource: analysis.orderSource,
+    verdict: analysis.verdict,
+    errorModel: analysis.errorModel,
+    fractionReacted: analysis.fractionReacted,
+    models: analysis.models.map((model) => ({
+      order: model.order,
+      ...(model.order === 'n' ? { n: model.n ?? null, nCi95: model.nCi95 ?? null } : {}),
+      k: model.k,
+      kCi95: model.kCi95,
+      kUnit: model.kUnit,
+      c0: model.c0,
+      c0Ci95: model.c0Ci95,
+      aicc: model.aicc,
+      weight: model.weight,
+      residualStandardDeviation: model.residualStandardDeviation,
+      applicable: model.applicable,
+      ...(model.reason === undefined ? {} : { reason: model.reason }),
+    })),
+    linearized: analysis.linearized.map((plot) => ({
+      order: plot.order,
+      transform: plot.transform,
+      slope: plot.slope,
+      intercept: plot.intercept,
+      r2: plot.rSquared,
+      k: plot.k,
+      applicable: plot.applicable,
+      ...(plot.reason === undefined ? {} : { reason: plot.reason }),
+    })),
+    halfLife: figure(analysis.halfLife),
+    t90: figure(analysis.t90),
+    ...(analysis.derivedReason === undefined ? {} : { derivedReason: analysis.derivedReason }),
+    ...(analysis.timeToLimit === undefined
+      ? {}
+      : {
+          timeToLimit: {
+            lower: figure(analysis.timeToLimit.lower),
+            upper: figure(analysis.timeToLimit.upper),
+          },
+        }),
+    ...(shelfLife === undefined ? {} : { shelfLife }),
+    warnings: analysis.warnings,
+    error: null,
+  };
+}
+
+function arrheniusEntry(analysis: DatasetAnalysis, temperatureColumnGiven: boolean) {
+  if (!temperatureColumnGiven) return null;
+  const arrhenius = analysis.arrhenius;
+  if (!arrhenius) {
+    return {
+      eaJPerMol: null,
+      eaCi95: null,
+      lnA: null,
+      notApplicableReason: 'all series are at one temperature',
+    };
+  }
+  const fit = arrhenius.fit;
+  const prediction = arrhenius.prediction;
+  return {
+    order: arrhenius.order,
+    orderSource: arrhenius.orderSource,
+    kUnit: arrhenius.kUnit,
+    points: arrhenius.rateConstants,
+    excludedSeries: arrhenius.excludedSeries,
+    eaJPerMol: fit?.activationEnergy ?? null,
+    eaCi95: fit?.activationEnergyInterval ?? null,
+    lnA: fit?.lnPreExponentialFactor ?? null,
+    lnACi95: fit?.lnPreExponentialFactorInterval ?? null,
+    r2: fit?.rSquared ?? null,
+    n: fit?.n ?? arrhenius.rateConstants.length,
+    intervalUnavailableReason: fit?.intervalUnavailableReason ?? null,
+    prediction: prediction
+      ? {
+          temperatureC: prediction.temperatureC,
+          k: prediction.rateConstant,
+          kCi95: prediction.confidenceInterval,
+          kPredictionInterval95: prediction.predictionInterval,
+          extrapolation: prediction.extrapolation,
+          t90: prediction.t90,
+          halfLife: prediction.halfLife,
+          derivedReason: prediction.derivedReason,
+        }
+      : null,
+    notApplicableReason: arrhenius.notApplicableReason,
+  };
+}
+
+function shelfLifeEntries(conditions: ConditionShelfLife[] | null) {
+  if (conditions === null) return null;
+  return conditions.map((condition) => ({
+    temperatureC: condition.temperatureC,
+    seriesIds: condition.seriesIds,
+    transform: condition.transform,
+    transformReason: condition.transformReason,
+    model: condition.result?.model ?? null,
+    sidedness: condition.result?.method.sidedness ?? null,
+    poolingPValues: condition.result?.poolability
+      ? {
+          slopes: condition.result.poolability.slopeTest.pValue,
+          intercepts: condition.result.poolability.interceptTest?.pValue ?? null,
+        }
+      : null,
+    shelfLife: condition.result?.shelfLife ?? null,
+    status: condition.result?.status ?? null,
+    limitingLine: condition.result?.limitingLine ?? null,
+    beyondObservedData: condition.result?.extrapolation.beyondObservedData ?? null,
+    reason: condition.result?.reason ?? null,
+    lines: (condition.result?.lines ?? []).map((line) => ({
+      label: line.label,
+      batches: line.batches,
+      shelfLife: line.shelfLife,
+      status: line.status,
+    })),
+    notApplicableReason: condition.notApplicableReason,
+  }));
+}
+
+export function fitDocument(analysis: DatasetAnalysis, context: FitDocumentContext) {
+  return {
+    engineVersion: analysis.engineVersion,
+    file: context.file,
+    sheet: context.sheet,
+    timeUnit: context.timeUnit,
+    valueUnit: context.valueUnit,
+    confidenceLevel: analysis.confidenceLevel,
+    series: analysis.series.map((result) => seriesEntry(result, analysis.shelfLife)),
+    arrhenius: arrheniusEntry(analysis, context.temperatureColumnGiven),
+    shelfLife: shelfLifeEntries(analysis.shelfLife),
+    warnings: [...context.intakeWarnings, ...analysis.warnings.map((warning) => warning.message)],
+    methodStatement: analysis.methodStatement,
+  };
+}
+
+export type FitDocument = ReturnType<typeof fitDocument>;

@@ -1,0 +1,125 @@
+/**
+ * `npm run --silent fit -- [options] FILE`: fits degradation kinetics to a CSV or XLSX file from
+ * the command line and prints a readable report, or one JSON document with `--json`
+ * (docs/fit-cli.md).
+ *
+ * Steps: read the options; read the file into cell grids; take units the options leave out from
+ * the column headers ("Time (h)", "Assay (%)"); read the series with the column mapping (every
+ * problem listed with its cell); analyse the data set; print.
+ *
+ * Exit codes: 0 when at least one series was analysed (series that could not be are reported in
+ * the output); 1 when no series could be analysed; 2 for unusable input (options, file, cells),
+ * with every problem on standard error.
+ */
+import path from 'node:path';
+import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
+import { headerTexts, resolveColumn } from '../../shared/intake/resolve-column.ts';
+import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
+import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
+import {
+  temperatureUnitFromHeader,
+  timeUnitFromHeader,
+  valueUnitFromHeader,
+} from '../../shared/intake/unit-from-header.ts';
+import { analyseDataset } from '../../shared/kinetics/analyse-dataset.ts';
+import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
+import { FileReadError } from '../intake/file-read-error.ts';
+import { FIT_USAGE, type FitOptions, parseFitArguments } from './fit-arguments.ts';
+import { fitDocument } from './fit-document.ts';
+import { fitReport } from './fit-report.ts';
+import { loadSheets } from './load-sheets.ts';
+
+const EXIT_NOTHING_COMPUTED = 1;
+const EXIT_BAD_INPUT = 2;
+
+function fail(messages: string[], code = EXIT_BAD_INPUT): never {
+  for (const message of messages) process.stderr.write(`fit: ${message}\n`);
+  process.exit(code);
+}
+
+function headerOf(sheet: SheetGrid, headerRow: number, column: string): string {
+  const resolved = resolveColumn(sheet, headerRow, column);
+  return resolved.ok ? (headerTexts(sheet, headerRow)[resolved.index] ?? '') : '';
+}
+
+async function readSheets(file: string): Promise<SheetGrid[]> {
+  try {
+    return await loadSheets(file);
+  } catch (error) {
+    if (error instanceof FileReadError) fail([`${file}: ${error.message}`]);
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') fail([`${file}: no such file.`]);
+    throw error;
+  }
+}
+
+async function main(options: FitOptions): Promise<number> {
+  const sheets = await readSheets(options.file);
+  const sheet =
+    options.sheet === undefined ? sheets[0] : sheets.find((candidate) => candidate.name === options.sheet);
+  const timeHeader = sheet ? headerOf(sheet, options.headerRow, options.time) : '';
+  const valueHeader = sheet ? headerOf(sheet, options.headerRow, options.value) : '';
+  const temperatureHeader =
+    sheet && options.temperature ? headerOf(sheet, options.headerRow, options.temperature) : '';
+  const timeUnit = options.timeUnit ?? timeUnitFromHeader(timeHeader);
+  if (sheet && timeUnit === null) {
+    fail([
+      `the time unit is not stated in the header "${timeHeader}"; give it with --time-unit (s, min, h, d, week, month, year).`,
+    ]);
+  }
+  const mapping = columnMappingSchema.safeParse({
+    sheet: sheet?.name ?? options.sheet,
+    headerRow: options.headerRow,
+    timeColumn: options.time,
+    timeFormat: options.timeFormat,
+    timeUnit: timeUnit ?? 'month',
+    valueColumn: options.value,
+    valueUnit: options.valueUnit ?? valueUnitFromHeader(valueHeader) ?? '%',
+    seriesColumn: options.series,
+    temperatureColumn: options.temperature,
+    temperatureUnit: options.temperatureUnit ?? temperatureUnitFromHeader(temperatureHeader) ?? 'C',
+  });
+  if (!mapping.success)
+    fail(mapping.error.issues.map((issue) => `${issue.path.join('.')}: ${issue.message}`));
+  const intake = seriesFromGrid(sheets, mapping.data);
+  for (const warning of intake.warnings) process.stderr.write(`fit: warning: ${warning.text}\n`);
+  if (!intake.ok) fail(intake.problems.map((problem) => problem.text));
+
+  const analysis = analyseDataset(intake.series, {
+    confidenceLevel: options.confidence,
+    errorModel: options.errorModel,
+    ...(options.order === undefined ? {} : { order: options.order }),
+    ...(options.lowerLimit === undefined ? {} : { lowerLimit: options.lowerLimit }),
+    ...(options.upperLimit === undefined ? {} : { upperLimit: options.upperLimit }),
+    ...(options.storageTemperature === undefined ? {} : { storageTemperatureC: options.storageTemperature }),
+  });
+  const document = fitDocument(analysis, {
+    file: path.basename(options.file),
+    sheet: mapping.data.sheet ?? sheets[0]?.name ?? '',
+    timeUnit: mapping.data.timeUnit,
+    valueUnit: mapping.data.valueUnit,
+    temperatureColumnGiven: options.temperature !== undefined,
+    intakeWarnings: intake.warnings.map((warning) => warning.text),
+  });
+  process.stdout.write(options.json ? `${JSON.stringify(document, null, 2)}\n` : fitReport(document));
+  const analysed = analysis.series.filter((result) => result.analysis !== null).length;
+  if (analysed === 0) {
+    process.stderr.write('fit: no series could be analysed; see the reasons above.\n');
+    return EXIT_NOTHING_COMPUTED;
+  }
+  return 0;
+}
+
+const parsed = parseFitArguments(process.argv.slice(2));
+if (!parsed.ok) fail([parsed.message, 'Run with --help for the options.']);
+if ('help' in parsed) {
+  process.stdout.write(`${FIT_USAGE}\n`);
+  process.exit(0);
+}
+main(parsed.options).then(
+  (code) => process.exit(code),
+  (error: unknown) => {
+    const message =
+      error instanceof KineticsError ? error.message : ((error as Error).stack ?? String(error));
+    fail([message], EXIT_NOTHING_COMPUTED);
+  },
+);

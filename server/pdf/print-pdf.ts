@@ -1,0 +1,127 @@
+import { PDFDocument } from 'pdf-lib';
+import type { Page } from 'puppeteer-core';
+import type { BrowserPool } from './browser-pool.ts';
+import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.ts';
+
+/**
+ * Prints report HTML to PDF in a warm Chromium (`BrowserPool`), sealed off from everything but
+ * the HTML itself:
+ * - JavaScript is disabled in the page before the content is set, so no `<script>`, event
+ *   handler or `javascript:` URL runs;
+ * - every request is intercepted: `data:` URLs (the inlined fonts and images) continue, all
+ *   others are aborted before they leave the browser, and both are counted and returned so
+ *   callers and tests can prove nothing reached the network;
+ * - the page is new for each render and closed afterwards, so no state passes between reports.
+ *
+ * The PDF is A4 or US Letter with the running header (report number and version) and footer
+ * ("Page X of Y"), tagged (structure tree for accessibility) with a document outline from the
+ * headings. Chromium writes Title from `<title>`; pdf-lib then sets Title, Author, Subject,
+ * Keywords, Creator "Rateledger", Producer and the dates in the document information
+ * dictionary.
+ *
+ * Reference: Chrome DevTools Protocol `Page.printToPDF` and `Fetch` domains
+ * (chromedevtools.github.io/devtools-protocol); ISO 32000-1 §14.3.3 (document information).
+ *
+ * Throws when the browser cannot print within `timeoutMs` or dies while printing (the caller's
+ * job queue retries), and from the pool when Chromium cannot start.
+ *
+ * Example: await printPdf(pool, { html, paper: 'A4', header: { reportNumber: 'RL-1', version: 1,
+ * organisation: 'Lab' }, metadata: { title: 'T', author: 'A', subject: 'S', keywords: [] } })
+ * resolves to { pdf, pageCount: 6, requests: { allowed: 0, blocked: 0, blockedUrls: [] } }.
+ */
+
+export type PdfPaper = 'A4' | 'Letter';
+
+export interface PrintPdfOptions {
+  html: string;
+  paper: PdfPaper;
+  header: { reportNumber: string; version: number; organisation: string };
+  metadata: { title: string; author: string; subject: string; keywords: string[]; createdAt?: Date };
+  timeoutMs?: number;
+}
+
+export interface RequestTally {
+  /** Requests for inline `data:` resources, let through. */
+  allowed: number;
+  /** Requests for anything else, aborted before they were sent. */
+  blocked: number;
+  blockedUrls: string[];
+}
+
+export interface PrintPdfResult {
+  pdf: Uint8Array;
+  pageCount: number;
+  requests: RequestTally;
+}
+
+export const PRODUCER = 'Rateledger report printer (Chromium, pdf-lib)';
+const DEFAULT_TIMEOUT_MS = 60_000;
+const MAX_URLS_KEPT = 50;
+
+/** Opens a sealed page: JavaScript off, every non-`data:` request aborted and counted. */
+export async function sealedPage(page: Page, tally: RequestTally): Promise<void> {
+  await page.setJavaScriptEnabled(false);
+  await page.setRequestInterception(true);
+  page.on('request', (request) => {
+    if (request.isInterceptResolutionHandled()) return;
+    const url = request.url();
+    if (url.startsWith('data:')) {
+      tally.allowed += 1;
+      request.continue().catch(() => undefined);
+    } else {
+      tally.blocked += 1;
+      if (tally.blockedUrls.length < MAX_URLS_KEPT) tally.blockedUrls.push(url.slice(0, 200));
+      request.abort('blockedbyclient').catch(() => undefined);
+    }
+  });
+}
+
+/** Sets the document information dictionary; returns the new bytes and the page count. */
+export async function setPdfMetadata(
+  bytes: Uint8Array,
+  metadata: PrintPdfOptions['metadata'],
+  producer = PRODUCER,
+): Promise<{ pdf: Uint8Array; pageCount: number }> {
+  const document = await PDFDocument.load(bytes, { updateMetadata: false });
+  document.setTitle(metadata.title, { showInWindowTitleBar: true });
+  document.setAuthor(metadata.author);
+  document.setSubject(metadata.subject);
+  document.setKeywords(metadata.keywords);
+  document.setCreator('Rateledger');
+  document.setProducer(producer);
+  const when = metadata.createdAt ?? new Date();
+  document.setCreationDate(when);
+  document.setModificationDate(when);
+  const pdf = await document.save({ useObjectStreams: false });
+  return { pdf, pageCount: document.getPageCount() };
+}
+
+export async function printPdf(pool: BrowserPool, options: PrintPdfOptions): Promise<PrintPdfResult> {
+  const timeout = options.timeoutMs ?? DEFAULT_TIMEOUT_MS;
+  const requests: RequestTally = { allowed: 0, blocked: 0, blockedUrls: [] };
+  const printed = await pool.withBrowser(async (browser) => {
+    const page = await browser.newPage();
+    try {
+      page.setDefaultTimeout(timeout);
+      await sealedPage(page, requests);
+      await page.setContent(options.html, { waitUntil: 'load', timeout });
+      await page.evaluate(() => document.fonts.ready.then(() => undefined));
+      return await page.pdf({
+        format: options.paper,
+        printBackground: true,
+        displayHeaderFooter: true,
+        headerTemplate: headerTemplate(options.header),
+        footerTemplate: footerTemplate(options.header),
+        margin: PAGE_MARGINS,
+        preferCSSPageSize: false,
+        tagged: true,
+        outline: true,
+        timeout,
+      });
+    } finally {
+      await page.close().catch(() => undefined);
+    }
+  });
+  const { pdf, pageCount } = await setPdfMetadata(printed, options.metadata);
+  return { pdf, pageCount, requests };
+}

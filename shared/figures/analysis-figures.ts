@@ -1,0 +1,94 @@
+import type { Series } from '../kinetics/types.ts';
+import { arrheniusPlotSpec } from './arrhenius-plot.ts';
+import { fittedCurvesSpec } from './fitted-curves.ts';
+import { linearisedPlotsSpec } from './linearised-plots.ts';
+import { q1ePlotSpec } from './q1e-plot.ts';
+import { residualPlotSpec } from './residual-plot.ts';
+import type { StoredAnalysisResult } from './stored-result.ts';
+
+/** One figure: a stable id (for the page's placeholder), a title, a text alternative and the spec. */
+export interface FigureSpec {
+  id: string;
+  title: string;
+  description: string;
+  /** The series it belongs to, or null for the dataset figures (Arrhenius, Q1E). */
+  seriesId: string | null;
+  spec: Record<string, unknown>;
+}
+
+/**
+ * Every figure of an analysis, in the order the screen shows them: for each analysed series the
+ * straight-line plots, the data with fitted curves and band, and the residuals; then the
+ * Arrhenius plot (several temperatures) and a Q1E plot for each condition with several batches.
+ *
+ * Pure and deterministic: the same stored result and series give the same specs, byte for byte,
+ * so the screen, the export's figure data and a later PDF rendering agree.
+ *
+ * Throws nothing.
+ *
+ * Example: three batches at 25 °C and one at 40 °C give 4 × 3 series figures, one Arrhenius
+ * plot and one Q1E plot (25 °C).
+ */
+export function analysisFigures(
+  stored: StoredAnalysisResult,
+  seriesList: readonly Series[],
+  limits: { lower?: number; upper?: number },
+): FigureSpec[] {
+  const figures: FigureSpec[] = [];
+  const { analysis } = stored;
+  analysis.series.forEach((result, index) => {
+    const series = seriesList.find((candidate) => candidate.id === result.id);
+    if (!result.analysis || !series) return;
+    const figureId = `series-${index}`;
+    const linearised = linearisedPlotsSpec(result.analysis, series);
+    figures.push({
+      id: `${figureId}-linearised`,
+      title: `${result.id}: straight-line plots`,
+      description: String(linearised.description),
+      seriesId: result.id,
+      spec: linearised,
+    });
+    const band = stored.confidenceBands.find((candidate) => candidate.seriesId === result.id);
+    const curves = fittedCurvesSpec(result.analysis, series, band);
+    figures.push({
+      id: `${figureId}-curves`,
+      title: `${result.id}: data and fitted curves`,
+      description: String(curves.description),
+      seriesId: result.id,
+      spec: curves,
+    });
+    const residuals = residualPlotSpec(result.analysis, series);
+    if (residuals) {
+      figures.push({
+        id: `${figureId}-residuals`,
+        title: `${result.id}: residuals`,
+        description: String(residuals.description),
+        seriesId: result.id,
+        spec: residuals,
+      });
+    }
+  });
+  const arrhenius = arrheniusPlotSpec(analysis);
+  if (arrhenius) {
+    figures.push({
+      id: 'arrhenius',
+      title: 'Arrhenius plot',
+      description: String(arrhenius.description),
+      seriesId: null,
+      spec: arrhenius,
+    });
+  }
+  for (const condition of analysis.shelfLife ?? []) {
+    if (condition.seriesIds.length < 2) continue;
+    const spec = q1ePlotSpec(condition, seriesList, limits);
+    if (!spec) continue;
+    figures.push({
+      id: `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`,
+      title: `Q1E shelf life${condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`}`,
+      description: String(spec.description),
+      seriesId: null,
+      spec,
+    });
+  }
+  return figures;
+}

@@ -1,0 +1,145 @@
+import type { DatasetAnalysis } from '../kinetics/analyse-dataset.ts';
+import { lineValueAt } from '../kinetics/temperature/inverse-temperature-line.ts';
+import { FIGURE_CONFIG, PALETTE, SERIES_COLOURS, TOOLTIP_FORMAT, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import { MODEL_NAMES } from './results-table.ts';
+
+/**
+ * The Arrhenius plot — ln k against 1000/T — with each series' rate constant, the pooled point per
+ * temperature, the fitted line and the rate constant predicted at the storage temperature with its
+ * confidence interval, as a Vega-Lite spec.
+ *
+ * Why: the straightness of this line is the assumption behind every extrapolation from
+ * accelerated to long-term conditions; a bent line (another mechanism at high temperature) is
+ * visible here before it does harm.
+ *
+ * Formula in words: x = 1000/T with T = θ/°C + 273.15 in kelvin, y = ln k; the line is the
+ * engine's fit ln k = ln k̄ + slope·(1/T − 1/T̄) (`lineValueAt`), drawn from the coldest to the
+ * hottest of the fitted and storage temperatures. Reference: IUPAC Gold Book, "Arrhenius
+ * equation", doi 10.1351/goldbook.A00446.
+ *
+ * Throws nothing; returns null when the analysis has no Arrhenius fit.
+ *
+ * Example: four temperatures 25–60 °C give four pooled points on a falling line and a marked
+ * prediction at 25 °C.
+ */
+
+const KELVIN_OFFSET = 273.15;
+const LINE_POINTS = 25;
+
+export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unknown> | null {
+  const arrhenius = analysis.arrhenius;
+  const fit = arrhenius?.fit;
+  if (!arrhenius || !fit || arrhenius.order === null) return null;
+  const inverse = (celsius: number) => 1000 / (celsius + KELVIN_OFFSET);
+  const seriesPoints = analysis.series.flatMap((result) => {
+    const model = result.analysis?.models.find((candidate) => candidate.order === arrhenius.order);
+    if (result.temperatureC === null || !model || model.k === null || !(model.k > 0)) return [];
+    return [{ x: inverse(result.temperatureC), lnK: Math.log(model.k), series: result.id, batch: result.batch ?? result.id, temperature: `${result.temperatureC} °C` }];
+  });
+  const pooled = arrhenius.rateConstants.map((point) => ({
+    x: inverse(point.temperatureC),
+    lnK: point.lnK,
+    temperature: `${point.temperatureC} °C`,
+    seriesCount: point.seriesIds.length,
+  }));
+  const prediction = arrhenius.prediction;
+  const temperatures = [...fit.temperatureRangeC, ...(prediction ? [prediction.temperatureC] : [])];
+  const coldest = Math.min(...temperatures);
+  const hottest = Math.max(...temperatures);
+  const line = Array.from({ length: LINE_POINTS }, (_, i) => {
+    const celsius = coldest + ((hottest - coldest) * i) / (LINE_POINTS - 1);
+    return { x: inverse(celsius), lnK: lineValueAt(fit.line, 1 / (celsius + KELVIN_OFFSET)).estimate };
+  });
+  const layers: Record<string, unknown>[] = [
+    {
+      data: { values: line },
+      mark: { type: 'line', color: PALETTE.ledger, strokeWidth: 2 },
+      encoding: {
+        x: { field: 'x', type: 'quantitative', title: '1000/T (1/K)', scale: { zero: false, padding: 24 } },
+        y: { field: 'lnK', type: 'quantitative', title: `ln(k / ${arrhenius.kUnit ?? 'unit of k'})`, scale: { zero: false, padding: 24 } },
+      },
+    },
+    {
+      data: { values: seriesPoints },
+      mark: { type: 'point', size: 40, opacity: 0.7 },
+      encoding: {
+        x: { field: 'x', type: 'quantitative' },
+        y: { field: 'lnK', type: 'quantitative' },
+        color: { field: 'batch', type: 'nominal', title: 'Batch', scale: { range: SERIES_COLOURS } },
+        tooltip: [
+          { field: 'series', type: 'nominal' },
+          { field: 'temperature', type: 'nominal' },
+          { field: 'lnK', type: 'quantitative', title: 'ln k', format: TOOLTIP_FORMAT },
+        ],
+      },
+    },
+    {
+      data: { values: pooled },
+      mark: { type: 'point', shape: 'diamond', filled: true, size: 90, color: PALETTE.ink },
+      encoding: {
+        x: { field: 'x', type: 'quantitative' },
+        y: { field: 'lnK', type: 'quantitative' },
+        tooltip: [
+          { field: 'temperature', type: 'nominal' },
+          { field: 'lnK', type: 'quantitative', title: 'pooled ln k', format: TOOLTIP_FORMAT },
+          { field: 'seriesCount', type: 'quantitative', title: 'series' },
+        ],
+      },
+    },
+    {
+      data: { values: pooled },
+      mark: { type: 'text', dy: -14, fontSize: 11, color: PALETTE.inkMuted },
+      encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'lnK', type: 'quantitative' }, text: { field: 'temperature' } },
+    },
+  ];
+  if (prediction) {
+    const interval = prediction.confidenceInterval;
+    const predicted = [
+      {
+        x: inverse(prediction.temperatureC),
+        lnK: prediction.lnRateConstant,
+        low: interval ? Math.log(interval[0]) : prediction.lnRateConstant,
+        high: interval ? Math.log(interval[1]) : prediction.lnRateConstant,
+        label: `predicted at ${prediction.temperatureC} °C`,
+      },
+    ];
+    layers.push(
+      {
+        data: { values: predicted },
+        mark: { type: 'rule', color: PALETTE.alert, strokeWidth: 2 },
+        encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'low', type: 'quantitative' }, y2: { field: 'high' } },
+      },
+      {
+        data: { values: predicted },
+        mark: { type: 'point', shape: 'square', filled: true, size: 70, color: PALETTE.alert },
+        encoding: {
+          x: { field: 'x', type: 'quantitative' },
+          y: { field: 'lnK', type: 'quantitative' },
+          tooltip: [
+            { field: 'label', type: 'nominal', title: 'k' },
+            { field: 'lnK', type: 'quantitative', title: 'ln k', format: TOOLTIP_FORMAT },
+            { field: 'low', type: 'quantitative', title: 'CI lower (ln k)', format: TOOLTIP_FORMAT },
+            { field: 'high', type: 'quantitative', title: 'CI upper (ln k)', format: TOOLTIP_FORMAT },
+          ],
+        },
+      },
+      {
+        data: { values: predicted },
+        mark: { type: 'text', dy: 18, align: 'center', fontSize: 11, color: PALETTE.alert },
+        encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'lnK', type: 'quantitative' }, text: { field: 'label' } },
+      },
+    );
+  }
+  return {
+    $schema: VEGA_LITE_SCHEMA,
+    description: 'Arrhenius plot: ln k against 1000/T with the fitted line and the predicted rate constant.',
+    config: FIGURE_CONFIG,
+    width: 560,
+    height: 300,
+    title: {
+      text: 'Arrhenius plot',
+      subtitle: `${MODEL_NAMES[String(arrhenius.order)]} rate constants; diamonds: pooled per temperature${prediction ? '; red: prediction with its confidence interval' : ''}`,
+    },
+    layer: layers,
+  };
+}

@@ -1,0 +1,127 @@
+import type { ConditionShelfLife } from '../kinetics/analyse-dataset.ts';
+import type { Series } from '../kinetics/types.ts';
+import { FIGURE_CONFIG, PALETTE, SERIES_COLOURS, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import { formatSignificant } from './significant-figures.ts';
+
+/**
+ * The ICH Q1E shelf-life plot of one storage condition: each batch's results, the mean regression
+ * line(s), the one-sided (or two-sided) confidence limit, the acceptance criterion and the time at
+ * which the limit is first met, as a Vega-Lite spec.
+ *
+ * Why: ICH Q1E App. B asks for the shelf life where the confidence limit of the mean meets the
+ * acceptance criterion; this is the picture of that rule, and of whether batches were pooled.
+ *
+ * Formula in words: mean and confidence limit come from the engine's grid for each line
+ * (back-transformed to the attribute's scale); the vertical rule marks `result.shelfLife`.
+ * Reference: ICH Q1E (2003) App. B.1, Figure 1 (the picture this reproduces in spirit).
+ *
+ * Throws nothing; returns null when the condition has no Q1E result.
+ *
+ * Example: three pooled batches with a lower limit of 95 give one mean line, its lower 95 %
+ * confidence limit, the limit at 95 and a rule at the crossing, e.g. "shelf life 31.4 month".
+ */
+export function q1ePlotSpec(
+  condition: ConditionShelfLife,
+  seriesList: readonly Series[],
+  limits: { lower?: number; upper?: number },
+): Record<string, unknown> | null {
+  const result = condition.result;
+  if (!result) return null;
+  const members = seriesList.filter((series) => condition.seriesIds.includes(series.id));
+  const timeUnit = members[0]?.timeUnit ?? '';
+  const valueUnit = members[0]?.valueUnit ?? '';
+  const observations = members.flatMap((series) =>
+    series.observations
+      .filter((observation) => observation.excluded === undefined)
+      .map((observation) => ({ time: observation.time, value: observation.value, group: series.id })),
+  );
+  const curves = result.lines.flatMap((line) =>
+    line.grid.flatMap((point) => [
+      ...(point.mean === null ? [] : [{ time: point.time, value: point.mean, group: line.label, curve: `${line.label}: mean`, kind: 'mean' }]),
+      ...(limits.lower !== undefined && point.lowerCL !== null
+        ? [{ time: point.time, value: point.lowerCL, group: line.label, curve: `${line.label}: lower confidence limit`, kind: 'limit' }]
+        : []),
+      ...(limits.upper !== undefined && point.upperCL !== null
+        ? [{ time: point.time, value: point.upperCL, group: line.label, curve: `${line.label}: upper confidence limit`, kind: 'limit' }]
+        : []),
+    ]),
+  );
+  const criteria = [
+    ...(limits.lower === undefined ? [] : [{ value: limits.lower, label: `lower limit ${limits.lower}` }]),
+    ...(limits.upper === undefined ? [] : [{ value: limits.upper, label: `upper limit ${limits.upper}` }]),
+  ];
+  const percent = Math.round(result.method.confidence * 100);
+  const groups = [...new Set([...result.lines.map((line) => line.label), ...members.map((series) => series.id)])];
+  const colourScale = { domain: groups, range: groups.map((_, index) => SERIES_COLOURS[index % SERIES_COLOURS.length]!) };
+  const layers: Record<string, unknown>[] = [
+    {
+      data: { values: curves },
+      mark: { type: 'line', clip: true },
+      encoding: {
+        x: { field: 'time', type: 'quantitative', title: timeTitle(timeUnit) },
+        y: { field: 'value', type: 'quantitative', title: `Value (${valueUnit})`, scale: { zero: false } },
+        detail: { field: 'curve', type: 'nominal' },
+        color: { field: 'group', type: 'nominal', title: 'Batch / line', scale: colourScale },
+        strokeDash: { condition: { test: "datum.kind === 'limit'", value: [6, 4] }, value: [1, 0] },
+        strokeWidth: { condition: { test: "datum.kind === 'mean'", value: 2.25 }, value: 1.5 },
+        tooltip: [
+          { field: 'curve', type: 'nominal' },
+          { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
+          { field: 'value', type: 'quantitative', format: TOOLTIP_FORMAT },
+        ],
+      },
+    },
+    {
+      data: { values: observations },
+      mark: { type: 'point', filled: true, size: 40 },
+      encoding: {
+        x: { field: 'time', type: 'quantitative' },
+        y: { field: 'value', type: 'quantitative' },
+        color: { field: 'group', type: 'nominal', title: 'Batch / line', scale: colourScale },
+        tooltip: [
+          { field: 'group', type: 'nominal', title: 'series' },
+          { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
+          { field: 'value', type: 'quantitative', format: TOOLTIP_FORMAT },
+        ],
+      },
+    },
+    {
+      data: { values: criteria },
+      mark: { type: 'rule', color: PALETTE.alert, strokeWidth: 1.5 },
+      encoding: { y: { field: 'value', type: 'quantitative' } },
+    },
+    {
+      data: { values: criteria },
+      mark: { type: 'text', align: 'right', baseline: 'bottom', dy: -3, x: 'width', color: PALETTE.alert, fontSize: 11 },
+      encoding: { y: { field: 'value', type: 'quantitative' }, text: { field: 'label' } },
+    },
+  ];
+  if (result.shelfLife !== null) {
+    const crossing = [{ time: result.shelfLife, label: `shelf life ${formatSignificant(result.shelfLife, 3)} ${timeUnit}` }];
+    layers.push(
+      {
+        data: { values: crossing },
+        mark: { type: 'rule', color: PALETTE.ink, strokeDash: [2, 2] },
+        encoding: { x: { field: 'time', type: 'quantitative' } },
+      },
+      {
+        data: { values: crossing },
+        mark: { type: 'text', align: 'left', baseline: 'top', dx: 4, y: 4, fontSize: 11, color: PALETTE.ink },
+        encoding: { x: { field: 'time', type: 'quantitative' }, text: { field: 'label' } },
+      },
+    );
+  }
+  const where = condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`;
+  return {
+    $schema: VEGA_LITE_SCHEMA,
+    description: `ICH Q1E shelf-life plot${where}: batch results, mean line, ${percent} % confidence limit and acceptance criterion.`,
+    config: FIGURE_CONFIG,
+    width: 620,
+    height: 300,
+    title: {
+      text: `Q1E shelf life${where}`,
+      subtitle: `${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}; dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion`,
+    },
+    layer: layers,
+  };
+}

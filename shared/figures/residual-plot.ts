@@ -1,0 +1,68 @@
+import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
+import type { Series } from '../kinetics/types.ts';
+import { FIGURE_CONFIG, PALETTE, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import { MODEL_NAMES } from './results-table.ts';
+
+/**
+ * Residuals of the diagnosed fit against time, as a Vega-Lite spec, with possible outliers in red.
+ *
+ * Why: a curved or trending band of residuals says the law misses the shape of the data; a lone
+ * point far from zero is a possible outlier to investigate (never dropped by the program).
+ *
+ * Formula in words: residual = value − fitted value (or ln value − ln fitted for the proportional
+ * error model), from the engine's residual diagnostics; a point is marked when its externally
+ * studentised residual exceeds the engine's outlier threshold.
+ *
+ * Throws nothing; returns null when the series has no diagnosed fit.
+ *
+ * Example: a well-fitted series gives points scattered around the zero line, none marked.
+ */
+export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Record<string, unknown> | null {
+  const diagnostics = analysis.diagnostics;
+  if (!diagnostics) return null;
+  const outliers = new Set(diagnostics.possibleOutliers);
+  const points = diagnostics.points.map((point, index) => ({
+    time: point.time,
+    residual: point.residual,
+    studentised: point.externallyStudentised,
+    flag: outliers.has(index) ? 'possible outlier' : 'within threshold',
+  }));
+  const scale = analysis.errorModel === 'proportional' ? 'ln scale' : series.valueUnit;
+  return {
+    $schema: VEGA_LITE_SCHEMA,
+    description: `Residuals of the ${MODEL_NAMES[String(diagnostics.model)]} fit of ${series.id} against time.`,
+    config: FIGURE_CONFIG,
+    width: 620,
+    height: 180,
+    title: {
+      text: 'Residuals against time',
+      subtitle: `${MODEL_NAMES[String(diagnostics.model)]} fit; red: |studentised residual| > ${diagnostics.outlierThreshold}`,
+    },
+    layer: [
+      {
+        data: { values: [{ zero: 0 }] },
+        mark: { type: 'rule', color: PALETTE.inkMuted, strokeDash: [4, 3] },
+        encoding: { y: { field: 'zero', type: 'quantitative' } },
+      },
+      {
+        data: { values: points },
+        mark: { type: 'point', filled: true, size: 44 },
+        encoding: {
+          x: { field: 'time', type: 'quantitative', title: timeTitle(series.timeUnit) },
+          y: { field: 'residual', type: 'quantitative', title: `Residual (${scale})` },
+          color: {
+            field: 'flag',
+            type: 'nominal',
+            title: null,
+            scale: { domain: ['within threshold', 'possible outlier'], range: [PALETTE.ink, PALETTE.alert] },
+          },
+          tooltip: [
+            { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
+            { field: 'residual', type: 'quantitative', format: TOOLTIP_FORMAT },
+            { field: 'studentised', type: 'quantitative', title: 'studentised', format: '.3~g' },
+          ],
+        },
+      },
+    ],
+  };
+}

@@ -1,0 +1,85 @@
+import { analyseSeries } from '../kinetics/analyse-series.ts';
+import type { DatasetAnalysis, DatasetOptions } from '../kinetics/analyse-dataset.ts';
+import type { IntegerOrder, Series } from '../kinetics/types.ts';
+
+/**
+ * What an analysis run stores as its result: the engine's `DatasetAnalysis`, unchanged, and the
+ * confidence band of each series' chosen rate law on a grid of times, which the analysis screen,
+ * the export and the report draw. Both come from the engine; nothing here is estimated anew.
+ */
+export interface StoredAnalysisResult {
+  analysis: DatasetAnalysis;
+  confidenceBands: ConfidenceBand[];
+}
+
+/** Mean-curve confidence band of one series' chosen law, over the observed time span. */
+export interface ConfidenceBand {
+  seriesId: string;
+  /** The reported order, else the best integer order by AICc (the band of the curve drawn bold). */
+  order: IntegerOrder;
+  chosenBecause: 'reported-order' | 'lowest-aicc';
+  confidenceLevel: number;
+  points: { time: number; estimate: number | null; lower: number | null; upper: number | null }[];
+}
+
+/** Points per band: enough for a smooth curve on a 600-pixel plot, few enough to store. */
+export const BAND_POINTS = 41;
+
+/**
+ * The confidence band of each analysed series: the series is analysed again with its chosen order
+ * fixed and `predictAt` on an even grid across its observed span — the same data, options and
+ * deterministic fit, so the curve is the one of the stored result; only the predictions are new.
+ *
+ * Throws nothing: a series that was not analysed, or whose chosen law has no interval, gets no
+ * band or null bounds.
+ *
+ * Example: a first-order series observed from 0 to 24 months gets 41 points at 0, 0.6, …, 24
+ * months, each with the fitted value and its 95 % confidence interval.
+ */
+export function confidenceBands(
+  analysis: DatasetAnalysis,
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+): ConfidenceBand[] {
+  const bands: ConfidenceBand[] = [];
+  const {
+    storageTemperatureC: _storage,
+    direction: _direction,
+    arrheniusWeighting: _weighting,
+    lowerLimit: _lower,
+    upperLimit: _upper,
+    ...seriesOptions
+  } = options;
+  analysis.series.forEach((result, index) => {
+    const series = seriesList[index];
+    const fitted = result.analysis;
+    if (!series || !fitted) return;
+    const order = fitted.reportedOrder ?? fitted.selection.bestIntegerOrder;
+    if (order === null || order === undefined) return;
+    const [start, end] = fitted.timeSpan;
+    const grid = Array.from({ length: BAND_POINTS }, (_, i) => start + ((end - start) * i) / (BAND_POINTS - 1));
+    try {
+      const again = analyseSeries(series, {
+        ...seriesOptions,
+        order,
+        predictAt: grid,
+      });
+      bands.push({
+        seriesId: result.id,
+        order,
+        chosenBecause: fitted.reportedOrder === null ? 'lowest-aicc' : 'reported-order',
+        confidenceLevel: fitted.confidenceLevel,
+        points: (again.predictions ?? []).map((prediction) => ({
+          time: prediction.time,
+          estimate: prediction.estimate,
+          lower: prediction.confidenceInterval?.[0] ?? null,
+          upper: prediction.confidenceInterval?.[1] ?? null,
+        })),
+      });
+    } catch {
+      // The first pass analysed this series, so a second pass cannot fail on the data; if it
+      // does anyway, the screen draws the curve without a band rather than losing the run.
+    }
+  });
+  return bands;
+}

@@ -1,0 +1,79 @@
+import { describe, expect, it } from 'vitest';
+import { analyseDataset } from './analyse-dataset.ts';
+import {
+  DECISIVE_DELTA_AICC,
+  MIN_FRACTION_REACTED,
+  ORDER_CONSISTENCY_ALPHA,
+} from './order/order-decision-thresholds.ts';
+import type { Series } from './types.ts';
+import { ENGINE_VERSION } from './version.ts';
+
+// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930; DOMAIN.md §4.1), one point excluded by the analyst.
+const series: Series = {
+  id: 'N2O5',
+  timeUnit: 's',
+  valueUnit: 'mol/L',
+  observations: [
+    [0, 2.33],
+    [184, 2.08],
+    [319, 1.91],
+    [526, 1.67],
+    [867, 1.36],
+    [1198, 1.11],
+    [1877, 0.72],
+    [2315, 0.55],
+    [3144, 0.34],
+  ].map(([time, value], index) => ({
+    time: time as number,
+    value: value as number,
+    source: { row: index + 2, cell: `Sheet1!B${index + 2}` },
+    ...(index === 3 ? { excluded: { reason: 'vial cracked before analysis' } } : {}),
+  })),
+};
+
+describe('methodStatement', () => {
+  it('lists the data used and every exclusion with its reason and cell', () => {
+    const statement = analyseDataset([series]).methodStatement;
+    expect(statement.data.pointsUsed).toBe(8);
+    expect(statement.data.excludedPoints).toEqual([
+      { seriesId: 'N2O5', time: 526, value: 1.67, reason: 'vial cracked before analysis', cell: 'Sheet1!B5' },
+    ]);
+    expect(statement.text).toMatch(
+      /^Data\. 1 series, 8 points used; 1 excluded: N2O5 at time 526 \(value 1\.67, Sheet1!B5\): vial cracked before analysis\./,
+    );
+  });
+
+  it('quotes the engine thresholds and version, so the text cannot drift from the code', () => {
+    const statement = analyseDataset([series]).methodStatement;
+    expect(statement.engineVersion).toBe(ENGINE_VERSION);
+    expect(statement.orderSelection.thresholds).toMatchObject({
+      minFractionReacted: MIN_FRACTION_REACTED,
+      decisiveDeltaAicc: DECISIVE_DELTA_AICC,
+      orderConsistencyAlpha: ORDER_CONSISTENCY_ALPHA,
+    });
+    expect(statement.orderSelection.rule).toContain(`by at least ${DECISIVE_DELTA_AICC}`);
+    expect(statement.text).toContain(`Rateledger kinetics engine ${ENGINE_VERSION}.`);
+    expect(statement.text).toContain('Two-sided 95 % intervals');
+    expect(statement.temperature).toBeNull();
+    expect(statement.shelfLife).toBeNull();
+  });
+
+  it('states an analyst-fixed order, the error model used, the confidence level and the Q1E rule', () => {
+    const statement = analyseDataset([series], {
+      order: 1,
+      errorModel: 'proportional',
+      confidenceLevel: 0.9,
+      lowerLimit: 0.5,
+    }).methodStatement;
+    expect(statement.orderSelection.source).toBe('analyst');
+    expect(statement.orderSelection.rule).toMatch(/^Fixed by the analyst at first order/);
+    expect(statement.errorModel).toMatchObject({
+      requested: 'proportional',
+      perSeries: [{ id: 'N2O5', errorModel: 'proportional' }],
+    });
+    expect(statement.text).toContain('Two-sided 90 % intervals');
+    // ICH Q1E App. B.2 / Q1A(R2) 2.2.9: poolability at significance 0.25 (DOMAIN.md §1.6).
+    expect(statement.shelfLife).toContain('significance 0.25');
+    expect(statement.shelfLife).toContain('regressed on ln(value) (the analyst fixed first order)');
+  });
+});

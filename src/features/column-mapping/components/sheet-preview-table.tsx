@@ -1,0 +1,93 @@
+import type { SheetPreview } from '../../../../shared/api/uploads.ts';
+import { columnLetter } from '../../../../shared/intake/cell-reference.ts';
+
+export interface ColumnRoles {
+  [columnIndex: number]: string;
+}
+
+/**
+ * The first rows of a sheet as the file holds them: row numbers and column letters as in a
+ * spreadsheet, the header row and mapped columns marked, replicate rows labelled, and cells whose
+ * formula has no stored value flagged.
+ */
+export function SheetPreviewTable({
+  sheet,
+  headerRow,
+  roles,
+  replicateRows,
+}: {
+  sheet: SheetPreview;
+  headerRow: number;
+  roles: ColumnRoles;
+  replicateRows: ReadonlySet<number>;
+}) {
+  const letters = Array.from({ length: sheet.columnCount }, (_, index) => columnLetter(index));
+  return (
+    <div className="overflow-x-auto rounded-md border border-rule bg-white">
+      <table className="w-full border-collapse text-sm" aria-label={`First rows of sheet ${sheet.name}`}>
+        <thead>
+          <tr className="bg-paper text-xs text-ink-muted">
+            <th className="w-12 border-b border-r border-rule px-2 py-1 text-right font-normal">row</th>
+            {letters.map((letter, index) => (
+              <th
+                key={letter}
+                scope="col"
+                className={`border-b border-r border-rule px-2 py-1 text-left font-normal ${roles[index] ? 'bg-ledger-light text-ledger' : ''}`}
+              >
+                <span className="font-mono">{letter}</span>
+                {roles[index] && (
+                  <span className="ml-1 font-semibold uppercase tracking-wide">{roles[index]}</span>
+                )}
+              </th>
+            ))}
+            <th className="border-b border-rule px-2 py-1 text-left font-normal">
+              <span className="sr-only">Notes</span>
+            </th>
+          </tr>
+        </thead>
+        <tbody>
+          {sheet.rows.map((row, rowIndex) => {
+            const rowNumber = rowIndex + 1;
+            const isHeader = rowNumber === headerRow;
+            const isReplicate = replicateRows.has(rowNumber);
+            return (
+              <tr
+                key={rowNumber}
+                className={`border-b border-rule/60 ${isHeader ? 'bg-ledger-light font-semibold' : ''} ${rowNumber < headerRow ? 'text-ink-muted' : ''}`}
+              >
+                <th
+                  scope="row"
+                  className="border-r border-rule px-2 py-1 text-right font-mono text-xs font-normal text-ink-muted"
+                >
+                  {rowNumber}
+                </th>
+                {row.map((cell, column) => (
+                  <td
+                    key={letters[column]}
+                    title={cell.kind === 'formula-without-value' ? 'Formula with no stored value' : undefined}
+                    className={`whitespace-nowrap border-r border-rule/60 px-2 py-1 ${cell.kind === 'number' ? 'text-right tabular-nums' : ''} ${cell.kind === 'formula-without-value' ? 'bg-alert/10 font-mono text-xs text-alert' : ''} ${roles[column] && !isHeader ? 'bg-ledger-light/40' : ''}`}
+                  >
+                    {cell.text}
+                  </td>
+                ))}
+                <td className="px-2 py-1 text-xs">
+                  {isHeader && <span className="rounded-sm bg-ledger px-1.5 py-0.5 text-white">header</span>}
+                  {isReplicate && (
+                    <span className="rounded-sm border border-ledger px-1.5 py-0.5 text-ledger">
+                      replicate
+                    </span>
+                  )}
+                </td>
+              </tr>
+            );
+          })}
+        </tbody>
+      </table>
+      <p className="border-t border-rule px-3 py-2 text-xs text-ink-muted">
+        Showing {sheet.rows.length} of {sheet.rowCount} rows, {sheet.columnCount} columns.
+        {sheet.merges.length > 0 &&
+          ` Merged cells: ${sheet.merges.join(', ')} (read as one value in their first cell).`}
+      </p>
+    </div>
+  );
+}
