@@ -7,6 +7,7 @@ import { createAuthenticator } from './auth/passport-setup.ts';
 import type { DatabaseHandle } from './db/client.ts';
 import { errorHandler, notFound } from './http/error-handler.ts';
 import { requireJsonBody } from './http/require-json.ts';
+import { analysisRoutes } from './routes/analysis-routes.ts';
 import { apiRoutes } from './routes/api-routes.ts';
 import { authRoutes } from './routes/auth-routes.ts';
 import { healthRoutes } from './routes/health-routes.ts';
@@ -99,6 +100,7 @@ export function createApp(
   app.use(authRoutes(services));
   app.use(pageRoutes(services));
   app.use(apiRoutes(services));
+  app.use(analysisRoutes(services));
   app.use(reportRoutes(services));
   app.use(studyRoutes(services));
   app.use(uploadRoutes(services));

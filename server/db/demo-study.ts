@@ -1,14 +1,17 @@
 import { createHash } from 'node:crypto';
+import { eq } from 'drizzle-orm';
 import ExcelJS from 'exceljs';
 import type { ColumnMappingInput } from '../../shared/intake/column-mapping.ts';
 import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
 import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
+import type { Series } from '../../shared/kinetics/types.ts';
 import { appendAuditEvent } from '../audit/audit-trail.ts';
-import { canonicalJson } from '../audit/canonical-json.ts';
 import { readWorkbook } from '../intake/read-workbook.ts';
 import { excludePoint, runAnalysis } from '../services/analysis-runs.ts';
-import type { Transaction } from './client.ts';
-import { datasets, studies, uploads } from './schema/index.ts';
+import { seriesSha256 } from '../services/datasets.ts';
+import type { Executor, Transaction } from './client.ts';
+import { DEMO_ACCOUNTS } from './demo-accounts.ts';
+import { datasets, studies, uploads, users } from './schema/index.ts';
 
 /**
  * The demo stability study of the invented "Brackenfold Laboratories (demo)": a fictional tablet,
@@ -119,97 +122,126 @@ export const DEMO_MAPPING: ColumnMappingInput = {
   temperatureColumn: 'Storage (°C)',
 };
 
+export interface DemoContext {
+  organisationId: number;
+  analystUserId: number;
+  analystName: string;
+}
+
+/**
+ * The demo study, its original workbook (upload) and the dataset read from it by the real intake,
+ * with audit events; no analysis yet. Used by the seed and by tests that need a realistic dataset.
+ */
+export async function createDemoDataset(
+  db: Executor,
+  context: DemoContext,
+): Promise<{ studyId: number; uploadId: number; datasetId: number; series: Series[] }> {
+  const actor = { actorUserId: context.analystUserId, actorLabel: context.analystName };
+  return db.transaction(async (tx) => {
+    const [study] = await tx
+      .insert(studies)
+      .values({
+        organisationId: context.organisationId,
+        title: 'Quillatrine 40 mg — registration stability (demo)',
+        product: DEMO_PRODUCT,
+        attribute: 'Assay',
+        unit: '% of label claim',
+        direction: 'decreasing',
+        lowerLimit: 95,
+        upperLimit: 105,
+        storageTemperatureC: 25,
+        storageHumidityPercent: 60,
+        batches: [...DEMO_BATCHES],
+        notes: 'Invented demo data: long-term 25 °C/60 % RH with accelerated 40, 50 and 60 °C.',
+        createdBy: context.analystUserId,
+      })
+      .returning();
+    await appendAuditEvent(tx, {
+      organisationId: context.organisationId,
+      ...actor,
+      action: 'study.created',
+      recordType: 'study',
+      recordId: study!.id,
+      after: study,
+    });
+    const content = await demoWorkbook();
+    const [upload] = await tx
+      .insert(uploads)
+      .values({
+        organisationId: context.organisationId,
+        studyId: study!.id,
+        fileName: DEMO_WORKBOOK_NAME,
+        mediaType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
+        format: 'xlsx',
+        sizeBytes: content.length,
+        sha256: createHash('sha256').update(content).digest('hex'),
+        content,
+        uploadedBy: context.analystUserId,
+      })
+      .returning({ id: uploads.id, sha256: uploads.sha256 });
+    const mapping = columnMappingSchema.parse(DEMO_MAPPING);
+    const intake = seriesFromGrid(await readWorkbook(content), mapping);
+    if (!intake.ok)
+      throw new Error(`demo workbook does not read: ${JSON.stringify(intake.problems.slice(0, 3))}`);
+    const pointCount = intake.series.reduce((sum, series) => sum + series.observations.length, 0);
+    const [dataset] = await tx
+      .insert(datasets)
+      .values({
+        organisationId: context.organisationId,
+        studyId: study!.id,
+        uploadId: upload!.id,
+        mapping,
+        series: intake.series,
+        pointCount,
+        sha256: seriesSha256(intake.series),
+        createdBy: context.analystUserId,
+      })
+      .returning({ id: datasets.id });
+    await appendAuditEvent(tx, {
+      organisationId: context.organisationId,
+      ...actor,
+      action: 'dataset.imported',
+      recordType: 'dataset',
+      recordId: dataset!.id,
+      after: { uploadId: upload!.id, uploadSha256: upload!.sha256, mapping, pointCount },
+    });
+    return { studyId: study!.id, uploadId: upload!.id, datasetId: dataset!.id, series: intake.series };
+  });
+}
+
 /** Creates the demo study with its upload, dataset and analysis runs, inside the seed's transaction. */
 export async function seedDemoStudy(
   tx: Transaction,
-  context: { organisationId: number; analystUserId: number; analystName: string },
+  organisation: { organisationId: number },
 ): Promise<{ studyId: number; datasetId: number; runIds: number[] }> {
-  const [study] = await tx
-    .insert(studies)
-    .values({
-      organisationId: context.organisationId,
-      title: 'Quillatrine 40 mg — registration stability (demo)',
-      product: DEMO_PRODUCT,
-      attribute: 'Assay',
-      unit: '% of label claim',
-      direction: 'decreasing',
-      lowerLimit: 95,
-      upperLimit: 105,
-      storageTemperatureC: 25,
-      storageHumidityPercent: 60,
-      batches: [...DEMO_BATCHES],
-      notes: 'Invented demo data: long-term 25 °C/60 % RH with accelerated 40, 50 and 60 °C.',
-      createdBy: context.analystUserId,
-    })
-    .returning();
-  const system = { userId: context.analystUserId, label: `${context.analystName} (demo seed)` };
-  await appendAuditEvent(tx, {
-    organisationId: context.organisationId,
-    actorUserId: system.userId,
-    actorLabel: system.label,
-    action: 'study.created',
-    recordType: 'study',
-    recordId: study!.id,
-    after: study,
-  });
-  const content = await demoWorkbook();
-  const [upload] = await tx
-    .insert(uploads)
-    .values({
-      organisationId: context.organisationId,
-      studyId: study!.id,
-      fileName: DEMO_WORKBOOK_NAME,
-      mediaType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
-      format: 'xlsx',
-      sizeBytes: content.length,
-      sha256: createHash('sha256').update(content).digest('hex'),
-      content,
-      uploadedBy: context.analystUserId,
-    })
-    .returning({ id: uploads.id, sha256: uploads.sha256 });
-  const mapping = columnMappingSchema.parse(DEMO_MAPPING);
-  const intake = seriesFromGrid(await readWorkbook(content), mapping);
-  if (!intake.ok) throw new Error(`demo workbook does not read: ${JSON.stringify(intake.problems.slice(0, 3))}`);
-  const pointCount = intake.series.reduce((sum, series) => sum + series.observations.length, 0);
-  const [dataset] = await tx
-    .insert(datasets)
-    .values({
-      organisationId: context.organisationId,
-      studyId: study!.id,
-      uploadId: upload!.id,
-      mapping,
-      series: intake.series,
-      pointCount,
-      sha256: createHash('sha256').update(canonicalJson(intake.series)).digest('hex'),
-      createdBy: context.analystUserId,
-    })
-    .returning({ id: datasets.id });
-  await appendAuditEvent(tx, {
-    organisationId: context.organisationId,
-    actorUserId: system.userId,
-    actorLabel: system.label,
-    action: 'dataset.imported',
-    recordType: 'dataset',
-    recordId: dataset!.id,
-    after: { uploadId: upload!.id, uploadSha256: upload!.sha256, mapping, pointCount },
-  });
-  const base = { organisationId: context.organisationId, datasetId: dataset!.id, actor: system };
+  const analystEmail = DEMO_ACCOUNTS.find((account) => account.roles.includes('analyst'))?.email ?? '';
+  const [analyst] = await tx.select().from(users).where(eq(users.email, analystEmail));
+  if (!analyst) throw new Error(`the demo analyst ${analystEmail} is missing`);
+  const context = {
+    organisationId: organisation.organisationId,
+    analystUserId: analyst.id,
+    analystName: `${analyst.fullName} (demo seed)`,
+  };
+  const { studyId, datasetId, series } = await createDemoDataset(tx, context);
+  const actor = { userId: context.analystUserId, label: context.analystName };
+  const base = { organisationId: context.organisationId, datasetId, actor };
   const fromData = await runAnalysis(tx, base);
   const firstOrder = await runAnalysis(tx, { ...base, options: { order: 1 } });
-  const outlierSeries = intake.series.find((series) => series.id.startsWith('QT-2402') && series.temperatureC === 40);
   const runIds = [fromData.runId, firstOrder.runId];
-  if (outlierSeries) {
+  const cracked = series.find((entry) => entry.batch === 'QT-2402' && entry.temperatureC === 40);
+  if (cracked) {
     const superseding = await excludePoint(tx, {
       organisationId: context.organisationId,
       runId: firstOrder.runId,
       request: {
-        seriesId: outlierSeries.id,
+        seriesId: cracked.id,
         observationIndex: 2,
-        reason: 'Demo: vial found cracked at the 2-month pull (invented deviation DV-0417); result not representative.',
+        reason:
+          'Demo: vial found cracked at the 2-month pull (invented deviation DV-0417); result not representative.',
       },
-      actor: system,
+      actor,
     });
     runIds.push(superseding.runId);
   }
-  return { studyId: study!.id, datasetId: dataset!.id, runIds };
+  return { studyId, datasetId, runIds };
 }

@@ -4,6 +4,7 @@ import { appendAuditEvent } from '../audit/audit-trail.ts';
 import { hashPassword } from '../auth/passwords.ts';
 import { type Database, openDatabase } from './client.ts';
 import { DEMO_ACCOUNTS, DEMO_ORGANISATION } from './demo-accounts.ts';
+import { seedDemoStudy } from './demo-study.ts';
 import { memberships, organisations, users } from './schema/index.ts';
 
 /**
@@ -43,6 +44,7 @@ export async function seedDemo(db: Database): Promise<'seeded' | 'already-presen
         accounts: DEMO_ACCOUNTS.map((account) => ({ email: account.email, roles: account.roles })),
       },
     });
+    await seedDemoStudy(tx, { organisationId: organisation!.id });
   });
   return 'seeded';
 }

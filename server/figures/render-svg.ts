@@ -52,15 +52,14 @@ export class FigureRenderError extends Error {
 const ID_PREFIX_PATTERN = /^[A-Za-z][A-Za-z0-9_-]*$/;
 const FORBIDDEN_MARKUP = /<script|<foreignObject|\bon[a-z]+\s*=|(?:xlink:)?href\s*=\s*"(?!#|data:)/i;
 
-const refuseLoading = async (uri: string): Promise<never> => {
-  throw new FigureRenderError(`Figures must carry their data inline; "${uri}" was not loaded.`);
-};
-const offlineLoader = {
-  load: refuseLoading,
-  sanitize: refuseLoading,
-  http: refuseLoading,
-  file: refuseLoading,
-} as unknown as ReturnType<typeof vega.loader>;
+/** A vega loader that loads nothing and remembers what was asked for. */
+function offlineLoader(refused: string[]) {
+  const refuse = async (uri: string): Promise<never> => {
+    refused.push(String(uri));
+    throw new FigureRenderError(`Figures must carry their data inline; "${uri}" was not loaded.`);
+  };
+  return { load: refuse, sanitize: refuse, http: refuse, file: refuse } as unknown as ReturnType<typeof vega.loader>;
+}
 
 let queue: Promise<unknown> = Promise.resolve();
 
@@ -73,8 +72,12 @@ async function renderOne(spec: TopLevelSpec, options: RenderSvgOptions): Promise
   try {
     const compiled = compile({ ...spec, config } as TopLevelSpec).spec;
     vega.resetSVGDefIds();
-    view = new vega.View(vega.parse(compiled), { renderer: 'none', loader: offlineLoader, logLevel: vega.Error });
+    const refused: string[] = [];
+    view = new vega.View(vega.parse(compiled), { renderer: 'none', loader: offlineLoader(refused), logLevel: vega.None });
     const svg = await view.toSVG();
+    if (refused.length > 0) {
+      throw new FigureRenderError(`Figures must carry their data inline; "${refused[0]}" was not loaded.`);
+    }
     return finishSvg(svg, options);
   } catch (error) {
     if (error instanceof FigureRenderError) throw error;

@@ -1,4 +1,4 @@
-import { PDFDocument } from 'pdf-lib';
+import { PDFDocument, ParseSpeeds } from 'pdf-lib';
 import type { Page } from 'puppeteer-core';
 import type { BrowserPool } from './browser-pool.ts';
 import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.ts';
@@ -9,8 +9,9 @@ import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.t
  * - JavaScript is disabled in the page before the content is set, so no `<script>`, event
  *   handler or `javascript:` URL runs;
  * - every request is intercepted: `data:` URLs (the inlined fonts and images) continue, all
- *   others are aborted before they leave the browser, and both are counted and returned so
- *   callers and tests can prove nothing reached the network;
+ *   others are aborted before they leave the browser (a navigation of the page itself, e.g. a
+ *   meta refresh, is answered locally with 204 No Content so the report stays), and both are
+ *   counted and returned so callers and tests can prove nothing reached the network;
  * - the page is new for each render and closed afterwards, so no state passes between reports.
  *
  * The PDF is A4 or US Letter with the running header (report number and version) and footer
@@ -33,7 +34,8 @@ import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.t
 export type PdfPaper = 'A4' | 'Letter';
 
 export interface PrintPdfOptions {
-  html: string;
+  /** The HTML, or a promise of it: the page is prepared while the HTML is still being rendered. */
+  html: string | Promise<string>;
   paper: PdfPaper;
   header: { reportNumber: string; version: number; organisation: string };
   metadata: { title: string; author: string; subject: string; keywords: string[]; createdAt?: Date };
@@ -71,7 +73,14 @@ export async function sealedPage(page: Page, tally: RequestTally): Promise<void>
     } else {
       tally.blocked += 1;
       if (tally.blockedUrls.length < MAX_URLS_KEPT) tally.blockedUrls.push(url.slice(0, 200));
-      request.abort('blockedbyclient').catch(() => undefined);
+      if (request.isNavigationRequest() && request.frame() === page.mainFrame()) {
+        // A meta refresh or link would replace the report with an error page if aborted; an answer
+        // of 204 No Content, given here without any network, makes the browser stay on the report
+        // (HTML Living Standard, "navigate": a 204 response aborts the navigation).
+        request.respond({ status: 204, body: '' }).catch(() => undefined);
+      } else {
+        request.abort('blockedbyclient').catch(() => undefined);
+      }
     }
   });
 }
@@ -82,7 +91,8 @@ export async function setPdfMetadata(
   metadata: PrintPdfOptions['metadata'],
   producer = PRODUCER,
 ): Promise<{ pdf: Uint8Array; pageCount: number }> {
-  const document = await PDFDocument.load(bytes, { updateMetadata: false });
+  // Fastest: parse and write in one go instead of yielding to the event loop every 100 objects.
+  const document = await PDFDocument.load(bytes, { updateMetadata: false, parseSpeed: ParseSpeeds.Fastest });
   document.setTitle(metadata.title, { showInWindowTitleBar: true });
   document.setAuthor(metadata.author);
   document.setSubject(metadata.subject);
@@ -92,19 +102,21 @@ export async function setPdfMetadata(
   const when = metadata.createdAt ?? new Date();
   document.setCreationDate(when);
   document.setModificationDate(when);
-  const pdf = await document.save({ useObjectStreams: false });
+  const pdf = await document.save({ useObjectStreams: false, objectsPerTick: Number.POSITIVE_INFINITY });
   return { pdf, pageCount: document.getPageCount() };
 }
 
 export async function printPdf(pool: BrowserPool, options: PrintPdfOptions): Promise<PrintPdfResult> {
   const timeout = options.timeoutMs ?? DEFAULT_TIMEOUT_MS;
   const requests: RequestTally = { allowed: 0, blocked: 0, blockedUrls: [] };
+  const html = Promise.resolve(options.html);
+  html.catch(() => undefined); // awaited below; this only keeps an early rejection from going unhandled
   const printed = await pool.withBrowser(async (browser) => {
     const page = await browser.newPage();
     try {
       page.setDefaultTimeout(timeout);
       await sealedPage(page, requests);
-      await page.setContent(options.html, { waitUntil: 'load', timeout });
+      await page.setContent(await html, { waitUntil: 'load', timeout });
       await page.evaluate(() => document.fonts.ready.then(() => undefined));
       return await page.pdf({
         format: options.paper,

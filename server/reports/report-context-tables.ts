@@ -16,52 +16,111 @@ import type { ReportTable } from './template-helpers.ts';
  * whose Estimate cell is "6.213 × 10⁻⁴ 1/s".
  */
 
-const SECTION_CAPTIONS: Record<ResultRow['section'], string> = {
-  'rate-law': 'Rate-law fits',
-  derived: 'Half-life, t90 and time to the limits (reported order)',
-  linearised: 'Straight-line plots (for reference only)',
-  arrhenius: 'Temperature dependence (Arrhenius)',
-  'shelf-life': 'ICH Q1E shelf life',
-};
-
 const where = (row: ResultRow) =>
-  [row.seriesId ?? '', row.temperatureC === null ? '' : `${row.temperatureC} °C`].filter(Boolean).join(' · ') || 'All';
+  row.seriesId ?? (row.temperatureC === null ? 'All series' : `${row.temperatureC} °C`);
 
 function modelName(row: ResultRow): string {
   if (row.model === null) return '';
   return MODEL_NAMES[row.model] ?? row.model;
 }
 
-/** One results table per section present, in a fixed order. */
+const intervalLabel = (analysis: DatasetAnalysis) => `${Math.round(analysis.confidenceLevel * 100)} % interval`;
+
+/** Engine prose quotes some numbers at full double precision; a report shows them at 4 significant figures. */
+const LONG_DECIMAL = /-?\d+\.\d{6,}/g;
+export const tidyNote = (note: string) => note.replace(LONG_DECIMAL, (match) => significant(Number(match), 4));
+
+/** A table with one row per result row (Q1E, Arrhenius, derived times). */
+function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string): ReportTable {
+  const hasInterval = rows.some((row) => row.lower !== null);
+  return {
+    caption,
+    columns: [
+      { key: 'where', label: 'Series / condition' },
+      { key: 'quantity', label: 'Quantity' },
+      { key: 'estimate', label: 'Estimate', align: 'right' },
+      ...(hasInterval ? [{ key: 'interval', label: intervalLabel(analysis), align: 'right' as const }] : []),
+      { key: 'note', label: 'Note' },
+    ],
+    rows: rows.map((row) => ({
+      where: where(row),
+      quantity: row.label,
+      estimate: significant(row.estimate, row.digits, row.unit),
+      interval: row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits, row.unit),
+      note: tidyNote(row.note),
+    })),
+  };
+}
+
+/** One row per series and rate law: k with its interval, C0, AICc and Akaike weight. */
+function modelTable(analysis: DatasetAnalysis, rows: ResultRow[]): ReportTable {
+  const groups = new Map<string, Map<string, ResultRow>>();
+  for (const row of rows) {
+    const key = `${row.seriesId}|${row.model}`;
+    const group = groups.get(key) ?? new Map<string, ResultRow>();
+    group.set(row.quantity, row);
+    groups.set(key, group);
+  }
+  const text = (row: ResultRow | undefined) => (row ? significant(row.estimate, row.digits, row.unit) : '');
+  return {
+    caption: 'Rate-law fits compared (AICc: lower is better; weights sum to 1 per series)',
+    columns: [
+      { key: 'where', label: 'Series' },
+      { key: 'model', label: 'Law' },
+      { key: 'k', label: 'Rate constant k', align: 'right' },
+      { key: 'interval', label: intervalLabel(analysis), align: 'right' },
+      { key: 'aicc', label: 'AICc', align: 'right' },
+      { key: 'weight', label: 'Weight', align: 'right' },
+      { key: 'note', label: 'Note' },
+    ],
+    rows: [...groups.values()].map((group) => {
+      const k = group.get('k') as ResultRow;
+      return {
+        where: where(k),
+        model: modelName(k) + (group.has('n') ? ` (n = ${text(group.get('n'))})` : ''),
+        k: text(k),
+        interval: k.lower === null || k.upper === null ? '' : interval([k.lower, k.upper], k.digits),
+        aicc: text(group.get('aicc')),
+        weight: text(group.get('weight')),
+        note: k.note,
+      };
+    }),
+  };
+}
+
+/** One row per series: R² of the three straight-line plots. */
+function linearisedTable(rows: ResultRow[]): ReportTable {
+  const bySeries = new Map<string, Record<string, string>>();
+  for (const row of rows) {
+    const entry = bySeries.get(where(row)) ?? { where: where(row) };
+    entry[row.model ?? ''] = significant(row.estimate, row.digits);
+    bySeries.set(where(row), entry);
+  }
+  return {
+    caption: 'Straight-line plots: R² against time (for reference only; they do not decide the order)',
+    columns: [
+      { key: 'where', label: 'Series' },
+      { key: 'value', label: 'value', align: 'right' },
+      { key: 'ln(value)', label: 'ln(value)', align: 'right' },
+      { key: '1/value', label: '1/value', align: 'right' },
+    ],
+    rows: [...bySeries.values()],
+  };
+}
+
+/** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
 export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
   const rows = resultRows(analysis);
-  const sections = ['derived', 'shelf-life', 'arrhenius', 'rate-law', 'linearised'] as const;
-  return sections.flatMap((section) => {
-    const chosen = rows.filter((row) => row.section === section);
-    if (chosen.length === 0) return [];
-    const hasInterval = chosen.some((row) => row.lower !== null);
-    return [
-      {
-        caption: SECTION_CAPTIONS[section],
-        columns: [
-          { key: 'where', label: 'Series / condition' },
-          { key: 'model', label: 'Model' },
-          { key: 'quantity', label: 'Quantity' },
-          { key: 'estimate', label: 'Estimate', align: 'right' as const },
-          ...(hasInterval ? [{ key: 'interval', label: `${Math.round(analysis.confidenceLevel * 100)} % interval`, align: 'right' as const }] : []),
-          { key: 'note', label: 'Note' },
-        ],
-        rows: chosen.map((row) => ({
-          where: where(row),
-          model: modelName(row),
-          quantity: row.label,
-          estimate: significant(row.estimate, row.digits, row.unit),
-          interval: row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits, row.unit),
-          note: row.note,
-        })),
-      },
-    ];
-  });
+  const of = (section: ResultRow['section']) => rows.filter((row) => row.section === section);
+  const tables: ReportTable[] = [];
+  if (of('shelf-life').length > 0) tables.push(listTable(analysis, of('shelf-life'), 'ICH Q1E shelf life per condition'));
+  if (of('arrhenius').length > 0) tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
+  if (of('derived').length > 0) {
+    tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
+  }
+  if (of('rate-law').length > 0) tables.push(modelTable(analysis, of('rate-law')));
+  if (of('linearised').length > 0) tables.push(linearisedTable(of('linearised')));
+  return tables;
 }
 
 /** The measured points of each series, in time order, marking excluded ones with their reason. */

@@ -120,18 +120,24 @@ function seriesSummaries(analysis: DatasetAnalysis) {
   });
 }
 
-function shelfLifeSummaries(analysis: DatasetAnalysis) {
+function shelfLifeSummaries(analysis: DatasetAnalysis, storageTemperatureC: number | null) {
   return (analysis.shelfLife ?? []).map((condition) => {
     const timeUnit = analysis.series.find((result) => condition.seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
     const result = condition.result;
-    const where = condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`;
+    const isStorage = condition.temperatureC === null || condition.temperatureC === storageTemperatureC;
+    const where =
+      condition.temperatureC === null
+        ? 'all series'
+        : `${condition.temperatureC} °C${isStorage ? ' (storage condition)' : ' (not the storage condition; for information)'}`;
+    const extrapolated = result?.extrapolation.beyondObservedData ? ', beyond the observed data (extrapolated)' : '';
     const statement = !result
       ? `Shelf life at ${where} not evaluated: ${condition.notApplicableReason ?? 'no result'}.`
       : result.shelfLife === null
         ? `At ${where} no crossing of the acceptance criterion within ${significant(result.horizon, 3, timeUnit)}: ${result.reason}.`
-        : `ICH Q1E shelf life at ${where}: ${significant(result.shelfLife, 3, timeUnit)}${result.limitingLine ? `, limited by ${result.limitingLine}` : ''} (${result.model}).`;
+        : `ICH Q1E shelf life at ${where}: ${significant(result.shelfLife, 3, timeUnit)}${result.limitingLine ? `, limited by ${result.limitingLine}` : ''}${extrapolated} (model: ${result.model}).`;
     return {
       temperatureC: condition.temperatureC,
+      isStorageCondition: isStorage,
       seriesIds: condition.seriesIds,
       transformReason: condition.transformReason,
       shelfLife: result?.shelfLife ?? null,
@@ -157,6 +163,7 @@ function arrheniusSummary(analysis: DatasetAnalysis) {
     temperatures: arrhenius.rateConstants.map((point) => point.temperatureC),
     activationEnergyKJPerMol: fit ? kilo(fit.activationEnergy) : null,
     activationEnergyInterval: fit?.activationEnergyInterval ? fit.activationEnergyInterval.map(kilo) : null,
+    intervalUnavailableReason: fit?.intervalUnavailableReason ?? null,
     rSquared: fit?.rSquared ?? null,
     notApplicableReason: arrhenius.notApplicableReason,
     prediction: prediction
@@ -166,6 +173,7 @@ function arrheniusSummary(analysis: DatasetAnalysis) {
           kInterval: prediction.confidenceInterval,
           kUnit: arrhenius.kUnit,
           t90: prediction.t90?.estimate ?? null,
+          timeUnit: analysis.series.find((result) => result.analysis)?.analysis?.timeUnit ?? '',
           t90Interval: prediction.t90?.ci ?? null,
           extrapolated: prediction.extrapolation !== null,
         }
@@ -188,7 +196,9 @@ export function buildReportContext(input: ReportContextInput) {
     reason: point.reason,
     cell: point.cell,
   }));
-  const shelfLife = shelfLifeSummaries(analysis);
+  const shelfLife = shelfLifeSummaries(analysis, study.storageTemperatureC).sort(
+    (a, b) => Number(b.isStorageCondition) - Number(a.isStorageCondition),
+  );
   const series = seriesSummaries(analysis);
   const headline = shelfLife.length > 0 ? shelfLife.map((entry) => entry.statement) : series.map((entry) => `${entry.id}: ${entry.verdict}`);
   return {

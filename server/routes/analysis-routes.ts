@@ -8,12 +8,11 @@ import {
   type RunAnalysisResponse,
   runAnalysisRequestSchema,
 } from '../../shared/api/analyses.ts';
-import { analysisFigures } from '../../shared/figures/analysis-figures.ts';
 import { requireRole } from '../auth/route-policy.ts';
 import { HttpError } from '../http/http-error.ts';
 import { analysisCsv, analysisWorkbook, exportFileName } from '../services/analysis-export.ts';
 import { excludePoint, getAnalysisRun, runAnalysis } from '../services/analysis-runs.ts';
-import { analysisPageModel, studyLimits } from '../services/analysis-view.ts';
+import { analysisPageModel, runFigures } from '../services/analysis-view.ts';
 import type { AppServices } from '../services/app-services.ts';
 import { renderPage } from '../web/render-page.ts';
 
@@ -48,7 +47,7 @@ export function analysisRoutes(services: AppServices): Router {
     const { id } = idParamSchema.parse(req.params);
     const run = await getAnalysisRun(services.db, req.user!.organisationId, id);
     const body: AnalysisFiguresResponse = {
-      figures: analysisFigures(run.result, run.series, studyLimits(run.study)),
+      figures: runFigures(run),
     };
     res.set('cache-control', 'private, max-age=3600, immutable').json(body);
   });
@@ -96,7 +95,9 @@ export function analysisRoutes(services: AppServices): Router {
       const [seriesIndex, observationIndex] = String(body.point ?? '').split(':');
       const seriesId = earlier.series[Number(seriesIndex)]?.id;
       if (seriesId === undefined || observationIndex === undefined) {
-        throw new HttpError(400, 'Choose the point to exclude.', [{ field: 'point', message: 'Choose the point to exclude.' }]);
+        throw new HttpError(400, 'Choose the point to exclude.', [
+          { field: 'point', message: 'Choose the point to exclude.' },
+        ]);
       }
       const request = excludePointRequestSchema.parse({ seriesId, observationIndex, reason: body.reason });
       const outcome = await excludePoint(services.db, {
@@ -126,4 +127,3 @@ export function analysisRoutes(services: AppServices): Router {
 
   return router;
 }
-

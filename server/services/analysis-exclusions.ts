@@ -90,7 +90,8 @@ function locate(series: Series, exclusion: Exclusion): number | string {
     return exclusion.observationIndex;
   }
   const matches = series.observations.flatMap((observation, index) =>
-    observation.time === exclusion.time && (exclusion.value === undefined || observation.value === exclusion.value)
+    observation.time === exclusion.time &&
+    (exclusion.value === undefined || observation.value === exclusion.value)
       ? [index]
       : [],
   );

@@ -1,8 +1,7 @@
 import ExcelJS from 'exceljs';
-import { analysisFigures } from '../../shared/figures/analysis-figures.ts';
 import { type ResultRow, resultRows } from '../../shared/figures/results-table.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
-import { CAUTION, studyLimits } from './analysis-view.ts';
+import { CAUTION, runFigures } from './analysis-view.ts';
 
 /**
  * The exports of an analysis run: an .xlsx workbook (data used and excluded, fits per series and
@@ -30,20 +29,36 @@ const RESULT_COLUMNS: { header: string; key: keyof ResultRow; width: number }[] 
 ];
 
 export function exportFileName(run: AnalysisRunRecord, extension: 'xlsx' | 'csv'): string {
-  const product = run.study.product.replace(/[^A-Za-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 40) || 'study';
+  const product =
+    run.study.product
+      .replace(/[^A-Za-z0-9]+/g, '-')
+      .replace(/^-|-$/g, '')
+      .slice(0, 40) || 'study';
   return `rateledger-analysis-${run.id}-${product}.${extension}`;
 }
 
-function addSheet(workbook: ExcelJS.Workbook, name: string, columns: { header: string; key: string; width?: number }[]) {
+function addSheet(
+  workbook: ExcelJS.Workbook,
+  name: string,
+  columns: { header: string; key: string; width?: number }[],
+) {
   const sheet = workbook.addWorksheet(name, { views: [{ state: 'frozen', ySplit: 1 }] });
-  sheet.columns = columns.map((column) => ({ header: column.header, key: column.key, width: column.width ?? 14 }));
+  sheet.columns = columns.map((column) => ({
+    header: column.header,
+    key: column.key,
+    width: column.width ?? 14,
+  }));
   sheet.getRow(1).font = { bold: true };
   return sheet;
 }
 
 /** Null stays an empty cell; numbers stay numbers. */
 const cellValue = (value: unknown): ExcelJS.CellValue =>
-  value === null || value === undefined ? null : typeof value === 'number' || typeof value === 'string' || typeof value === 'boolean' ? value : JSON.stringify(value);
+  value === null || value === undefined
+    ? null
+    : typeof value === 'number' || typeof value === 'string' || typeof value === 'boolean'
+      ? value
+      : JSON.stringify(value);
 
 export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> {
   const { analysis } = run.result;
@@ -77,7 +92,8 @@ export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> 
   }
 
   const results = addSheet(workbook, 'Results', RESULT_COLUMNS);
-  for (const row of resultRows(analysis)) results.addRow(Object.fromEntries(RESULT_COLUMNS.map(({ key }) => [key, cellValue(row[key])])));
+  for (const row of resultRows(analysis))
+    results.addRow(Object.fromEntries(RESULT_COLUMNS.map(({ key }) => [key, cellValue(row[key])])));
 
   const data = addSheet(workbook, 'Data', [
     { header: 'Series', key: 'series', width: 20 },
@@ -202,16 +218,38 @@ export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> 
     { header: 'Unit', key: 'unit', width: 18 },
     { header: 'Note', key: 'note', width: 90 },
   ]);
-  for (const row of resultRows(analysis).filter((entry) => entry.section === 'arrhenius' || entry.section === 'shelf-life')) {
-    temperature.addRow({ item: row.label, value: row.estimate, low: row.lower, high: row.upper, unit: row.unit, note: row.note });
+  for (const row of resultRows(analysis).filter(
+    (entry) => entry.section === 'arrhenius' || entry.section === 'shelf-life',
+  )) {
+    temperature.addRow({
+      item: row.label,
+      value: row.estimate,
+      low: row.lower,
+      high: row.upper,
+      unit: row.unit,
+      note: row.note,
+    });
   }
-  if (analysis.arrhenius?.notApplicableReason) temperature.addRow({ item: 'Arrhenius not completed', note: analysis.arrhenius.notApplicableReason });
+  if (analysis.arrhenius?.notApplicableReason)
+    temperature.addRow({ item: 'Arrhenius not completed', note: analysis.arrhenius.notApplicableReason });
   for (const condition of analysis.shelfLife ?? []) {
     const where = condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`;
-    temperature.addRow({ item: `Q1E ${where}: regression scale`, note: `${condition.transform} (${condition.transformReason})` });
-    if (condition.result?.poolability) temperature.addRow({ item: `Q1E ${where}: poolability`, note: condition.result.poolability.explanation });
+    temperature.addRow({
+      item: `Q1E ${where}: regression scale`,
+      note: `${condition.transform} (${condition.transformReason})`,
+    });
+    if (condition.result?.poolability)
+      temperature.addRow({
+        item: `Q1E ${where}: poolability`,
+        note: condition.result.poolability.explanation,
+      });
     for (const line of condition.result?.lines ?? []) {
-      temperature.addRow({ item: `Q1E ${where}: ${line.label} shelf life`, value: line.shelfLife, unit: run.series[0]?.timeUnit ?? '', note: line.reason });
+      temperature.addRow({
+        item: `Q1E ${where}: ${line.label} shelf life`,
+        value: line.shelfLife,
+        unit: run.series[0]?.timeUnit ?? '',
+        note: line.reason,
+      });
     }
   }
 
@@ -222,18 +260,22 @@ export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> 
     { header: 'Point', key: 'point' },
     { header: 'Value', key: 'value' },
   ]);
-  for (const figure of analysisFigures(run.result, run.series, studyLimits(run.study))) {
+  for (const figure of runFigures(run)) {
     collectLayers(figure.spec).forEach((values, layer) => {
       values.forEach((datum, point) => {
         for (const [field, value] of Object.entries(datum)) {
-          if (typeof value === 'number' || typeof value === 'string') figureData.addRow({ figure: figure.id, layer: layer + 1, field, point: point + 1, value });
+          if (typeof value === 'number' || typeof value === 'string')
+            figureData.addRow({ figure: figure.id, layer: layer + 1, field, point: point + 1, value });
         }
       });
     });
   }
 
-  const method = addSheet(workbook, 'Method statement', [{ header: 'Method statement', key: 'text', width: 140 }]);
-  for (const paragraph of run.methodStatement.split(/\n\n+/)) method.addRow({ text: paragraph }).alignment = { wrapText: true, vertical: 'top' };
+  const method = addSheet(workbook, 'Method statement', [
+    { header: 'Method statement', key: 'text', width: 140 },
+  ]);
+  for (const paragraph of run.methodStatement.split(/\n\n+/))
+    method.addRow({ text: paragraph }).alignment = { wrapText: true, vertical: 'top' };
   method.addRow({ text: '' });
   method.addRow({ text: CAUTION }).font = { italic: true };
 

@@ -59,7 +59,10 @@ export function engineOptions(options: AnalysisOptions, study: Study): DatasetOp
  * Throws HttpError 404 (dataset not in the organisation), 400 (exclusions that name no point,
  * engine option errors), 409 (superseding a run that a newer run already supersedes).
  */
-export async function runAnalysis(db: Executor, input: RunAnalysisInput): Promise<{ runId: number; supersedesRunId: number | null }> {
+export async function runAnalysis(
+  db: Executor,
+  input: RunAnalysisInput,
+): Promise<{ runId: number; supersedesRunId: number | null }> {
   const options = analysisOptionsSchema.parse(input.options ?? {});
   const [found] = await db
     .select({ dataset: datasets, study: studies })
@@ -75,12 +78,14 @@ export async function runAnalysis(db: Executor, input: RunAnalysisInput): Promis
     const analysis = analyseDataset(series, settings);
     result = { analysis, confidenceBands: confidenceBands(analysis, series, settings) };
   } catch (error) {
-    if (error instanceof KineticsError) throw new HttpError(400, error.message, [{ field: 'options', message: error.message }]);
+    if (error instanceof KineticsError)
+      throw new HttpError(400, error.message, [{ field: 'options', message: error.message }]);
     throw error;
   }
   const storedOptions = { analyst: options, engine: settings };
   return db.transaction(async (tx) => {
-    if (input.supersedesRunId !== undefined) await assertLatest(tx, input.organisationId, input.supersedesRunId);
+    if (input.supersedesRunId !== undefined)
+      await assertLatest(tx, input.organisationId, input.supersedesRunId);
     const [run] = await tx
       .insert(analysisRuns)
       .values({
@@ -129,9 +134,13 @@ async function assertLatest(tx: Executor, organisationId: number, runId: number)
   if (!earlier) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
   const newer = await supersedingRun(tx, runId);
   if (newer !== null) {
-    throw new HttpError(409, `Analysis ${runId} is already superseded by analysis ${newer}; exclude points from that one.`, {
-      supersededBy: newer,
-    });
+    throw new HttpError(
+      409,
+      `Analysis ${runId} is already superseded by analysis ${newer}; exclude points from that one.`,
+      {
+        supersededBy: newer,
+      },
+    );
   }
 }
 
@@ -141,14 +150,27 @@ export async function excludePoint(
   input: { organisationId: number; runId: number; request: ExcludePointRequest; actor: AnalysisActor },
 ): Promise<{ runId: number; supersedesRunId: number | null }> {
   const earlier = await getAnalysisRun(db, input.organisationId, input.runId);
-  const previous = earlier.exclusions.map(({ seriesId, observationIndex, reason }) => ({ seriesId, observationIndex, reason }));
-  const point = { seriesId: input.request.seriesId, observationIndex: input.request.observationIndex, reason: input.request.reason };
+  const previous = earlier.exclusions.map(({ seriesId, observationIndex, reason }) => ({
+    seriesId,
+    observationIndex,
+    reason,
+  }));
+  const point = {
+    seriesId: input.request.seriesId,
+    observationIndex: input.request.observationIndex,
+    reason: input.request.reason,
+  };
   const series = earlier.series.find((candidate) => candidate.id === point.seriesId);
   const observation = series?.observations[point.observationIndex];
   if (!series || !observation) {
     const field = series ? 'observationIndex' : 'seriesId';
     throw new HttpError(400, 'Choose a point of this analysis to exclude.', [
-      { field, message: series ? `Series ${series.id} has no point ${point.observationIndex + 1}.` : `There is no series "${point.seriesId}".` },
+      {
+        field,
+        message: series
+          ? `Series ${series.id} has no point ${point.observationIndex + 1}.`
+          : `There is no series "${point.seriesId}".`,
+      },
     ]);
   }
   return runAnalysis(db, {
@@ -161,7 +183,13 @@ export async function excludePoint(
     auditAction: 'analysis.point-excluded',
     auditContext: {
       supersedesRunId: earlier.id,
-      point: { seriesId: series.id, observationIndex: point.observationIndex, time: observation.time, value: observation.value, cell: observation.source?.cell ?? null },
+      point: {
+        seriesId: series.id,
+        observationIndex: point.observationIndex,
+        time: observation.time,
+        value: observation.value,
+        cell: observation.source?.cell ?? null,
+      },
       reason: point.reason,
     },
   });
@@ -189,9 +217,18 @@ export interface AnalysisRunRecord {
 }
 
 /** One run, readable by every member of its organisation; 404 for any other. */
-export async function getAnalysisRun(db: Executor, organisationId: number, runId: number): Promise<AnalysisRunRecord> {
+export async function getAnalysisRun(
+  db: Executor,
+  organisationId: number,
+  runId: number,
+): Promise<AnalysisRunRecord> {
   const [row] = await db
-    .select({ run: analysisRuns, study: studies, dataset: datasets, runBy: { id: users.id, fullName: users.fullName } })
+    .select({
+      run: analysisRuns,
+      study: studies,
+      dataset: datasets,
+      runBy: { id: users.id, fullName: users.fullName },
+    })
     .from(analysisRuns)
     .innerJoin(studies, eq(studies.id, analysisRuns.studyId))
     .innerJoin(datasets, eq(datasets.id, analysisRuns.datasetId))

@@ -1,7 +1,12 @@
 import { MIN_EXCLUSION_REASON_LENGTH } from '../../shared/api/analyses.ts';
 import { analysisFigures } from '../../shared/figures/analysis-figures.ts';
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../shared/figures/results-table.ts';
-import { formatInterval, formatPercent, formatSignificant, NOT_ESTIMABLE } from '../../shared/figures/significant-figures.ts';
+import {
+  formatInterval,
+  formatPercent,
+  formatSignificant,
+  NOT_ESTIMABLE,
+} from '../../shared/figures/significant-figures.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
 
 /**
@@ -20,8 +25,14 @@ export interface NumberCell {
   text: string;
   value: string;
   interval: string;
+  hasInterval: boolean;
   unit: string;
   note: string;
+}
+
+/** The figures of a run, as the screen, the figures API and the export all show them. */
+export function runFigures(run: AnalysisRunRecord) {
+  return analysisFigures(run.result, run.series, studyLimits(run.study), run.study.storageTemperatureC);
 }
 
 export function studyLimits(study: { lowerLimit: number | null; upperLimit: number | null }) {
@@ -32,17 +43,47 @@ export function studyLimits(study: { lowerLimit: number | null; upperLimit: numb
 }
 
 function numberCell(row: ResultRow | undefined): NumberCell {
-  if (!row) return { key: '', text: NOT_ESTIMABLE, value: '', interval: NOT_ESTIMABLE, unit: '', note: '' };
-  const interval = row.lower !== null && row.upper !== null ? ([row.lower, row.upper] as [number, number]) : null;
+  if (!row)
+    return {
+      key: '',
+      text: NOT_ESTIMABLE,
+      value: '',
+      interval: NOT_ESTIMABLE,
+      hasInterval: false,
+      unit: '',
+      note: '',
+    };
+  const interval =
+    row.lower !== null && row.upper !== null ? ([row.lower, row.upper] as [number, number]) : null;
   return {
     key: row.key,
     text: formatSignificant(row.estimate, row.digits),
     value: row.estimate === null ? '' : String(row.estimate),
     interval: formatInterval(interval, Math.max(row.digits - 1, 3)),
+    hasInterval: interval !== null,
     unit: row.unit,
-    note: row.note,
+    note: readableNumbers(row.note),
   };
 }
+
+/** Long decimals inside engine messages ("27.949325675939914") written with 4 significant figures. */
+export function readableNumbers(text: string): string {
+  return text.replace(/-?\d+\.\d{5,}(?:e[-+]?\d+)?/gi, (number) => formatSignificant(Number(number), 4));
+}
+
+const WARNING_TITLES: Record<string, string> = {
+  'low-fraction-reacted': 'Little of the initial value has reacted',
+  'order-not-identified': 'Reaction order not identified',
+  'analyst-order-disfavoured': 'The data disfavour the analyst’s order',
+  'possible-outliers': 'Possible outliers',
+  'systematic-misfit': 'Systematic misfit',
+  'not-converged': 'A fit did not converge',
+  extrapolation: 'Extrapolation beyond the observed time',
+  'series-not-analysed': 'Series not analysed',
+  'order-disagreement': 'Series disagree on the order',
+  'arrhenius-extrapolation': 'Arrhenius extrapolation',
+  'non-finite-replaced': 'Numbers not estimable',
+};
 
 export interface FormState {
   problems: { field: string; message: string }[];
@@ -56,7 +97,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
   const byKey = new Map(rows.map((row) => [row.key, row]));
   const find = (section: string, seriesId: string | null, model: string | null, quantity: string) =>
     numberCell(byKey.get([section, seriesId ?? '*', model ?? '-', quantity].join('|')));
-  const figures = analysisFigures(run.result, run.series, studyLimits(run.study));
+  const figures = runFigures(run);
   const figureIds = new Set(figures.map((figure) => figure.id));
   const figure = (id: string) => {
     const found = figures.find((candidate) => candidate.id === id);
@@ -70,14 +111,17 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
 
   const series = analysis.series.map((result, index) => {
     const fitted = result.analysis;
-    const reported = fitted?.reportedOrder === null || fitted?.reportedOrder === undefined ? null : String(fitted.reportedOrder);
+    const reported =
+      fitted?.reportedOrder === null || fitted?.reportedOrder === undefined
+        ? null
+        : String(fitted.reportedOrder);
     const models = (fitted?.models ?? []).map((model) => {
       const name = String(model.order);
       return {
         name: MODEL_NAMES[name] ?? name,
         reported: fitted?.reportedOrder !== null && String(fitted?.reportedOrder) === name,
         applicable: model.applicable,
-        reason: model.reason ?? '',
+        reason: readableNumbers(model.reason ?? ''),
         k: find('rate-law', result.id, name, 'k'),
         c0: find('rate-law', result.id, name, 'c0'),
         n: name === 'n' ? find('rate-law', result.id, name, 'n') : null,
@@ -93,7 +137,8 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
       transform: line.transform,
       cell: find('linearised', result.id, line.transform, 'r-squared'),
     }));
-    const derivedCell = (quantity: string) => numberCell(byKey.get(['derived', result.id, reported ?? '-', quantity].join('|')));
+    const derivedCell = (quantity: string) =>
+      numberCell(byKey.get(['derived', result.id, reported ?? '-', quantity].join('|')));
     return {
       anchor: `series-${index}`,
       overview: {
@@ -102,15 +147,20 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         t90: derivedCell('t90'),
         timeToLower: derivedCell('time-to-lower-limit'),
         timeToUpper: derivedCell('time-to-upper-limit'),
-        weights: models.map((model, modelIndex) => ({ name: ['0', '1', '2', 'n'][modelIndex] ?? '', cell: model.weight })),
+        weights: models.map((model, modelIndex) => ({
+          name: ['0', '1', '2', 'n'][modelIndex] ?? '',
+          cell: model.weight,
+        })),
       },
       id: result.id,
       batch: result.batch ?? '—',
       temperature: result.temperatureC === null ? '—' : `${result.temperatureC} °C`,
       error: result.error?.message ?? null,
       n: fitted?.n ?? 0,
-      timeSpan: fitted ? `${formatSignificant(fitted.timeSpan[0], 3)} to ${formatSignificant(fitted.timeSpan[1], 3)} ${fitted.timeUnit}` : '',
-      verdict: fitted?.verdict ?? '',
+      timeSpan: fitted
+        ? `${formatSignificant(fitted.timeSpan[0], 3)} to ${formatSignificant(fitted.timeSpan[1], 3)} ${fitted.timeUnit}`
+        : '',
+      verdict: readableNumbers(fitted?.verdict ?? ''),
       orderSource: fitted?.orderSource === 'analyst' ? 'fixed by the analyst' : 'from the data',
       reportedName: reported === null ? 'none named' : MODEL_NAMES[reported],
       errorModel: fitted ? `${fitted.errorModel} (${fitted.errorModelChoice.reason})` : '',
@@ -119,7 +169,10 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
       models,
       derived,
       linearised,
-      warnings: fitted?.warnings ?? [],
+      warnings: (fitted?.warnings ?? []).map((warning) => ({
+        code: warning.code,
+        message: readableNumbers(warning.message),
+      })),
       excluded: (fitted?.excluded ?? []).map((point) => ({
         time: formatSignificant(point.time, 4),
         value: formatSignificant(point.value, 4),
@@ -140,34 +193,64 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         order: arrhenius.order === null ? 'none' : MODEL_NAMES[String(arrhenius.order)],
         orderSource: arrhenius.orderSource === 'analyst' ? 'fixed by the analyst' : 'lowest summed AICc',
         notApplicable: arrhenius.notApplicableReason,
-        rows: rows.filter((row) => row.section === 'arrhenius').map((row) => ({ label: row.label, cell: numberCell(row) })),
-        excludedSeries: arrhenius.excludedSeries,
+        rows: rows
+          .filter((row) => row.section === 'arrhenius')
+          .map((row) => ({ label: row.label, cell: numberCell(row) })),
+        excludedSeries: arrhenius.excludedSeries.map((entry) => ({
+          id: entry.id,
+          reason: readableNumbers(entry.reason),
+        })),
         figure: figure('arrhenius'),
       }
     : null;
 
   const shelfLife = (analysis.shelfLife ?? []).map((condition) => {
     const id = condition.temperatureC === null ? 'all' : `${condition.temperatureC}C`;
-    const row = rows.find((candidate) => candidate.section === 'shelf-life' && candidate.quantity === `shelf-life-${id}`);
+    const row = rows.find(
+      (candidate) => candidate.section === 'shelf-life' && candidate.quantity === `shelf-life-${id}`,
+    );
     const result = condition.result;
     const figureId = `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`;
     return {
       condition: condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`,
       series: condition.seriesIds.join(', '),
-      scale: { none: 'values (zero order)', ln: 'ln(value) (first order)', '1/x': '1/value (second order)' }[condition.transform],
+      scale: { none: 'values (zero order)', ln: 'ln(value) (first order)', '1/x': '1/value (second order)' }[
+        condition.transform
+      ],
       transformReason: condition.transformReason,
       cell: numberCell(row),
       model: result ? (result.model === 'single-batch' ? 'single batch' : result.model) : '',
-      poolability: result?.poolability?.explanation ?? result?.poolabilityNotApplicableReason ?? '',
-      reason: result?.reason ?? condition.notApplicableReason ?? '',
+      poolability: readableNumbers(
+        result?.poolability?.explanation ?? result?.poolabilityNotApplicableReason ?? '',
+      ),
+      reason: readableNumbers(result?.reason ?? condition.notApplicableReason ?? ''),
+      accelerated:
+        study.storageTemperatureC !== null &&
+        condition.temperatureC !== null &&
+        condition.temperatureC !== study.storageTemperatureC,
       beyondData: result?.extrapolation.beyondObservedData === true,
       figure: figureIds.has(figureId) ? figure(figureId) : null,
     };
   });
 
-  const seriesWarnings = analysis.series.flatMap((result) =>
-    (result.analysis?.warnings ?? []).map((warning) => ({ where: result.id, code: warning.code, message: warning.message })),
-  );
+  const allWarnings = [
+    ...analysis.warnings.map((warning) => ({
+      where: 'dataset',
+      code: warning.code,
+      message: readableNumbers(warning.message),
+    })),
+    ...analysis.series.flatMap((result) =>
+      (result.analysis?.warnings ?? []).map((warning) => ({
+        where: result.id,
+        code: warning.code,
+        message: readableNumbers(warning.message),
+      })),
+    ),
+  ];
+  const warningGroups = [...new Set(allWarnings.map((warning) => warning.code))].map((code) => {
+    const items = allWarnings.filter((warning) => warning.code === code);
+    return { code, title: WARNING_TITLES[code] ?? code, count: items.length, items, open: items.length <= 3 };
+  });
   const points = run.series.map((entry, seriesIndex) => ({
     label: entry.id,
     options: entry.observations.map((observation, index) => ({
@@ -191,7 +274,10 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
       datasetSha256: run.datasetSha256,
       confidence: formatPercent(options.confidenceLevel, 0),
       errorModel: options.errorModel,
-      order: options.order === undefined ? 'decided by the data' : `fixed at ${MODEL_NAMES[String(options.order)]}`,
+      order:
+        options.order === undefined
+          ? 'decided by the data'
+          : `fixed at ${MODEL_NAMES[String(options.order)]}`,
       supersedesRunId: run.supersedesRunId,
       supersededByRunId: run.supersededByRunId,
     },
@@ -208,13 +294,13 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         .filter(Boolean)
         .join(' / '),
     },
-    datasetWarnings: analysis.warnings,
-    seriesWarnings,
+    warningGroups,
     series,
     arrhenius: arrheniusModel,
     shelfLife,
     exclusions: run.exclusions.map((exclusion) => ({
       ...exclusion,
+      pointNumber: exclusion.observationIndex + 1,
       time: formatSignificant(exclusion.time, 4),
       value: formatSignificant(exclusion.value, 4),
     })),
@@ -230,7 +316,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
       formProblem: problem('form'),
     },
     hasFigures: figures.length > 0,
-    hasLowerLimit: study.lowerLimit !== null,
-    hasUpperLimit: study.upperLimit !== null,
+    hasLowerLimit: study.lowerLimit !== null && study.direction !== 'increasing',
+    hasUpperLimit: study.upperLimit !== null && study.direction !== 'decreasing',
   };
 }

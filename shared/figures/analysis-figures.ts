@@ -19,7 +19,8 @@ export interface FigureSpec {
 /**
  * Every figure of an analysis, in the order the screen shows them: for each analysed series the
  * straight-line plots, the data with fitted curves and band, and the residuals; then the
- * Arrhenius plot (several temperatures) and a Q1E plot for each condition with several batches.
+ * Arrhenius plot (several temperatures) and a Q1E plot for the storage condition when it has several
+ * batches (for every condition with several batches when no storage temperature is given).
  *
  * Pure and deterministic: the same stored result and series give the same specs, byte for byte,
  * so the screen, the export's figure data and a later PDF rendering agree.
@@ -33,6 +34,7 @@ export function analysisFigures(
   stored: StoredAnalysisResult,
   seriesList: readonly Series[],
   limits: { lower?: number; upper?: number },
+  storageTemperatureC: number | null = null,
 ): FigureSpec[] {
   const figures: FigureSpec[] = [];
   const { analysis } = stored;
@@ -78,7 +80,10 @@ export function analysisFigures(
       spec: arrhenius,
     });
   }
-  for (const condition of analysis.shelfLife ?? []) {
+  const conditions = analysis.shelfLife ?? [];
+  // A shelf life is claimed at the storage condition; accelerated conditions are in the table only.
+  const claimed = conditions.filter((condition) => condition.temperatureC === storageTemperatureC);
+  for (const condition of claimed.length > 0 ? claimed : conditions) {
     if (condition.seriesIds.length < 2) continue;
     const spec = q1ePlotSpec(condition, seriesList, limits);
     if (!spec) continue;

@@ -34,7 +34,15 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
   const seriesPoints = analysis.series.flatMap((result) => {
     const model = result.analysis?.models.find((candidate) => candidate.order === arrhenius.order);
     if (result.temperatureC === null || !model || model.k === null || !(model.k > 0)) return [];
-    return [{ x: inverse(result.temperatureC), lnK: Math.log(model.k), series: result.id, batch: result.batch ?? result.id, temperature: `${result.temperatureC} °C` }];
+    return [
+      {
+        x: inverse(result.temperatureC),
+        lnK: Math.log(model.k),
+        series: result.id,
+        batch: result.batch ?? result.id,
+        temperature: `${result.temperatureC} °C`,
+      },
+    ];
   });
   const pooled = arrhenius.rateConstants.map((point) => ({
     x: inverse(point.temperatureC),
@@ -56,7 +64,12 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
       mark: { type: 'line', color: PALETTE.ledger, strokeWidth: 2 },
       encoding: {
         x: { field: 'x', type: 'quantitative', title: '1000/T (1/K)', scale: { zero: false, padding: 24 } },
-        y: { field: 'lnK', type: 'quantitative', title: `ln(k / ${arrhenius.kUnit ?? 'unit of k'})`, scale: { zero: false, padding: 24 } },
+        y: {
+          field: 'lnK',
+          type: 'quantitative',
+          title: `ln(k / ${arrhenius.kUnit ?? 'unit of k'})`,
+          scale: { zero: false, padding: 24 },
+        },
       },
     },
     {
@@ -89,7 +102,11 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
     {
       data: { values: pooled },
       mark: { type: 'text', dy: -14, fontSize: 11, color: PALETTE.inkMuted },
-      encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'lnK', type: 'quantitative' }, text: { field: 'temperature' } },
+      encoding: {
+        x: { field: 'x', type: 'quantitative' },
+        y: { field: 'lnK', type: 'quantitative' },
+        text: { field: 'temperature' },
+      },
     },
   ];
   if (prediction) {
@@ -107,7 +124,11 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
       {
         data: { values: predicted },
         mark: { type: 'rule', color: PALETTE.alert, strokeWidth: 2 },
-        encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'low', type: 'quantitative' }, y2: { field: 'high' } },
+        encoding: {
+          x: { field: 'x', type: 'quantitative' },
+          y: { field: 'low', type: 'quantitative' },
+          y2: { field: 'high' },
+        },
       },
       {
         data: { values: predicted },
@@ -126,7 +147,11 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
       {
         data: { values: predicted },
         mark: { type: 'text', dy: 18, align: 'center', fontSize: 11, color: PALETTE.alert },
-        encoding: { x: { field: 'x', type: 'quantitative' }, y: { field: 'lnK', type: 'quantitative' }, text: { field: 'label' } },
+        encoding: {
+          x: { field: 'x', type: 'quantitative' },
+          y: { field: 'lnK', type: 'quantitative' },
+          text: { field: 'label' },
+        },
       },
     );
   }

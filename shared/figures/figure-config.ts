@@ -25,7 +25,16 @@ export const MODEL_COLOURS: Record<string, string> = {
 };
 
 /** Colours for batches and temperatures in multi-series plots (colour-blind safe, Okabe–Ito order). */
-export const SERIES_COLOURS = ['#0072b2', '#d55e00', '#009e73', '#cc79a7', '#e69f00', '#56b4e9', '#5a6169', '#000000'];
+export const SERIES_COLOURS = [
+  '#0072b2',
+  '#d55e00',
+  '#009e73',
+  '#cc79a7',
+  '#e69f00',
+  '#56b4e9',
+  '#5a6169',
+  '#000000',
+];
 
 export const FIGURE_FONT = 'Source Sans 3';
 
@@ -45,8 +54,23 @@ export const FIGURE_CONFIG = {
     titleFontWeight: 600,
     labelFlush: false,
   },
-  legend: { labelLimit: 260, columns: 4, labelFontSize: 11, titleFontSize: 12, titleFontWeight: 600, orient: 'bottom', direction: 'horizontal' },
-  title: { fontSize: 14, fontWeight: 600, anchor: 'start', color: PALETTE.ink, subtitleColor: PALETTE.inkMuted, subtitleFontSize: 12 },
+  legend: {
+    labelLimit: 260,
+    columns: 4,
+    labelFontSize: 11,
+    titleFontSize: 12,
+    titleFontWeight: 600,
+    orient: 'bottom',
+    direction: 'horizontal',
+  },
+  title: {
+    fontSize: 14,
+    fontWeight: 600,
+    anchor: 'start',
+    color: PALETTE.ink,
+    subtitleColor: PALETTE.inkMuted,
+    subtitleFontSize: 12,
+  },
   point: { size: 36 },
   line: { strokeWidth: 1.5 },
 } as const;

@@ -1,7 +1,15 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import { rateLawValue } from '../kinetics/order/integrated-rate-law.ts';
 import type { Series } from '../kinetics/types.ts';
-import { FIGURE_CONFIG, MODEL_COLOURS, PALETTE, TOOLTIP_FORMAT, timeGrid, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import {
+  FIGURE_CONFIG,
+  MODEL_COLOURS,
+  PALETTE,
+  TOOLTIP_FORMAT,
+  timeGrid,
+  timeTitle,
+  VEGA_LITE_SCHEMA,
+} from './figure-config.ts';
 import { MODEL_NAMES } from './results-table.ts';
 import type { ConfidenceBand } from './stored-result.ts';
 
@@ -32,7 +40,11 @@ export function fittedCurvesSpec(
   band: ConfidenceBand | undefined,
 ): Record<string, unknown> {
   const [start, end] = analysis.timeSpan;
-  const chosen = band ? String(band.order) : analysis.reportedOrder === null ? null : String(analysis.reportedOrder);
+  const chosen = band
+    ? String(band.order)
+    : analysis.reportedOrder === null
+      ? null
+      : String(analysis.reportedOrder);
   const curves = analysis.models.flatMap((model) => {
     if (!model.applicable || model.k === null || model.c0 === null) return [];
     const name = String(model.order);
@@ -78,8 +90,18 @@ export function fittedCurvesSpec(
       mark: { type: 'line' },
       encoding: {
         x: { field: 'time', type: 'quantitative', title: timeTitle(series.timeUnit) },
-        y: { field: 'value', type: 'quantitative', title: `Value (${series.valueUnit})`, scale: { zero: false } },
-        color: { field: 'law', type: 'nominal', title: 'Rate law', scale: { domain: lawLabels, range: lawColours } },
+        y: {
+          field: 'value',
+          type: 'quantitative',
+          title: `Value (${series.valueUnit})`,
+          scale: { zero: false },
+        },
+        color: {
+          field: 'law',
+          type: 'nominal',
+          title: 'Rate law',
+          scale: { domain: lawLabels, range: lawColours },
+        },
         strokeWidth: { condition: { test: 'datum.chosen', value: 2.75 }, value: 1.25 },
         strokeDash: { condition: { test: 'datum.chosen', value: [1, 0] }, value: [5, 3] },
       },
@@ -102,7 +124,12 @@ export function fittedCurvesSpec(
           scale: { domain: ['used', 'excluded'], range: [PALETTE.ink, PALETTE.alert] },
           legend: null,
         },
-        stroke: { field: 'status', type: 'nominal', scale: { domain: ['used', 'excluded'], range: [PALETTE.ink, PALETTE.alert] }, legend: null },
+        stroke: {
+          field: 'status',
+          type: 'nominal',
+          scale: { domain: ['used', 'excluded'], range: [PALETTE.ink, PALETTE.alert] },
+          legend: null,
+        },
         tooltip: [
           { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
           { field: 'value', type: 'quantitative', format: TOOLTIP_FORMAT },
@@ -120,7 +147,9 @@ export function fittedCurvesSpec(
     height: 300,
     title: {
       text: 'Data and fitted curves',
-      subtitle: band ? `Shaded: ${percent} % confidence band of the ${MODEL_NAMES[String(band.order)]} curve` : 'No confidence band (no law chosen)',
+      subtitle: band
+        ? `Shaded: ${percent} % confidence band of the ${MODEL_NAMES[String(band.order)]} curve`
+        : 'No confidence band (no law chosen)',
     },
     layer: layers,
     resolve: { scale: { color: 'independent', shape: 'independent' } },

@@ -1,6 +1,13 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import type { Series } from '../kinetics/types.ts';
-import { FIGURE_CONFIG, MODEL_COLOURS, PALETTE, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import {
+  FIGURE_CONFIG,
+  MODEL_COLOURS,
+  PALETTE,
+  TOOLTIP_FORMAT,
+  timeTitle,
+  VEGA_LITE_SCHEMA,
+} from './figure-config.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -26,7 +33,11 @@ const PANEL_HEIGHT = 190;
 
 const TRANSFORMS = [
   { transform: 'value', title: 'Value', apply: (value: number) => value },
-  { transform: 'ln(value)', title: 'ln(value)', apply: (value: number) => (value > 0 ? Math.log(value) : null) },
+  {
+    transform: 'ln(value)',
+    title: 'ln(value)',
+    apply: (value: number) => (value > 0 ? Math.log(value) : null),
+  },
   { transform: '1/value', title: '1/value', apply: (value: number) => (value > 0 ? 1 / value : null) },
 ] as const;
 

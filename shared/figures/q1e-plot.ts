@@ -1,6 +1,13 @@
 import type { ConditionShelfLife } from '../kinetics/analyse-dataset.ts';
 import type { Series } from '../kinetics/types.ts';
-import { FIGURE_CONFIG, PALETTE, SERIES_COLOURS, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import {
+  FIGURE_CONFIG,
+  PALETTE,
+  SERIES_COLOURS,
+  TOOLTIP_FORMAT,
+  timeTitle,
+  VEGA_LITE_SCHEMA,
+} from './figure-config.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -37,12 +44,38 @@ export function q1ePlotSpec(
   );
   const curves = result.lines.flatMap((line) =>
     line.grid.flatMap((point) => [
-      ...(point.mean === null ? [] : [{ time: point.time, value: point.mean, group: line.label, curve: `${line.label}: mean`, kind: 'mean' }]),
+      ...(point.mean === null
+        ? []
+        : [
+            {
+              time: point.time,
+              value: point.mean,
+              group: line.label,
+              curve: `${line.label}: mean`,
+              kind: 'mean',
+            },
+          ]),
       ...(limits.lower !== undefined && point.lowerCL !== null
-        ? [{ time: point.time, value: point.lowerCL, group: line.label, curve: `${line.label}: lower confidence limit`, kind: 'limit' }]
+        ? [
+            {
+              time: point.time,
+              value: point.lowerCL,
+              group: line.label,
+              curve: `${line.label}: lower confidence limit`,
+              kind: 'limit',
+            },
+          ]
         : []),
       ...(limits.upper !== undefined && point.upperCL !== null
-        ? [{ time: point.time, value: point.upperCL, group: line.label, curve: `${line.label}: upper confidence limit`, kind: 'limit' }]
+        ? [
+            {
+              time: point.time,
+              value: point.upperCL,
+              group: line.label,
+              curve: `${line.label}: upper confidence limit`,
+              kind: 'limit',
+            },
+          ]
         : []),
     ]),
   );
@@ -51,8 +84,13 @@ export function q1ePlotSpec(
     ...(limits.upper === undefined ? [] : [{ value: limits.upper, label: `upper limit ${limits.upper}` }]),
   ];
   const percent = Math.round(result.method.confidence * 100);
-  const groups = [...new Set([...result.lines.map((line) => line.label), ...members.map((series) => series.id)])];
-  const colourScale = { domain: groups, range: groups.map((_, index) => SERIES_COLOURS[index % SERIES_COLOURS.length]!) };
+  const groups = [
+    ...new Set([...result.lines.map((line) => line.label), ...members.map((series) => series.id)]),
+  ];
+  const colourScale = {
+    domain: groups,
+    range: groups.map((_, index) => SERIES_COLOURS[index % SERIES_COLOURS.length]!),
+  };
   const layers: Record<string, unknown>[] = [
     {
       data: { values: curves },
@@ -92,12 +130,22 @@ export function q1ePlotSpec(
     },
     {
       data: { values: criteria },
-      mark: { type: 'text', align: 'right', baseline: 'bottom', dy: -3, x: 'width', color: PALETTE.alert, fontSize: 11 },
+      mark: {
+        type: 'text',
+        align: 'left',
+        baseline: 'bottom',
+        dy: -3,
+        x: 4,
+        color: PALETTE.alert,
+        fontSize: 11,
+      },
       encoding: { y: { field: 'value', type: 'quantitative' }, text: { field: 'label' } },
     },
   ];
   if (result.shelfLife !== null) {
-    const crossing = [{ time: result.shelfLife, label: `shelf life ${formatSignificant(result.shelfLife, 3)} ${timeUnit}` }];
+    const crossing = [
+      { time: result.shelfLife, label: `shelf life ${formatSignificant(result.shelfLife, 3)} ${timeUnit}` },
+    ];
     layers.push(
       {
         data: { values: crossing },

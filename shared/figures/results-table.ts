@@ -72,25 +72,93 @@ function seriesRows(result: SeriesResult): ResultRow[] {
   for (const model of analysis.models) {
     const name = String(model.order as RateLawModel);
     const base = { ...where, section: 'rate-law' as const, model: name };
-    const note = model.applicable ? (name === reported ? 'reported order' : '') : (model.reason ?? 'not fitted');
+    const note = model.applicable
+      ? name === reported
+        ? 'reported order'
+        : ''
+      : (model.reason ?? 'not fitted');
     rows.push(
-      row({ ...base, quantity: 'k', label: 'Rate constant k', estimate: model.k, interval: model.kCi95, unit: model.kUnit, digits: DIGITS.estimate, note }),
-      row({ ...base, quantity: 'c0', label: 'Initial value C0', estimate: model.c0, interval: model.c0Ci95, unit: analysis.valueUnit, digits: DIGITS.estimate }),
+      row({
+        ...base,
+        quantity: 'k',
+        label: 'Rate constant k',
+        estimate: model.k,
+        interval: model.kCi95,
+        unit: model.kUnit,
+        digits: DIGITS.estimate,
+        note,
+      }),
+      row({
+        ...base,
+        quantity: 'c0',
+        label: 'Initial value C0',
+        estimate: model.c0,
+        interval: model.c0Ci95,
+        unit: analysis.valueUnit,
+        digits: DIGITS.estimate,
+      }),
     );
     if (name === 'n') {
-      rows.push(row({ ...base, quantity: 'n', label: 'Order n', estimate: model.n ?? null, interval: model.nCi95 ?? null, unit: '', digits: 3 }));
+      rows.push(
+        row({
+          ...base,
+          quantity: 'n',
+          label: 'Order n',
+          estimate: model.n ?? null,
+          interval: model.nCi95 ?? null,
+          unit: '',
+          digits: 3,
+        }),
+      );
     }
     rows.push(
-      row({ ...base, quantity: 'aicc', label: 'AICc', estimate: model.aicc, unit: '', digits: DIGITS.criterion }),
-      row({ ...base, quantity: 'weight', label: 'Akaike weight', estimate: model.weight, unit: '', digits: DIGITS.weight }),
-      row({ ...base, quantity: 'residual-sd', label: 'Residual SD', estimate: model.residualStandardDeviation, unit: analysis.errorModel === 'proportional' ? 'ln units' : analysis.valueUnit, digits: 3 }),
+      row({
+        ...base,
+        quantity: 'aicc',
+        label: 'AICc',
+        estimate: model.aicc,
+        unit: '',
+        digits: DIGITS.criterion,
+      }),
+      row({
+        ...base,
+        quantity: 'weight',
+        label: 'Akaike weight',
+        estimate: model.weight,
+        unit: '',
+        digits: DIGITS.weight,
+      }),
+      row({
+        ...base,
+        quantity: 'residual-sd',
+        label: 'Residual SD',
+        estimate: model.residualStandardDeviation,
+        unit: analysis.errorModel === 'proportional' ? 'ln units' : analysis.valueUnit,
+        digits: 3,
+      }),
     );
   }
   const derived = (quantity: string, label: string, figure: DerivedFigure | null | undefined) => {
     if (figure === undefined) return;
-    const note = figure === null ? (analysis.derivedReason ?? 'not estimable') : [figure.beyondObservedTime ? 'beyond the observed time (extrapolated)' : '', figure.reason ?? ''].filter(Boolean).join('; ');
+    const note =
+      figure === null
+        ? (analysis.derivedReason ?? 'not estimable')
+        : [figure.beyondObservedTime ? 'beyond the observed time (extrapolated)' : '', figure.reason ?? '']
+            .filter(Boolean)
+            .join('; ');
     rows.push(
-      row({ ...where, section: 'derived', model: reported, quantity, label, estimate: figure?.estimate ?? null, interval: figure?.ci95 ?? null, unit: figure?.unit ?? analysis.timeUnit, digits: DIGITS.time, note }),
+      row({
+        ...where,
+        section: 'derived',
+        model: reported,
+        quantity,
+        label,
+        estimate: figure?.estimate ?? null,
+        interval: figure?.ci95 ?? null,
+        unit: figure?.unit ?? analysis.timeUnit,
+        digits: DIGITS.time,
+        note,
+      }),
     );
   };
   derived('half-life', 'Half-life', analysis.halfLife);
@@ -98,8 +166,22 @@ function seriesRows(result: SeriesResult): ResultRow[] {
   derived('time-to-lower-limit', 'Time to the lower limit', analysis.timeToLimit?.lower);
   derived('time-to-upper-limit', 'Time to the upper limit', analysis.timeToLimit?.upper);
   for (const line of analysis.linearized) {
-    const base = { ...where, section: 'linearised' as const, model: line.transform, note: line.applicable ? '' : (line.reason ?? '') };
-    rows.push(row({ ...base, quantity: 'r-squared', label: `R² of ${line.transform} against time`, estimate: line.rSquared, unit: '', digits: DIGITS.rSquared }));
+    const base = {
+      ...where,
+      section: 'linearised' as const,
+      model: line.transform,
+      note: line.applicable ? '' : (line.reason ?? ''),
+    };
+    rows.push(
+      row({
+        ...base,
+        quantity: 'r-squared',
+        label: `R² of ${line.transform} against time`,
+        estimate: line.rSquared,
+        unit: '',
+        digits: DIGITS.rSquared,
+      }),
+    );
   }
   return rows;
 }
@@ -110,34 +192,128 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
   const arrhenius = analysis.arrhenius;
   if (arrhenius?.fit) {
     const fit = arrhenius.fit;
-    const kilo = (value: number | null | undefined) => (value === null || value === undefined ? null : value / 1000);
-    const energyInterval = fit.activationEnergyInterval ? ([kilo(fit.activationEnergyInterval[0])!, kilo(fit.activationEnergyInterval[1])!] as const) : null;
-    const base = { ...none, section: 'arrhenius' as const, model: arrhenius.order === null ? null : String(arrhenius.order) };
+    const kilo = (value: number | null | undefined) =>
+      value === null || value === undefined ? null : value / 1000;
+    const energyInterval = fit.activationEnergyInterval
+      ? ([kilo(fit.activationEnergyInterval[0])!, kilo(fit.activationEnergyInterval[1])!] as const)
+      : null;
+    const base = {
+      ...none,
+      section: 'arrhenius' as const,
+      model: arrhenius.order === null ? null : String(arrhenius.order),
+    };
     rows.push(
-      row({ ...base, quantity: 'activation-energy', label: 'Activation energy Ea', estimate: kilo(fit.activationEnergy), interval: energyInterval, unit: 'kJ/mol', digits: DIGITS.energy, note: fit.intervalUnavailableReason ?? '' }),
-      row({ ...base, quantity: 'ln-a', label: 'ln A', estimate: fit.lnPreExponentialFactor, interval: fit.lnPreExponentialFactorInterval, unit: `ln(${arrhenius.kUnit ?? 'k'})`, digits: DIGITS.estimate }),
-      row({ ...base, quantity: 'r-squared', label: 'R² of ln k against 1/T', estimate: fit.rSquared, unit: '', digits: DIGITS.rSquared }),
+      row({
+        ...base,
+        quantity: 'activation-energy',
+        label: 'Activation energy Ea',
+        estimate: kilo(fit.activationEnergy),
+        interval: energyInterval,
+        unit: 'kJ/mol',
+        digits: DIGITS.energy,
+        note: fit.intervalUnavailableReason ?? '',
+      }),
+      row({
+        ...base,
+        quantity: 'ln-a',
+        label: 'ln A',
+        estimate: fit.lnPreExponentialFactor,
+        interval: fit.lnPreExponentialFactorInterval,
+        unit: `ln(${arrhenius.kUnit ?? 'k'})`,
+        digits: DIGITS.estimate,
+      }),
+      row({
+        ...base,
+        quantity: 'r-squared',
+        label: 'R² of ln k against 1/T',
+        estimate: fit.rSquared,
+        unit: '',
+        digits: DIGITS.rSquared,
+      }),
     );
     for (const point of arrhenius.rateConstants) {
-      rows.push(row({ ...base, temperatureC: point.temperatureC, quantity: `k-at-${point.temperatureC}C`, label: `k at ${point.temperatureC} °C (${point.seriesIds.length} series)`, estimate: point.k, unit: arrhenius.kUnit ?? '', digits: DIGITS.estimate, note: point.pooling }));
+      rows.push(
+        row({
+          ...base,
+          temperatureC: point.temperatureC,
+          quantity: `k-at-${point.temperatureC}C`,
+          label: `k at ${point.temperatureC} °C (${point.seriesIds.length} series)`,
+          estimate: point.k,
+          unit: arrhenius.kUnit ?? '',
+          digits: DIGITS.estimate,
+          note: point.pooling,
+        }),
+      );
     }
     const prediction = arrhenius.prediction;
     if (prediction) {
       const at = { ...base, temperatureC: prediction.temperatureC };
-      const note = prediction.extrapolation === null ? '' : `extrapolated (${prediction.extrapolation.replaceAll('-', ' ')})`;
-      rows.push(row({ ...at, quantity: 'predicted-k', label: `k predicted at ${prediction.temperatureC} °C`, estimate: prediction.rateConstant, interval: prediction.confidenceInterval, unit: arrhenius.kUnit ?? '', digits: DIGITS.estimate, note }));
+      const note =
+        prediction.extrapolation === null
+          ? ''
+          : `extrapolated (${prediction.extrapolation.replaceAll('-', ' ')})`;
+      rows.push(
+        row({
+          ...at,
+          quantity: 'predicted-k',
+          label: `k predicted at ${prediction.temperatureC} °C`,
+          estimate: prediction.rateConstant,
+          interval: prediction.confidenceInterval,
+          unit: arrhenius.kUnit ?? '',
+          digits: DIGITS.estimate,
+          note,
+        }),
+      );
       const timeUnit = analysis.series.find((result) => result.analysis)?.analysis?.timeUnit ?? '';
-      if (prediction.t90) rows.push(row({ ...at, quantity: 'predicted-t90', label: `t90 at ${prediction.temperatureC} °C`, estimate: prediction.t90.estimate, interval: prediction.t90.ci, unit: timeUnit, digits: DIGITS.time, note }));
-      if (prediction.halfLife) rows.push(row({ ...at, quantity: 'predicted-half-life', label: `Half-life at ${prediction.temperatureC} °C`, estimate: prediction.halfLife.estimate, interval: prediction.halfLife.ci, unit: timeUnit, digits: DIGITS.time, note }));
+      if (prediction.t90)
+        rows.push(
+          row({
+            ...at,
+            quantity: 'predicted-t90',
+            label: `t90 at ${prediction.temperatureC} °C`,
+            estimate: prediction.t90.estimate,
+            interval: prediction.t90.ci,
+            unit: timeUnit,
+            digits: DIGITS.time,
+            note,
+          }),
+        );
+      if (prediction.halfLife)
+        rows.push(
+          row({
+            ...at,
+            quantity: 'predicted-half-life',
+            label: `Half-life at ${prediction.temperatureC} °C`,
+            estimate: prediction.halfLife.estimate,
+            interval: prediction.halfLife.ci,
+            unit: timeUnit,
+            digits: DIGITS.time,
+            note,
+          }),
+        );
     }
   }
   for (const condition of analysis.shelfLife ?? []) {
     const id = condition.temperatureC === null ? 'all' : `${condition.temperatureC}C`;
-    const timeUnit = analysis.series.find((result) => condition.seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
-    const base = { ...none, temperatureC: condition.temperatureC, section: 'shelf-life' as const, model: condition.transform };
+    const timeUnit =
+      analysis.series.find((result) => condition.seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
+    const base = {
+      ...none,
+      temperatureC: condition.temperatureC,
+      section: 'shelf-life' as const,
+      model: condition.transform,
+    };
     const result = condition.result;
     rows.push(
-      row({ ...base, quantity: `shelf-life-${id}`, label: `Q1E shelf life${condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`}`, estimate: result?.shelfLife ?? null, unit: timeUnit, digits: DIGITS.time, note: result ? `${result.model}; ${result.reason}` : (condition.notApplicableReason ?? '') }),
+      row({
+        ...base,
+        quantity: `shelf-life-${id}`,
+        label: `Q1E shelf life${condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`}`,
+        estimate: result?.shelfLife ?? null,
+        unit: timeUnit,
+        digits: DIGITS.time,
+        note: result ? `${result.model}; ${result.reason}` : (condition.notApplicableReason ?? ''),
+      }),
     );
   }
   return rows;

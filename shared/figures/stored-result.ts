@@ -1,5 +1,5 @@
-import { analyseSeries } from '../kinetics/analyse-series.ts';
 import type { DatasetAnalysis, DatasetOptions } from '../kinetics/analyse-dataset.ts';
+import { analyseSeries } from '../kinetics/analyse-series.ts';
 import type { IntegerOrder, Series } from '../kinetics/types.ts';
 
 /**
@@ -57,7 +57,10 @@ export function confidenceBands(
     const order = fitted.reportedOrder ?? fitted.selection.bestIntegerOrder;
     if (order === null || order === undefined) return;
     const [start, end] = fitted.timeSpan;
-    const grid = Array.from({ length: BAND_POINTS }, (_, i) => start + ((end - start) * i) / (BAND_POINTS - 1));
+    const grid = Array.from(
+      { length: BAND_POINTS },
+      (_, i) => start + ((end - start) * i) / (BAND_POINTS - 1),
+    );
     try {
       const again = analyseSeries(series, {
         ...seriesOptions,

@@ -1,3 +1,5 @@
+import { collectWarnings } from './derived/analysis-warnings.ts';
+import { finiteOnly } from './derived/finite-only.ts';
 import {
   type DerivedFigure,
   derivedFigure,
@@ -9,7 +11,6 @@ import { KineticsError } from './numeric/kinetics-error.ts';
 import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
 import { fitRateLaw, type RateLawFit, type RateLawModel } from './order/fit-rate-law.ts';
 import { type LinearisedFit, linearisedFits } from './order/linearised-fits.ts';
-import { MIN_FRACTION_REACTED } from './order/order-decision-thresholds.ts';
 import { type ExcludedPoint, prepareSeries } from './order/prepare-series.ts';
 import { type ResidualDiagnostics, residualDiagnostics } from './order/residual-diagnostics.ts';
 import { type ModelFits, type OrderSelection, selectOrder } from './order/select-order.ts';
@@ -89,8 +90,6 @@ export interface SeriesAnalysis {
 }
 
 const MODELS: readonly RateLawModel[] = [0, 1, 2, 'n'];
-/** Runs-test level below which the residual pattern is worth a warning (the order decision uses a stricter level). */
-const MISFIT_WARNING_ALPHA = 0.05;
 
 export function analyseSeries(series: Series, options: SeriesOptions = {}): SeriesAnalysis {
   const confidenceLevel = options.confidenceLevel ?? 0.95;
@@ -150,7 +149,23 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
         : chooseErrorModel(bestConstant, proportional);
     if (!allPositive)
       errorModelChoice.reason = 'some values are not positive, so only constant error can be fitted';
-    if (errorModelChoice.errorModel === 'proportional') fitIntegers('proportional');
+    if (errorModelChoice.errorModel === 'proportional' && bestConstant !== null && proportional !== null) {
+      // Refit the other laws on the log scale from their constant-error answers; the best one is already done.
+      for (const order of [0, 1, 2] as IntegerOrder[]) {
+        const constantFit = fits[order] ?? null;
+        if (order === bestConstant.model) {
+          fits[order] = proportional;
+          continue;
+        }
+        const start =
+          constantFit === null
+            ? startingValues(order, linearised, largestValue)
+            : { initialValue: constantFit.initialValue, rateConstant: constantFit.rateConstant };
+        [fits[order], failures[order]] = attempt(() =>
+          fitRateLaw(order, times, values, 'proportional', start),
+        );
+      }
+    }
   } else {
     if (requested === 'proportional' && !allPositive) {
       const index = values.findIndex((value) => !(value > 0));
@@ -282,92 +297,4 @@ function lowestRss(fits: readonly (RateLawFit | null)[]): RateLawFit | null {
 function withoutVerdict(selection: OrderSelection): SeriesAnalysis['selection'] {
   const { verdict: _verdict, selectedOrder: _selected, ...rest } = selection;
   return rest;
-}
-
-function collectWarnings(
-  analysis: SeriesAnalysis,
-  selection: OrderSelection,
-  fits: readonly (RateLawFit | null)[],
-  options: SeriesOptions,
-): AnalysisWarning[] {
-  const warnings: AnalysisWarning[] = [];
-  const fraction = selection.fractionReacted;
-  if (fraction !== null && fraction >= 0 && fraction < MIN_FRACTION_REACTED) {
-    warnings.push({
-      code: 'low-fraction-reacted',
-      message: `Only ${(fraction * 100).toFixed(1)} % of the initial value has reacted; the reaction order cannot be told from these data.`,
-    });
-  }
-  if (selection.selectedOrder === null && options.order === undefined) {
-    warnings.push({ code: 'order-not-identified', message: selection.verdict });
-  }
-  const best = selection.bestIntegerOrder;
-  if (options.order !== undefined && best !== null && best !== options.order) {
-    const delta = (selection.aicc[options.order] ?? Number.NaN) - (selection.aicc[best] ?? Number.NaN);
-    if (delta >= 10) {
-      warnings.push({
-        code: 'analyst-order-disfavoured',
-        message: `The data favour ${['zero', 'first', 'second'][best]} order over the analyst's order by ΔAICc ${delta.toFixed(1)}.`,
-      });
-    }
-  }
-  const diagnostics = analysis.diagnostics;
-  if (diagnostics !== null && diagnostics.possibleOutliers.length > 0) {
-    const listed = diagnostics.possibleOutliers.slice(0, 10).map((index) => diagnostics.points[index]!.time);
-    warnings.push({
-      code: 'possible-outliers',
-      message: `${diagnostics.possibleOutliers.length} point(s) lie more than ${diagnostics.outlierThreshold} studentised residuals from the curve (times ${listed.join(', ')}${diagnostics.possibleOutliers.length > 10 ? ', …' : ''}); investigate them — none was excluded.`,
-    });
-  }
-  if (diagnostics !== null && diagnostics.runsTest.p < MISFIT_WARNING_ALPHA) {
-    warnings.push({
-      code: 'systematic-misfit',
-      message: `The residuals of the ${diagnostics.model === 'n' ? 'free' : diagnostics.model}-order fit run in long stretches (runs test p = ${diagnostics.runsTest.p.toPrecision(2)}), a sign that the law misses the shape of the curve.`,
-    });
-  }
-  fits.forEach((fit, index) => {
-    if (fit !== null && !fit.converged) {
-      warnings.push({
-        code: 'not-converged',
-        message: `The ${index === 3 ? 'free' : index}-order fit did not converge: ${fit.reason}.`,
-      });
-    }
-  });
-  const last = analysis.timeSpan[1];
-  const beyond: string[] = [];
-  if (analysis.halfLife?.beyondObservedTime) beyond.push('the half-life');
-  if (analysis.t90?.beyondObservedTime) beyond.push('t90');
-  if (analysis.timeToLimit?.lower?.beyondObservedTime) beyond.push('the time to the lower limit');
-  if (analysis.timeToLimit?.upper?.beyondObservedTime) beyond.push('the time to the upper limit');
-  const outside = (analysis.predictions ?? []).filter((p) => p.time > last || p.time < analysis.timeSpan[0]);
-  if (outside.length > 0) beyond.push(`predictions at ${outside.map((p) => p.time).join(', ')}`);
-  if (beyond.length > 0) {
-    warnings.push({
-      code: 'extrapolation',
-      message: `${beyond.join(', ')} lie(s) outside the observed time span (${analysis.timeSpan[0]} to ${last} ${analysis.timeUnit}); the law is extrapolated.`,
-    });
-  }
-  return warnings;
-}
-
-/**
- * Replaces any non-finite number by null, so the result serialises to JSON without loss. `skip` (the
- * per-point residual table, up to 10⁵ rows) is left alone: `residualDiagnostics` builds it finite.
- */
-function finiteOnly<T>(value: T, skip: unknown): T {
-  const visit = (item: unknown): unknown => {
-    if (typeof item === 'number') return Number.isFinite(item) ? item : null;
-    if (Array.isArray(item)) {
-      for (let i = 0; i < item.length; i++) item[i] = visit(item[i]);
-      return item;
-    }
-    if (item !== null && typeof item === 'object') {
-      if (item === skip) return item;
-      const record = item as Record<string, unknown>;
-      for (const key of Object.keys(record)) record[key] = visit(record[key]);
-      return record;
-    }
-    return item;
-  };
-  return visit(value) as T;
 }

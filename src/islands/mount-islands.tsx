@@ -5,6 +5,7 @@ import { createRoot } from 'react-dom/client';
 /** Island name (the `data-island` attribute the server renders) → lazily loaded component. */
 const ISLANDS: Record<string, () => Promise<{ default: ComponentType }>> = {
   'recent-activity': () => import('./recent-activity-island.tsx'),
+  'analysis-figure': () => import('./analysis-figure-island.tsx'),
   'client-app': () => import('../app/client-app.tsx'),
   'column-mapping': () => import('./column-mapping-island.tsx'),
   'study-upload': () => import('./study-upload-island.tsx'),

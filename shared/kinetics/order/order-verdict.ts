@@ -19,6 +19,7 @@ import type { OrderSelection } from './select-order.ts';
  */
 
 const ORDER_NAMES = ['zero order', 'first order', 'second order'] as const;
+const ORDER_ADJECTIVES = ['zero-order', 'first-order', 'second-order'] as const;
 
 export function orderVerdict(
   selection: OrderSelection,
@@ -78,7 +79,7 @@ export function orderVerdict(
           ? `, against a scatter of the points of ${percent(scatter)} (relative residual SD)`
           : `, against a scatter of the points of ${number(scatter)} ${valueUnit} (residual SD)`;
     why.push(
-      `the best-fitting ${ORDER_NAMES[best]} and ${ORDER_NAMES[selection.runnerUpOrder]} curves differ by at most ${number(selection.curveSeparation ?? 0)} ${valueUnit} at the measured times${scatterWords}, so their AICc differ by only ${number(delta)} (${DECISIVE_DELTA_AICC} needed)`,
+      `the best-fitting ${ORDER_ADJECTIVES[best]} and ${ORDER_ADJECTIVES[selection.runnerUpOrder]} curves differ by at most ${number(selection.curveSeparation ?? 0)} ${valueUnit} at the measured times${scatterWords}, so their AICc differ by only ${number(delta)} (${DECISIVE_DELTA_AICC} needed)`,
     );
   }
   if (bestTest !== null && bestTest !== undefined && bestTest.p < ORDER_CONSISTENCY_ALPHA && best !== null) {

@@ -40,7 +40,9 @@ export function prepareSeries(series: Series): PreparedSeries {
       id: series.id,
     });
   }
-  const used: { time: number; value: number; index: number }[] = [];
+  const usedTimes: number[] = [];
+  const usedValues: number[] = [];
+  const usedIndices: number[] = [];
   const excluded: ExcludedPoint[] = [];
   const observations = series.observations;
   const labelOfObservation = (index: number): string => {
@@ -81,28 +83,42 @@ export function prepareSeries(series: Series): PreparedSeries {
       });
       continue;
     }
-    if (used.length > 0 && observation.time < used[used.length - 1]!.time) sorted = false;
-    used.push({ time: observation.time, value: observation.value, index });
+    if (usedTimes.length > 0 && observation.time < usedTimes[usedTimes.length - 1]!) sorted = false;
+    usedTimes.push(observation.time);
+    usedValues.push(observation.value);
+    usedIndices.push(index);
   }
-  if (!sorted) used.sort((a, b) => a.time - b.time || a.index - b.index);
-  if (used.length < MIN_POINTS) {
+  // Parallel lists, not one object per point: series can hold 10⁵ points. Sort only when needed (stable,
+  // so replicates keep their input order).
+  let times = usedTimes;
+  let values = usedValues;
+  let indices = usedIndices;
+  if (!sorted) {
+    const order = usedTimes.map((_, position) => position);
+    order.sort((a, b) => usedTimes[a]! - usedTimes[b]! || a - b);
+    times = order.map((position) => usedTimes[position]!);
+    values = order.map((position) => usedValues[position]!);
+    indices = order.map((position) => usedIndices[position]!);
+  }
+  const count = times.length;
+  if (count < MIN_POINTS) {
     throw new KineticsError(
       'too-few-points',
-      `Series ${series.id} has ${used.length} usable point${used.length === 1 ? '' : 's'}; a rate law needs at least ${MIN_POINTS}.`,
-      { id: series.id, n: used.length, excluded: excluded.length, minimum: MIN_POINTS },
+      `Series ${series.id} has ${count} usable point${count === 1 ? '' : 's'}; a rate law needs at least ${MIN_POINTS}.`,
+      { id: series.id, n: count, excluded: excluded.length, minimum: MIN_POINTS },
     );
   }
-  if (used.every((point) => point.time === used[0]!.time)) {
+  if (times[0] === times[count - 1]) {
     throw new KineticsError(
       'single-time',
-      `Every usable point of series ${series.id} is at time ${used[0]!.time}; measure at more than one time.`,
-      { id: series.id, time: used[0]!.time, n: used.length },
+      `Every usable point of series ${series.id} is at time ${times[0]}; measure at more than one time.`,
+      { id: series.id, time: times[0], n: count },
     );
   }
   return {
-    times: used.map((point) => point.time),
-    values: used.map((point) => point.value),
-    labelOf: (index: number) => labelOfObservation(used[index]!.index),
+    times,
+    values,
+    labelOf: (index: number) => labelOfObservation(indices[index]!),
     excluded,
   };
 }

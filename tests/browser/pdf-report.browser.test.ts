@@ -1,0 +1,136 @@
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { formatSignificant } from '../../shared/figures/significant-figures.ts';
+import { BrowserPool } from '../../server/pdf/browser-pool.ts';
+import { reportFixture } from '../../server/reports/render-fixture.ts';
+import { REPORT_CAUTION, SIGNATURES_PLACEHOLDER } from '../../server/reports/report-context.ts';
+import { renderReportPdf } from '../../server/reports/render-report.ts';
+import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { SCREENSHOT_DIR } from '../support/browser.ts';
+
+/**
+ * The default report printed by Chromium, read back with poppler-utils (pdfinfo, pdffonts,
+ * pdftotext — Debian's, independent of the code that wrote the PDF). Page images go to
+ * reports/screenshots/report-*.png for a person to look at.
+ */
+
+const fixture = reportFixture();
+const pool = new BrowserPool({ size: 1 });
+const folder = mkdtempSync(path.join(os.tmpdir(), 'rateledger-pdf-test-'));
+const printed: Record<'A4' | 'Letter', { file: string; pageCount: number; blocked: number }> = {} as never;
+
+const poppler = (tool: string, ...args: string[]) => execFileSync(tool, args, { encoding: 'utf8' });
+const flat = (text: string) => text.replace(/\s+/g, ' ');
+const info = (file: string) =>
+  Object.fromEntries(
+    poppler('pdfinfo', file)
+      .split('\n')
+      .map((line) => /^([^:]+):\s*(.*)$/.exec(line))
+      .filter((match) => match !== null)
+      .map((match) => [match[1], match[2]]),
+  ) as Record<string, string>;
+
+beforeAll(async () => {
+  for (const paper of ['A4', 'Letter'] as const) {
+    const result = await renderReportPdf(pool, { template: loadDefaultTemplate(), context: fixture.context, figures: fixture.figures, paper });
+    const file = path.join(folder, `report-${paper}.pdf`);
+    writeFileSync(file, result.pdf);
+    printed[paper] = { file, pageCount: result.pageCount, blocked: result.requests.blocked };
+  }
+  mkdirSync(SCREENSHOT_DIR, { recursive: true });
+  for (const old of readdirSync(SCREENSHOT_DIR).filter((name) => name.startsWith('report-a4-'))) rmSync(path.join(SCREENSHOT_DIR, old));
+  poppler('pdftoppm', '-r', '50', '-png', printed.A4.file, path.join(SCREENSHOT_DIR, 'report-a4'));
+});
+afterAll(async () => {
+  await pool.close();
+  rmSync(folder, { recursive: true, force: true });
+});
+
+describe('the default report as a PDF', () => {
+  it('has the page count, metadata and tagging it should (pdfinfo)', () => {
+    const meta = info(printed.A4.file);
+    expect(Number(meta.Pages)).toBe(printed.A4.pageCount);
+    expect(Number(meta.Pages)).toBeGreaterThanOrEqual(6);
+    expect(meta.Title).toBe('Stability kinetics report: Veltrazine 50 mg tablets (RL-2026-0007 v1)');
+    expect(meta.Author).toBe('Analyst One');
+    expect(meta.Subject).toBe('Veltrazine 50 mg tablets: Assay, study VZ-STAB-07 long-term and accelerated');
+    expect(meta.Keywords).toContain('RL-2026-0007');
+    expect(meta.Creator).toBe('Rateledger');
+    expect(meta.Producer).toMatch(/^Rateledger/);
+    expect(meta.Tagged).toBe('yes');
+    expect(meta.JavaScript).toBe('no');
+    expect(meta.CreationDate).toMatch(/Dec {1,2}1 14:05:00 2026/);
+  });
+
+  it('prints on A4 and on US Letter (pdfinfo "Page size")', () => {
+    // ISO 216: A4 is 210 × 297 mm = 595.28 × 841.89 pt; ANSI/ASME Y14.1: Letter is 8.5 × 11 in = 612 × 792 pt.
+    // Chromium rounds the sheet to whole CSS pixels, so allow 1 pt.
+    const size = (file: string) => (/([\d.]+) x ([\d.]+) pts/.exec(info(file)['Page size'] ?? '') ?? []).slice(1).map(Number);
+    const [a4Width, a4Height] = size(printed.A4.file);
+    expect(Math.abs(a4Width! - 595.28)).toBeLessThan(1);
+    expect(Math.abs(a4Height! - 841.89)).toBeLessThan(1);
+    const [letterWidth, letterHeight] = size(printed.Letter.file);
+    expect(Math.abs(letterWidth! - 612)).toBeLessThan(1);
+    expect(Math.abs(letterHeight! - 792)).toBeLessThan(1);
+    expect(Number(info(printed.Letter.file).Pages)).toBe(printed.Letter.pageCount);
+  });
+
+  it('embeds every font, including the bundled Merriweather and Source Sans 3 (pdffonts)', () => {
+    const rows = poppler('pdffonts', printed.A4.file).split('\n').slice(2).filter((line) => line.trim() !== '');
+    expect(rows.length).toBeGreaterThan(0);
+    for (const row of rows) {
+      // Columns: name type encoding emb sub uni object ID; the type may hold a space ("CID TrueType").
+      const [embedded] = row.trim().split(/\s+/).slice(-5);
+      expect(embedded, row).toBe('yes');
+    }
+    expect(rows.some((row) => row.includes('Merriweather'))).toBe(true);
+    expect(rows.some((row) => row.includes('SourceSans3'))).toBe(true);
+  });
+
+  it("shows the analysis' key numbers with their units (pdftotext)", () => {
+    const text = flat(poppler('pdftotext', printed.A4.file, '-'));
+    const analysis = fixture.stored.analysis;
+    const first = analysis.series[0]!.analysis!;
+    const model = first.models.find((candidate) => candidate.order === first.reportedOrder)!;
+    // Numbers from the engine's result, written with the product's one formatter (shared with the screen).
+    expect(text).toContain(`${formatSignificant(model.k, 4)} ${model.kUnit}`);
+    expect(text).toContain(`${formatSignificant(first.t90!.estimate, 3)} month`);
+    const shelfLife = analysis.shelfLife!.find((condition) => condition.temperatureC === 25)!.result!.shelfLife!;
+    expect(text).toContain(`ICH Q1E shelf life at 25 °C (storage condition): ${formatSignificant(shelfLife, 3)} month`);
+    expect(text).toContain(`${formatSignificant(analysis.arrhenius!.fit!.activationEnergy / 1000, 4)} kJ/mol`);
+    expect(text).toContain('not less than 95 % label claim');
+    expect(text).toContain('Sample vial cracked in transit; retest recorded in deviation DV-0118.');
+    expect(text).toContain(flat(REPORT_CAUTION));
+    expect(text).toContain(SIGNATURES_PLACEHOLDER);
+    expect(text).toContain('Time (month)'); // an axis title from inside a figure's SVG
+    expect(text).not.toMatch(/NaN|undefined|\[object Object\]|Infinity/);
+  });
+
+  it('runs the header and footer on every page: report number, version and "Page X of Y"', () => {
+    const pages = printed.A4.pageCount;
+    for (const page of [1, pages]) {
+      const text = flat(poppler('pdftotext', '-f', String(page), '-l', String(page), printed.A4.file, '-'));
+      expect(text).toContain('Report RL-2026-0007 · version 1');
+      expect(text).toContain(`Page ${page} of ${pages}`);
+    }
+  });
+
+  it('needed no request beyond its inlined resources', () => {
+    expect(printed.A4.blocked).toBe(0);
+    expect(printed.Letter.blocked).toBe(0);
+  });
+
+  it('starts a new browser when the warm one dies, and prints again', async () => {
+    const pid = await pool.withBrowser(async (browser) => browser.process()?.pid);
+    expect(pid).toBeTypeOf('number');
+    process.kill(pid!, 'SIGKILL');
+    await expect.poll(() => pool.restarts, { timeout: 10_000 }).toBe(1);
+    const again = await renderReportPdf(pool, { template: loadDefaultTemplate(), context: fixture.context, figures: fixture.figures, paper: 'A4' });
+    expect(again.pageCount).toBe(printed.A4.pageCount);
+    const newPid = await pool.withBrowser(async (browser) => browser.process()?.pid);
+    expect(newPid).not.toBe(pid);
+  });
+});
