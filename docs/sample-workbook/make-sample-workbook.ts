@@ -44,8 +44,18 @@ interface Condition {
 }
 
 const CONDITIONS: Condition[] = [
-  { label: '25 °C / 60 % RH (long term)', temperatureC: 25, months: [0, 3, 6, 9, 12, 18, 24], batches: ['OR-2401', 'OR-2402', 'OR-2403'] },
-  { label: '40 °C / 75 % RH (accelerated)', temperatureC: 40, months: [0, 1, 2, 3, 6], batches: ['OR-2401', 'OR-2402', 'OR-2403'] },
+  {
+    label: '25 °C / 60 % RH (long term)',
+    temperatureC: 25,
+    months: [0, 3, 6, 9, 12, 18, 24],
+    batches: ['OR-2401', 'OR-2402', 'OR-2403'],
+  },
+  {
+    label: '40 °C / 75 % RH (accelerated)',
+    temperatureC: 40,
+    months: [0, 1, 2, 3, 6],
+    batches: ['OR-2401', 'OR-2402', 'OR-2403'],
+  },
   { label: '50 °C (stress)', temperatureC: 50, months: [0, 0.5, 1, 2, 3], batches: ['OR-2401'] },
   { label: '60 °C (stress)', temperatureC: 60, months: [0, 0.25, 0.5, 1, 2], batches: ['OR-2401'] },
 ];

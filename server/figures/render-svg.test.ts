@@ -8,9 +8,18 @@ const spec = (title = 'Assay over time'): TopLevelSpec => ({
   title,
   data: { values: [0, 3, 6, 9, 12].map((time) => ({ time, value: 100 - 0.15 * time })) },
   layer: [
-    { mark: 'point', encoding: { x: { field: 'time', type: 'quantitative' }, y: { field: 'value', type: 'quantitative', scale: { zero: false } } } },
+    {
+      mark: 'point',
+      encoding: {
+        x: { field: 'time', type: 'quantitative' },
+        y: { field: 'value', type: 'quantitative', scale: { zero: false } },
+      },
+    },
     // clip: true makes vega emit a clipPath with an id, which must be namespaced per figure.
-    { mark: { type: 'line', clip: true }, encoding: { x: { field: 'time', type: 'quantitative' }, y: { field: 'value', type: 'quantitative' } } },
+    {
+      mark: { type: 'line', clip: true },
+      encoding: { x: { field: 'time', type: 'quantitative' }, y: { field: 'value', type: 'quantitative' } },
+    },
   ],
 });
 

@@ -58,7 +58,9 @@ function offlineLoader(refused: string[]) {
     refused.push(String(uri));
     throw new FigureRenderError(`Figures must carry their data inline; "${uri}" was not loaded.`);
   };
-  return { load: refuse, sanitize: refuse, http: refuse, file: refuse } as unknown as ReturnType<typeof vega.loader>;
+  return { load: refuse, sanitize: refuse, http: refuse, file: refuse } as unknown as ReturnType<
+    typeof vega.loader
+  >;
 }
 
 let queue: Promise<unknown> = Promise.resolve();
@@ -73,7 +75,11 @@ async function renderOne(spec: TopLevelSpec, options: RenderSvgOptions): Promise
     const compiled = compile({ ...spec, config } as TopLevelSpec).spec;
     vega.resetSVGDefIds();
     const refused: string[] = [];
-    view = new vega.View(vega.parse(compiled), { renderer: 'none', loader: offlineLoader(refused), logLevel: vega.None });
+    view = new vega.View(vega.parse(compiled), {
+      renderer: 'none',
+      loader: offlineLoader(refused),
+      logLevel: vega.None,
+    });
     const svg = await view.toSVG();
     if (refused.length > 0) {
       throw new FigureRenderError(`Figures must carry their data inline; "${refused[0]}" was not loaded.`);
@@ -81,7 +87,9 @@ async function renderOne(spec: TopLevelSpec, options: RenderSvgOptions): Promise
     return finishSvg(svg, options);
   } catch (error) {
     if (error instanceof FigureRenderError) throw error;
-    throw new FigureRenderError(`The figure could not be drawn: ${(error as Error).message}`, { cause: error });
+    throw new FigureRenderError(`The figure could not be drawn: ${(error as Error).message}`, {
+      cause: error,
+    });
   } finally {
     view?.finalize();
   }
@@ -106,7 +114,9 @@ function finishSvg(svg: string, options: RenderSvgOptions): string {
 
 export function renderSvg(spec: TopLevelSpec, options: RenderSvgOptions): Promise<string> {
   if (!ID_PREFIX_PATTERN.test(options.idPrefix)) {
-    return Promise.reject(new FigureRenderError(`Figure id prefix "${options.idPrefix}" must be letters, digits, - or _.`));
+    return Promise.reject(
+      new FigureRenderError(`Figure id prefix "${options.idPrefix}" must be letters, digits, - or _.`),
+    );
   }
   const result = queue.then(() => renderOne(spec, options));
   queue = result.catch(() => undefined);

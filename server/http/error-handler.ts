@@ -29,7 +29,22 @@ function fromFrameworkError(error: unknown): HttpError | null {
       error.issues.map((issue) => ({ field: issue.path.join('.'), message: issue.message })),
     );
   }
-  const typed = error as { status?: number; statusCode?: number; type?: string; code?: string };
+  const typed = error as {
+    status?: number;
+    statusCode?: number;
+    type?: string;
+    code?: string;
+    name?: string;
+    field?: string;
+  };
+  if (typed.name === 'MulterError') {
+    if (typed.code === 'LIMIT_FILE_SIZE')
+      return new HttpError(413, 'The file is larger than this upload accepts.');
+    return new HttpError(
+      400,
+      `The upload could not be read (${typed.code ?? 'multipart error'}${typed.field ? `, field "${typed.field}"` : ''}).`,
+    );
+  }
   const status = typed.status ?? typed.statusCode;
   if (typed.type === 'entity.parse.failed') return new HttpError(400, 'The request body is not valid JSON.');
   if (typed.type === 'entity.too.large')

@@ -58,7 +58,6 @@ export function openRenderQueue(options: RenderQueueOptions): RenderQueue {
     supervise: options.supervise,
     schedule: false,
     maintenanceIntervalSeconds: config.maintenanceIntervalSeconds,
-    monitorStateIntervalSeconds: 60,
   });
   boss.on('error', (error) => console.error('[render-queue]', error.message));
 

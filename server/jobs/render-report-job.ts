@@ -63,7 +63,7 @@ export async function renderReportVersion(
       .update(reportVersions)
       .set({
         renderStatus: 'rendering',
-        renderStartedAt: sql`now()`,
+        renderStartedAt: sql`clock_timestamp()`,
         renderAttempts: sql`${reportVersions.renderAttempts} + 1`,
         jobId: attempt.jobId,
       })
@@ -96,7 +96,7 @@ export async function renderReportVersion(
         pdfByteSize: rendered.pdf.byteLength,
         pageCount: rendered.pageCount,
         failureReason: null,
-        finishedAt: sql`now()`,
+        finishedAt: sql`clock_timestamp()`,
       })
       .where(and(eq(reportVersions.id, versionId), eq(reportVersions.renderStatus, 'rendering')))
       .returning({ id: reportVersions.id });
@@ -178,7 +178,7 @@ export async function sweepIncoming(db: Database, storage: ReportStorage) {
 async function markFailed(tx: Executor, versionId: number, reason: string, attempt: RenderAttempt) {
   const [row] = await tx
     .update(reportVersions)
-    .set({ renderStatus: 'failed', failureReason: reason, finishedAt: sql`now()` })
+    .set({ renderStatus: 'failed', failureReason: reason, finishedAt: sql`clock_timestamp()` })
     .where(and(eq(reportVersions.id, versionId), inArray(reportVersions.renderStatus, ['queued', 'rendering'])))
     .returning({ reportId: reportVersions.reportId, versionNumber: reportVersions.versionNumber });
   if (!row) return;

@@ -113,9 +113,12 @@ export class BrowserPool {
       return slot;
     } catch (error) {
       rmSync(profileDir, { recursive: true, force: true });
-      throw new Error(`Chromium could not be started from ${this.executablePath}: ${(error as Error).message}`, {
-        cause: error,
-      });
+      throw new Error(
+        `Chromium could not be started from ${this.executablePath}: ${(error as Error).message}`,
+        {
+          cause: error,
+        },
+      );
     }
   }
 

@@ -1,4 +1,4 @@
-import { PDFDocument, ParseSpeeds } from 'pdf-lib';
+import { ParseSpeeds, PDFDocument } from 'pdf-lib';
 import type { Page } from 'puppeteer-core';
 import type { BrowserPool } from './browser-pool.ts';
 import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.ts';

@@ -1,10 +1,10 @@
-import { type FigureSpec, analysisFigures } from '../../shared/figures/analysis-figures.ts';
+import { analysisFigures, type FigureSpec } from '../../shared/figures/analysis-figures.ts';
 import { confidenceBands, type StoredAnalysisResult } from '../../shared/figures/stored-result.ts';
 import { analyseDataset, type DatasetOptions } from '../../shared/kinetics/analyse-dataset.ts';
 import type { Series } from '../../shared/kinetics/types.ts';
 import { ENGINE_VERSION } from '../../shared/kinetics/version.ts';
-import { buildReportContext, type ReportContext, type ReportContextInput } from './report-context.ts';
 import { reportFigures } from './render-report.ts';
+import { buildReportContext, type ReportContext, type ReportContextInput } from './report-context.ts';
 
 /**
  * An invented stability study for tests and the benchmark of the report pipeline: the fictional
@@ -21,7 +21,14 @@ import { reportFigures } from './render-report.ts';
 
 const SCATTER = [0.21, -0.15, 0.08, -0.3, 0.12, -0.05, 0.18, -0.11];
 
-function firstOrderSeries(id: string, batch: string, temperatureC: number, k: number, times: number[], start: number): Series {
+function firstOrderSeries(
+  id: string,
+  batch: string,
+  temperatureC: number,
+  k: number,
+  times: number[],
+  start: number,
+): Series {
   return {
     id,
     batch,
@@ -31,7 +38,9 @@ function firstOrderSeries(id: string, batch: string, temperatureC: number, k: nu
     observations: times.map((time, index) => ({
       time,
       value: Number((start * Math.exp(-k * time) + (SCATTER[index % SCATTER.length] as number)).toFixed(2)),
-      source: { cell: `${batch === 'VZ-2401' && temperatureC === 40 ? 'Accelerated' : 'LongTerm'}!C${index + 2}` },
+      source: {
+        cell: `${batch === 'VZ-2401' && temperatureC === 40 ? 'Accelerated' : 'LongTerm'}!C${index + 2}`,
+      },
     })),
   };
 }
@@ -49,7 +58,12 @@ export function fixtureSeries(): Series[] {
   return [a, b, c];
 }
 
-export const FIXTURE_OPTIONS: DatasetOptions = { confidenceLevel: 0.95, lowerLimit: FIXTURE_LIMIT, storageTemperatureC: 25, order: 1 };
+export const FIXTURE_OPTIONS: DatasetOptions = {
+  confidenceLevel: 0.95,
+  lowerLimit: FIXTURE_LIMIT,
+  storageTemperatureC: 25,
+  order: 1,
+};
 
 export interface ReportFixture {
   series: Series[];
@@ -59,10 +73,15 @@ export interface ReportFixture {
   context: ReportContext;
 }
 
-export function reportFixture(overrides: Partial<Pick<ReportContextInput, 'report' | 'timeZone'>> = {}): ReportFixture {
+export function reportFixture(
+  overrides: Partial<Pick<ReportContextInput, 'report' | 'timeZone'>> = {},
+): ReportFixture {
   const series = fixtureSeries();
   const analysis = analyseDataset(series, FIXTURE_OPTIONS);
-  const stored: StoredAnalysisResult = { analysis, confidenceBands: confidenceBands(analysis, series, FIXTURE_OPTIONS) };
+  const stored: StoredAnalysisResult = {
+    analysis,
+    confidenceBands: confidenceBands(analysis, series, FIXTURE_OPTIONS),
+  };
   const figures = reportFigures(analysisFigures(stored, series, { lower: FIXTURE_LIMIT }));
   const input: ReportContextInput = {
     organisation: { name: 'Northfield Stability Laboratory', timeZone: 'Europe/Berlin' },

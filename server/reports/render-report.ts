@@ -53,7 +53,9 @@ export function reportFigures<T extends Pick<FigureSpec, 'id'>>(figures: readonl
 }
 
 /** Draws each figure to SVG, in order, numbered from 1. */
-export async function renderFigureMarkup(figures: RenderReportInput['figures']): Promise<Map<string, FigureMarkup>> {
+export async function renderFigureMarkup(
+  figures: RenderReportInput['figures'],
+): Promise<Map<string, FigureMarkup>> {
   const markup = new Map<string, FigureMarkup>();
   let number = 0;
   for (const figure of figures) {
@@ -69,11 +71,17 @@ export async function renderFigureMarkup(figures: RenderReportInput['figures']):
 }
 
 /** Renders the report HTML: figures to SVG, then the template. */
-export async function renderReportHtml(input: RenderReportInput): Promise<{ html: string; figuresMs: number; templateMs: number }> {
+export async function renderReportHtml(
+  input: RenderReportInput,
+): Promise<{ html: string; figuresMs: number; templateMs: number }> {
   const started = performance.now();
   const figures = await renderFigureMarkup(input.figures);
   const drawn = performance.now();
-  const html = compileReportTemplate(input.template).render({ context: input.context, figures, paper: input.paper });
+  const html = compileReportTemplate(input.template).render({
+    context: input.context,
+    figures,
+    paper: input.paper,
+  });
   return { html, figuresMs: drawn - started, templateMs: performance.now() - drawn };
 }
 
@@ -88,12 +96,23 @@ export async function renderReportPdf(
   const printed = await printPdf(pool, {
     html: rendering.then((rendered) => rendered.html),
     paper: input.paper,
-    header: { reportNumber: context.report.number, version: context.report.version, organisation: context.organisation.name },
+    header: {
+      reportNumber: context.report.number,
+      version: context.report.version,
+      organisation: context.organisation.name,
+    },
     metadata: {
       title: `${context.report.title} (${context.report.number} v${context.report.version})`,
       author: context.report.author,
       subject: `${context.study.product}: ${context.study.attribute}, study ${context.study.title}`,
-      keywords: ['Rateledger', 'stability', 'kinetics', context.report.number, context.study.product, ...context.study.batches],
+      keywords: [
+        'Rateledger',
+        'stability',
+        'kinetics',
+        context.report.number,
+        context.study.product,
+        ...context.study.batches,
+      ],
       createdAt: context.report.createdAt,
     },
   });

@@ -24,11 +24,13 @@ function modelName(row: ResultRow): string {
   return MODEL_NAMES[row.model] ?? row.model;
 }
 
-const intervalLabel = (analysis: DatasetAnalysis) => `${Math.round(analysis.confidenceLevel * 100)} % interval`;
+const intervalLabel = (analysis: DatasetAnalysis) =>
+  `${Math.round(analysis.confidenceLevel * 100)} % interval`;
 
 /** Engine prose quotes some numbers at full double precision; a report shows them at 4 significant figures. */
 const LONG_DECIMAL = /-?\d+\.\d{6,}/g;
-export const tidyNote = (note: string) => note.replace(LONG_DECIMAL, (match) => significant(Number(match), 4));
+export const tidyNote = (note: string) =>
+  note.replace(LONG_DECIMAL, (match) => significant(Number(match), 4));
 
 /** A table with one row per result row (Q1E, Arrhenius, derived times). */
 function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string): ReportTable {
@@ -46,7 +48,10 @@ function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string
       where: where(row),
       quantity: row.label,
       estimate: significant(row.estimate, row.digits, row.unit),
-      interval: row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits, row.unit),
+      interval:
+        row.lower === null || row.upper === null
+          ? ''
+          : interval([row.lower, row.upper], row.digits, row.unit),
       note: tidyNote(row.note),
     })),
   };
@@ -113,8 +118,10 @@ export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
   const rows = resultRows(analysis);
   const of = (section: ResultRow['section']) => rows.filter((row) => row.section === section);
   const tables: ReportTable[] = [];
-  if (of('shelf-life').length > 0) tables.push(listTable(analysis, of('shelf-life'), 'ICH Q1E shelf life per condition'));
-  if (of('arrhenius').length > 0) tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
+  if (of('shelf-life').length > 0)
+    tables.push(listTable(analysis, of('shelf-life'), 'ICH Q1E shelf life per condition'));
+  if (of('arrhenius').length > 0)
+    tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
   if (of('derived').length > 0) {
     tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
   }
@@ -142,7 +149,9 @@ export function dataTables(seriesList: readonly Series[]): ReportTable[] {
       rows: observations.map((observation) => ({
         time: String(observation.time),
         value: String(observation.value),
-        source: observation.source?.cell ?? (observation.source?.row === undefined ? '' : `row ${observation.source.row}`),
+        source:
+          observation.source?.cell ??
+          (observation.source?.row === undefined ? '' : `row ${observation.source.row}`),
         status: observation.excluded ? `Excluded: ${observation.excluded.reason}` : 'yes',
       })),
       empty: NOT_ESTIMABLE_TEXT,

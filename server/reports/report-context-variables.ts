@@ -19,17 +19,32 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   { path: 'report.version', description: 'Version of the report (1, 2, …); a new render is a new version.' },
   { path: 'report.title', description: 'Report title.' },
   { path: 'report.author', description: 'Name of the person who created the report.' },
-  { path: 'report.createdAt', description: 'When the report version was created (date; print with isoDate).' },
-  { path: 'report.createdDay', description: 'The day it was created, YYYY-MM-DD, in the organisation time zone.' },
+  {
+    path: 'report.createdAt',
+    description: 'When the report version was created (date; print with isoDate).',
+  },
+  {
+    path: 'report.createdDay',
+    description: 'The day it was created, YYYY-MM-DD, in the organisation time zone.',
+  },
   { path: 'study.title', description: 'Study title.' },
   { path: 'study.product', description: 'Product under test.' },
   { path: 'study.attribute', description: 'Measured attribute, e.g. Assay.' },
   { path: 'study.unit', description: 'Unit of the measured values.' },
-  { path: 'study.direction', description: 'decreasing, increasing or either: how the attribute moves on storage.' },
+  {
+    path: 'study.direction',
+    description: 'decreasing, increasing or either: how the attribute moves on storage.',
+  },
   { path: 'study.lowerLimit', description: 'Lower acceptance limit, or null.' },
   { path: 'study.upperLimit', description: 'Upper acceptance limit, or null.' },
-  { path: 'study.acceptanceCriterion', description: 'The acceptance criterion in words, e.g. "not less than 95 % of label claim".' },
-  { path: 'study.storage.text', description: 'Long-term storage condition in words, e.g. "25 °C / 60 % RH".' },
+  {
+    path: 'study.acceptanceCriterion',
+    description: 'The acceptance criterion in words, e.g. "not less than 95 % of label claim".',
+  },
+  {
+    path: 'study.storage.text',
+    description: 'Long-term storage condition in words, e.g. "25 °C / 60 % RH".',
+  },
   { path: 'study.storage.temperatureC', description: 'Storage temperature in °C, or null.' },
   { path: 'study.storage.humidityPercent', description: 'Storage relative humidity in %, or null.' },
   { path: 'study.batches[]', description: 'Batch (lot) identifiers on test.' },
@@ -38,25 +53,71 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   { path: 'analysis.runId', description: 'Id of the analysis run the report shows.' },
   { path: 'analysis.runAt', description: 'When the analysis ran (date).' },
   { path: 'analysis.runBy', description: 'Who ran the analysis.' },
-  { path: 'analysis.supersedesRunId', description: 'The earlier run this one replaces (after an exclusion), or null.' },
-  { path: 'analysis.engineVersion', description: 'Version of the kinetics engine that computed the results.' },
+  {
+    path: 'analysis.supersedesRunId',
+    description: 'The earlier run this one replaces (after an exclusion), or null.',
+  },
+  {
+    path: 'analysis.engineVersion',
+    description: 'Version of the kinetics engine that computed the results.',
+  },
   { path: 'analysis.datasetId', description: 'Id of the dataset analysed.' },
   { path: 'analysis.datasetSha256', description: 'SHA-256 of the dataset analysed (its fingerprint).' },
-  { path: 'analysis.confidenceLevel', description: 'Confidence level of the intervals, e.g. 0.95 (print with percent).' },
+  {
+    path: 'analysis.confidenceLevel',
+    description: 'Confidence level of the intervals, e.g. 0.95 (print with percent).',
+  },
   { path: 'analysis.seriesCount', description: 'Number of series (batch × condition) analysed.' },
   { path: 'analysis.pointsUsed', description: 'Number of measured points used.' },
-  { path: 'summary.headline[]', description: 'The verdict in sentences: the shelf life per condition, else each series’ order verdict.' },
-  { path: 'summary.series[]', description: 'Per series: id, batch, temperatureC, verdict, reportedOrder, points, fractionReacted, k / halfLife / t90 / timeToLowerLimit / timeToUpperLimit ({ estimate, interval, unit } or null), warnings[].' },
-  { path: 'summary.shelfLife[]', description: 'Per storage condition: temperatureC, seriesIds[], shelfLife, timeUnit, model, limitingLine, status, reason, statement.' },
-  { path: 'summary.arrhenius', description: 'Arrhenius fit or null: order, temperatures[], activationEnergyKJPerMol, activationEnergyInterval, rSquared, prediction { temperatureC, k, kInterval, kUnit, t90, t90Interval, extrapolated }, notApplicableReason.' },
-  { path: 'resultTables[]', description: 'Results tables (same rows and figures as the analysis screen); print each with {{table this}}.' },
-  { path: 'dataTables[]', description: 'Measured data per series with exclusions and reasons; print each with {{table this}}.' },
-  { path: 'figures[]', description: 'Figures of the report: id, number, title, description; print with {{figure id}}.' },
-  { path: 'exclusions[]', description: 'Excluded points: seriesId, time, timeUnit, value, valueUnit, reason, cell.' },
-  { path: 'warnings[]', description: 'Warnings of the analysis in sentences (low fraction reacted, outliers, extrapolation…).' },
+  {
+    path: 'summary.headline[]',
+    description: 'The verdict in sentences: the shelf life per condition, else each series’ order verdict.',
+  },
+  {
+    path: 'summary.series[]',
+    description:
+      'Per series: id, batch, temperatureC, verdict, reportedOrder, points, fractionReacted, k / halfLife / t90 / timeToLowerLimit / timeToUpperLimit ({ estimate, interval, unit } or null), warnings[].',
+  },
+  {
+    path: 'summary.shelfLife[]',
+    description:
+      'Per storage condition: temperatureC, seriesIds[], shelfLife, timeUnit, model, limitingLine, status, reason, statement.',
+  },
+  {
+    path: 'summary.arrhenius',
+    description:
+      'Arrhenius fit or null: order, temperatures[], activationEnergyKJPerMol, activationEnergyInterval, rSquared, prediction { temperatureC, k, kInterval, kUnit, t90, t90Interval, extrapolated }, notApplicableReason.',
+  },
+  {
+    path: 'resultTables[]',
+    description:
+      'Results tables (same rows and figures as the analysis screen); print each with {{table this}}.',
+  },
+  {
+    path: 'dataTables[]',
+    description: 'Measured data per series with exclusions and reasons; print each with {{table this}}.',
+  },
+  {
+    path: 'figures[]',
+    description: 'Figures of the report: id, number, title, description; print with {{figure id}}.',
+  },
+  {
+    path: 'exclusions[]',
+    description: 'Excluded points: seriesId, time, timeUnit, value, valueUnit, reason, cell.',
+  },
+  {
+    path: 'warnings[]',
+    description: 'Warnings of the analysis in sentences (low fraction reacted, outliers, extrapolation…).',
+  },
   { path: 'methodStatement.paragraphs[]', description: 'The method statement, one paragraph per item.' },
   { path: 'methodStatement.references[]', description: 'The published methods the analysis follows.' },
   { path: 'caution', description: 'The caution that estimates support, not replace, qualified judgement.' },
-  { path: 'signatures.placeholder', description: 'Text shown on the signatures page before the report is signed.' },
-  { path: 'signatures.entries[]', description: 'Applied signatures (name, meaning, signedAt); empty until signed.' },
+  {
+    path: 'signatures.placeholder',
+    description: 'Text shown on the signatures page before the report is signed.',
+  },
+  {
+    path: 'signatures.entries[]',
+    description: 'Applied signatures (name, meaning, signedAt); empty until signed.',
+  },
 ];

@@ -1,15 +1,21 @@
 import { describe, expect, it } from 'vitest';
 import { reportFixture } from './render-fixture.ts';
 import { REPORT_CAUTION, SIGNATURES_PLACEHOLDER } from './report-context.ts';
-import { TEMPLATE_VARIABLES } from './report-context-variables.ts';
 import { tidyNote } from './report-context-tables.ts';
+import { TEMPLATE_VARIABLES } from './report-context-variables.ts';
 import { TEMPLATE_HELPERS } from './template-helpers.ts';
 
 const valueAt = (root: unknown, path: string): unknown =>
   path
     .replace(/\[\]$/, '')
     .split('.')
-    .reduce<unknown>((node, key) => (node !== null && typeof node === 'object' && Object.hasOwn(node, key) ? (node as Record<string, unknown>)[key] : undefined), root);
+    .reduce<unknown>(
+      (node, key) =>
+        node !== null && typeof node === 'object' && Object.hasOwn(node, key)
+          ? (node as Record<string, unknown>)[key]
+          : undefined,
+      root,
+    );
 
 describe('buildReportContext', () => {
   const { context, stored, input } = reportFixture();
@@ -17,14 +23,19 @@ describe('buildReportContext', () => {
   it('has every variable the editor lists, and lists every top-level field', () => {
     for (const variable of TEMPLATE_VARIABLES) {
       expect(valueAt(context, variable.path), variable.path).not.toBeUndefined();
-      if (variable.path.endsWith('[]')) expect(Array.isArray(valueAt(context, variable.path)), variable.path).toBe(true);
+      if (variable.path.endsWith('[]'))
+        expect(Array.isArray(valueAt(context, variable.path)), variable.path).toBe(true);
     }
     const listedTop = new Set(TEMPLATE_VARIABLES.map((variable) => variable.path.split(/[.[]/)[0]));
     expect(Object.keys(context).filter((key) => !listedTop.has(key))).toEqual([]);
   });
 
   it('describes every helper', () => {
-    expect(TEMPLATE_HELPERS.every((helper) => helper.description.length > 20 && helper.usage.includes(helper.name))).toBe(true);
+    expect(
+      TEMPLATE_HELPERS.every(
+        (helper) => helper.description.length > 20 && helper.usage.includes(helper.name),
+      ),
+    ).toBe(true);
   });
 
   it('holds data only: no functions anywhere, and no NaN or Infinity', () => {
@@ -41,7 +52,11 @@ describe('buildReportContext', () => {
   it("carries the engine's numbers unchanged (the report invents nothing)", () => {
     const first = stored.analysis.series[0]!.analysis!;
     const model = first.models.find((candidate) => candidate.order === first.reportedOrder)!;
-    expect(context.summary.series[0]?.k).toEqual({ estimate: model.k, interval: model.kCi95, unit: model.kUnit });
+    expect(context.summary.series[0]?.k).toEqual({
+      estimate: model.k,
+      interval: model.kCi95,
+      unit: model.kUnit,
+    });
     expect(context.summary.shelfLife[0]?.shelfLife).toBe(stored.analysis.shelfLife![0]!.result!.shelfLife);
     expect(context.analysis.pointsUsed).toBe(stored.analysis.methodStatement.data.pointsUsed);
   });
@@ -53,7 +68,12 @@ describe('buildReportContext', () => {
 
   it('lists the excluded point with its reason, and the caution and signature placeholder', () => {
     expect(context.exclusions).toEqual([
-      expect.objectContaining({ seriesId: 'VZ-2402 @ 25 °C', time: 9, value: 97.1, reason: expect.stringMatching(/DV-0118/) }),
+      expect.objectContaining({
+        seriesId: 'VZ-2402 @ 25 °C',
+        time: 9,
+        value: 97.1,
+        reason: expect.stringMatching(/DV-0118/),
+      }),
     ]);
     expect(context.caution).toBe(REPORT_CAUTION);
     expect(context.caution).toMatch(/support, and do not replace/);

@@ -69,7 +69,8 @@ const ORDER_WORDS = ['zero order', 'first order', 'second order'] as const;
 
 function analysisOf(result: DatasetAnalysis | StoredAnalysisResult): DatasetAnalysis {
   const analysis = 'analysis' in result ? result.analysis : result;
-  if (!analysis || !Array.isArray(analysis.series)) throw new Error('The analysis run holds no analysis result.');
+  if (!analysis || !Array.isArray(analysis.series))
+    throw new Error('The analysis run holds no analysis result.');
   return analysis;
 }
 
@@ -93,9 +94,11 @@ function seriesSummaries(analysis: DatasetAnalysis) {
   return analysis.series.map((result) => {
     const fitted = result.analysis;
     const reported = fitted?.reportedOrder ?? null;
-    const model = reported === null ? null : (fitted?.models.find((candidate) => candidate.order === reported) ?? null);
-    const figure = (value: { estimate: number | null; ci95: [number, number] | null; unit: string } | null | undefined) =>
-      value ? { estimate: value.estimate, interval: value.ci95, unit: value.unit } : null;
+    const model =
+      reported === null ? null : (fitted?.models.find((candidate) => candidate.order === reported) ?? null);
+    const figure = (
+      value: { estimate: number | null; ci95: [number, number] | null; unit: string } | null | undefined,
+    ) => (value ? { estimate: value.estimate, interval: value.ci95, unit: value.unit } : null);
     return {
       id: result.id,
       batch: result.batch,
@@ -122,14 +125,17 @@ function seriesSummaries(analysis: DatasetAnalysis) {
 
 function shelfLifeSummaries(analysis: DatasetAnalysis, storageTemperatureC: number | null) {
   return (analysis.shelfLife ?? []).map((condition) => {
-    const timeUnit = analysis.series.find((result) => condition.seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
+    const timeUnit =
+      analysis.series.find((result) => condition.seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
     const result = condition.result;
     const isStorage = condition.temperatureC === null || condition.temperatureC === storageTemperatureC;
     const where =
       condition.temperatureC === null
         ? 'all series'
         : `${condition.temperatureC} °C${isStorage ? ' (storage condition)' : ' (not the storage condition; for information)'}`;
-    const extrapolated = result?.extrapolation.beyondObservedData ? ', beyond the observed data (extrapolated)' : '';
+    const extrapolated = result?.extrapolation.beyondObservedData
+      ? ', beyond the observed data (extrapolated)'
+      : '';
     const statement = !result
       ? `Shelf life at ${where} not evaluated: ${condition.notApplicableReason ?? 'no result'}.`
       : result.shelfLife === null
@@ -200,7 +206,10 @@ export function buildReportContext(input: ReportContextInput) {
     (a, b) => Number(b.isStorageCondition) - Number(a.isStorageCondition),
   );
   const series = seriesSummaries(analysis);
-  const headline = shelfLife.length > 0 ? shelfLife.map((entry) => entry.statement) : series.map((entry) => `${entry.id}: ${entry.verdict}`);
+  const headline =
+    shelfLife.length > 0
+      ? shelfLife.map((entry) => entry.statement)
+      : series.map((entry) => `${entry.id}: ${entry.verdict}`);
   return {
     organisation: { name: organisation.name, timeZone },
     report: {
@@ -220,9 +229,17 @@ export function buildReportContext(input: ReportContextInput) {
       lowerLimit: study.lowerLimit,
       upperLimit: study.upperLimit,
       acceptanceCriterion: acceptanceCriterion(study),
-      storage: { temperatureC: study.storageTemperatureC, humidityPercent: study.storageHumidityPercent, text: storageText(study) },
+      storage: {
+        temperatureC: study.storageTemperatureC,
+        humidityPercent: study.storageHumidityPercent,
+        text: storageText(study),
+      },
       batches: study.batches,
-      conditions: [...new Set(analysisRun.series.map((entry) => entry.temperatureC).filter((value) => value !== undefined))]
+      conditions: [
+        ...new Set(
+          analysisRun.series.map((entry) => entry.temperatureC).filter((value) => value !== undefined),
+        ),
+      ]
         .sort((a, b) => (a as number) - (b as number))
         .map((temperatureC) => `${temperatureC} °C`),
       notes: study.notes,
@@ -258,7 +275,10 @@ export function buildReportContext(input: ReportContextInput) {
       references: statement.references,
     },
     caution: REPORT_CAUTION,
-    signatures: { placeholder: SIGNATURES_PLACEHOLDER, entries: [] as { name: string; meaning: string; signedAt: Date }[] },
+    signatures: {
+      placeholder: SIGNATURES_PLACEHOLDER,
+      entries: [] as { name: string; meaning: string; signedAt: Date }[],
+    },
   };
 }
 

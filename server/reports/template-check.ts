@@ -53,14 +53,19 @@ class ReportTemplateVisitor extends Handlebars.Visitor {
     const isCall = node.params.length > 0 || (node.hash?.pairs.length ?? 0) > 0;
     if (path.type === 'PathExpression' && isCall && !path.data && path.parts.length === 1) {
       const name = path.parts[0] as string;
-      if (!this.known.helpers.has(name)) this.problems.push(at(this.part, node.loc, `Unknown helper "${name}".`));
+      if (!this.known.helpers.has(name))
+        this.problems.push(at(this.part, node.loc, `Unknown helper "${name}".`));
     }
   }
 
   override MustacheStatement(node: hbs.AST.MustacheStatement) {
     if (!node.escaped) {
       this.problems.push(
-        at(this.part, node.loc, 'Triple braces {{{…}}} and {{& …}} print a value without HTML escaping; use {{…}}.'),
+        at(
+          this.part,
+          node.loc,
+          'Triple braces {{{…}}} and {{& …}} print a value without HTML escaping; use {{…}}.',
+        ),
       );
     }
     this.checkCall(node);
@@ -107,8 +112,11 @@ class ReportTemplateVisitor extends Handlebars.Visitor {
 
 /** Line and column of the token where Handlebars' parser stopped (its lexer keeps them). */
 function parseErrorLocation(): { line: number; column: number } | null {
-  const lexer = (Handlebars as unknown as { Parser?: { lexer?: { yylloc?: { first_line: number; first_column: number } } } })
-    .Parser?.lexer;
+  const lexer = (
+    Handlebars as unknown as {
+      Parser?: { lexer?: { yylloc?: { first_line: number; first_column: number } } };
+    }
+  ).Parser?.lexer;
   const loc = lexer?.yylloc;
   return loc ? { line: loc.first_line, column: loc.first_column + 1 } : null;
 }
@@ -125,11 +133,20 @@ export function checkTemplateSyntax(
     const exception = error as Error & { lineNumber?: number; column?: number };
     const firstLine = exception.message.split('\n')[0] ?? 'Syntax error';
     if (exception.lineNumber !== undefined) {
-      return [{ part, line: exception.lineNumber, column: (exception.column ?? 0) + 1, message: firstLine.replace(/ - \d+:\d+$/, '') }];
+      return [
+        {
+          part,
+          line: exception.lineNumber,
+          column: (exception.column ?? 0) + 1,
+          message: firstLine.replace(/ - \d+:\d+$/, ''),
+        },
+      ];
     }
     const where = parseErrorLocation();
     const expected = exception.message.split('\n').at(-1) ?? '';
-    const detail = expected.startsWith('Expecting') ? `${firstLine.replace(/ on line \d+:$/, '')}: ${expected}` : firstLine;
+    const detail = expected.startsWith('Expecting')
+      ? `${firstLine.replace(/ on line \d+:$/, '')}: ${expected}`
+      : firstLine;
     return [{ part, line: where?.line ?? null, column: where?.column ?? null, message: detail }];
   }
   const visitor = new ReportTemplateVisitor(part, {

@@ -1,13 +1,23 @@
 import Handlebars from 'handlebars';
 import { describe, expect, it } from 'vitest';
 import { loadDefaultTemplate } from './template-default.ts';
-import { checkReportTemplate, compileReportTemplate, type ReportTemplateSource, TemplateError } from './template-engine.ts';
+import {
+  checkReportTemplate,
+  compileReportTemplate,
+  type ReportTemplateSource,
+  TemplateError,
+} from './template-engine.ts';
 import type { FigureMarkup } from './template-helpers.ts';
 
-const source = (body: string, partials: Record<string, string> = {}): ReportTemplateSource => ({ body, partials, stylesheet: '' });
+const source = (body: string, partials: Record<string, string> = {}): ReportTemplateSource => ({
+  body,
+  partials,
+  stylesheet: '',
+});
 const render = (body: string, context: object, figures = new Map<string, FigureMarkup>()) =>
   compileReportTemplate(source(body)).render({ context, figures, paper: 'A4' });
-const problemsOf = (body: string, partials: Record<string, string> = {}) => checkReportTemplate(source(body, partials));
+const problemsOf = (body: string, partials: Record<string, string> = {}) =>
+  checkReportTemplate(source(body, partials));
 
 describe('escaping', () => {
   it('HTML-escapes every value (Handlebars escapeExpression: & < > " \' ` =)', () => {
@@ -50,9 +60,9 @@ describe('errors with line and column', () => {
   });
 
   it('reports unknown partials, unknown helpers, computed partials and decorators', () => {
-    const messages = problemsOf('{{> nowhere}}\n{{shout study.product}}\n{{> (lookup this "x")}}\n{{* inline}}').map(
-      (problem) => `${problem.line}:${problem.column} ${problem.message}`,
-    );
+    const messages = problemsOf(
+      '{{> nowhere}}\n{{shout study.product}}\n{{> (lookup this "x")}}\n{{* inline}}',
+    ).map((problem) => `${problem.line}:${problem.column} ${problem.message}`);
     expect(messages).toEqual([
       '1:1 Unknown partial "nowhere".',
       '2:1 Unknown helper "shout".',
@@ -62,14 +72,21 @@ describe('errors with line and column', () => {
   });
 
   it('names a misspelt variable (strict mode) with its place, in the partial it is in', () => {
-    const template = compileReportTemplate(source('<h1>x</h1>\n{{> letterhead}}', { letterhead: '<p>\n {{organisation.nmae}}</p>' }));
+    const template = compileReportTemplate(
+      source('<h1>x</h1>\n{{> letterhead}}', { letterhead: '<p>\n {{organisation.nmae}}</p>' }),
+    );
     try {
       template.render({ context: { organisation: { name: 'Lab' } }, figures: new Map(), paper: 'A4' });
       expect.unreachable();
     } catch (error) {
       expect(error).toBeInstanceOf(TemplateError);
       expect((error as TemplateError).problems).toEqual([
-        { part: 'partial "letterhead"', line: 2, column: 4, message: expect.stringMatching(/Unknown variable "nmae"/) },
+        {
+          part: 'partial "letterhead"',
+          line: 2,
+          column: 4,
+          message: expect.stringMatching(/Unknown variable "nmae"/),
+        },
       ]);
     }
   });
@@ -80,7 +97,9 @@ describe('errors with line and column', () => {
       expect.unreachable();
     } catch (error) {
       expect((error as TemplateError).problems[0]).toMatchObject({ line: 2, column: 5 });
-      expect((error as TemplateError).message).toMatch(/line 2, column 5: sig: the number of significant figures/);
+      expect((error as TemplateError).message).toMatch(
+        /line 2, column 5: sig: the number of significant figures/,
+      );
     }
   });
 
@@ -122,7 +141,11 @@ describe('sandbox', () => {
   });
 
   it('keeps a stylesheet from closing its style element', () => {
-    const html = compileReportTemplate({ body: '{{reportStyles}}', partials: {}, stylesheet: 'p{}</style><script>x()</script>' }).render({
+    const html = compileReportTemplate({
+      body: '{{reportStyles}}',
+      partials: {},
+      stylesheet: 'p{}</style><script>x()</script>',
+    }).render({
       context: {},
       figures: new Map(),
       paper: 'Letter',

@@ -68,17 +68,35 @@ export class TemplateError extends Error {
 }
 
 const PART_NAME = /^[a-z][a-z0-9-]*$/;
-const HELPER_NAMES = new Set([...TEMPLATE_HELPERS.map((helper) => helper.name), 'if', 'unless', 'each', 'with', 'lookup']);
+const HELPER_NAMES = new Set([
+  ...TEMPLATE_HELPERS.map((helper) => helper.name),
+  'if',
+  'unless',
+  'each',
+  'with',
+  'lookup',
+]);
 
 /** Turns a Handlebars or helper exception thrown while rendering into a located problem. */
 function runtimeProblem(error: unknown, part: string): TemplateProblem {
-  const exception = error as Error & { lineNumber?: number; column?: number; reportPart?: string; reportLoc?: hbs.AST.SourceLocation };
+  const exception = error as Error & {
+    lineNumber?: number;
+    column?: number;
+    reportPart?: string;
+    reportLoc?: hbs.AST.SourceLocation;
+  };
   const where = exception.reportPart ?? part;
   let message = exception.message.replace(/ - \d+:\d+$/, '');
   const unknown = /^"([^"]+)" not defined in/.exec(message);
-  if (unknown) message = `Unknown variable "${unknown[1]}" (check the spelling against the list of template variables).`;
+  if (unknown)
+    message = `Unknown variable "${unknown[1]}" (check the spelling against the list of template variables).`;
   if (exception.reportLoc) {
-    return { part: where, line: exception.reportLoc.start.line, column: exception.reportLoc.start.column + 1, message };
+    return {
+      part: where,
+      line: exception.reportLoc.start.line,
+      column: exception.reportLoc.start.column + 1,
+      message,
+    };
   }
   const line = exception.lineNumber ?? null;
   return { part: where, line, column: line === null ? null : (exception.column ?? 0) + 1, message };
@@ -105,7 +123,12 @@ function compileUncached(source: ReportTemplateSource, strict: boolean): Compile
   const partNames = Object.keys(source.partials);
   const problems: TemplateProblem[] = partNames
     .filter((name) => !PART_NAME.test(name))
-    .map((name) => ({ part: `partial "${name}"`, line: null, column: null, message: 'Partial names are lower-case letters, digits and -.' }));
+    .map((name) => ({
+      part: `partial "${name}"`,
+      line: null,
+      column: null,
+      message: 'Partial names are lower-case letters, digits and -.',
+    }));
   const known = { partials: partNames, helpers: HELPER_NAMES };
   problems.push(...checkTemplateSyntax(source.body, 'body', known));
   for (const name of partNames) {
@@ -122,14 +145,18 @@ function compileUncached(source: ReportTemplateSource, strict: boolean): Compile
     return new env.SafeString(`<style>\n${fontFaceCss()}\n@page{size:${paper};}\n${stylesheet}\n</style>`);
   });
   locateHelperErrors(env);
-  const compileOptions = { strict, knownHelpers: Object.fromEntries([...HELPER_NAMES].map((name) => [name, true])) };
+  const compileOptions = {
+    strict,
+    knownHelpers: Object.fromEntries([...HELPER_NAMES].map((name) => [name, true])),
+  };
   for (const name of partNames) {
     const partial = env.compile(source.partials[name] as string, compileOptions);
     env.registerPartial(name, ((context: unknown, options: Handlebars.RuntimeOptions) => {
       try {
         return partial(context, options);
       } catch (error) {
-        if (error instanceof Error && !('reportPart' in error)) Object.assign(error, { reportPart: `partial "${name}"` });
+        if (error instanceof Error && !('reportPart' in error))
+          Object.assign(error, { reportPart: `partial "${name}"` });
         throw error;
       }
     }) as Handlebars.TemplateDelegate);
@@ -150,7 +177,10 @@ const CACHE_LIMIT = 32;
 const cache = new Map<string, CompiledReportTemplate>();
 
 /** Compiles (or reuses the compiled form of) a template; see the file comment. */
-export function compileReportTemplate(source: ReportTemplateSource, options: { strict?: boolean } = {}): CompiledReportTemplate {
+export function compileReportTemplate(
+  source: ReportTemplateSource,
+  options: { strict?: boolean } = {},
+): CompiledReportTemplate {
   const strict = options.strict ?? true;
   const key = createHash('sha256')
     .update(JSON.stringify([strict, source.body, source.stylesheet, Object.entries(source.partials).sort()]))

@@ -32,8 +32,16 @@ interface FaceSpec {
 
 const require = createRequire(import.meta.url);
 
-const MERRIWEATHER = { family: 'Merriweather', packageName: '@fontsource/merriweather', filePrefix: 'merriweather' } as const;
-const SOURCE_SANS = { family: 'Source Sans 3', packageName: '@fontsource/source-sans-3', filePrefix: 'source-sans-3' } as const;
+const MERRIWEATHER = {
+  family: 'Merriweather',
+  packageName: '@fontsource/merriweather',
+  filePrefix: 'merriweather',
+} as const;
+const SOURCE_SANS = {
+  family: 'Source Sans 3',
+  packageName: '@fontsource/source-sans-3',
+  filePrefix: 'source-sans-3',
+} as const;
 const LATIN = ['latin', 'latin-ext'] as const;
 
 export const REPORT_FONT_FACES: readonly FaceSpec[] = [
@@ -56,9 +64,12 @@ function faceRule(face: FaceSpec, subset: string, range: string): string {
   try {
     bytes = readFileSync(require.resolve(path.posix.join(face.packageName, 'files', fileName)));
   } catch (error) {
-    throw new Error(`The bundled report font ${face.packageName}/files/${fileName} is missing; reinstall dependencies.`, {
-      cause: error,
-    });
+    throw new Error(
+      `The bundled report font ${face.packageName}/files/${fileName} is missing; reinstall dependencies.`,
+      {
+        cause: error,
+      },
+    );
   }
   return (
     `@font-face{font-family:'${face.family}';font-style:${face.style};font-weight:${face.weight};` +

@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { interval, isoDateTime, isoDay, NOT_ESTIMABLE_TEXT, percent, significant, TemplateValueError } from './template-format.ts';
+import {
+  interval,
+  isoDateTime,
+  isoDay,
+  NOT_ESTIMABLE_TEXT,
+  percent,
+  significant,
+  TemplateValueError,
+} from './template-format.ts';
 
 describe('significant (the sig helper)', () => {
   it('rounds as Number.prototype.toPrecision does and writes × 10ⁿ for small numbers', () => {
@@ -57,7 +65,9 @@ describe('isoDateTime and isoDay', () => {
     expect(isoDateTime(instant, 'Europe/Berlin')).toBe('2026-12-01T15:05:00+01:00');
     expect(isoDateTime(new Date('2026-07-01T12:00:00Z'), 'Europe/Berlin')).toBe('2026-07-01T14:00:00+02:00');
     // US Eastern daylight time is UTC−4 (15 U.S.C. §260a; IANA tz database); India is UTC+5:30 all year.
-    expect(isoDateTime(new Date('2026-07-01T12:00:00Z'), 'America/New_York')).toBe('2026-07-01T08:00:00-04:00');
+    expect(isoDateTime(new Date('2026-07-01T12:00:00Z'), 'America/New_York')).toBe(
+      '2026-07-01T08:00:00-04:00',
+    );
     expect(isoDateTime(instant, 'Asia/Kolkata')).toBe('2026-12-01T19:35:00+05:30');
   });
   it('gives the calendar day in the zone, which can differ from the UTC day', () => {

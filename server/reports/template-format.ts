@@ -32,7 +32,8 @@ function checkDigits(helper: string, digits: unknown): number {
 
 function checkNumber(helper: string, value: unknown): number | null {
   if (value === null || value === undefined) return null;
-  if (typeof value !== 'number') throw new TemplateValueError(`${helper}: expected a number, got ${typeof value}.`);
+  if (typeof value !== 'number')
+    throw new TemplateValueError(`${helper}: expected a number, got ${typeof value}.`);
   return Number.isFinite(value) ? value : null;
 }
 

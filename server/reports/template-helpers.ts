@@ -1,5 +1,12 @@
 import type Handlebars from 'handlebars';
-import { interval, isoDateTime, isoDay, percent, significant, TemplateValueError } from './template-format.ts';
+import {
+  interval,
+  isoDateTime,
+  isoDay,
+  percent,
+  significant,
+  TemplateValueError,
+} from './template-format.ts';
 
 /**
  * The helpers a report template may call, registered on one isolated Handlebars environment.
@@ -22,20 +29,80 @@ export interface TemplateHelperDescription {
 }
 
 export const TEMPLATE_HELPERS: readonly TemplateHelperDescription[] = [
-  { name: 'sig', usage: '{{sig value 3 unit}}', description: 'A number to 3 (1–15) significant figures, followed by its unit when given; "not estimable" for a missing value.' },
-  { name: 'interval', usage: '{{interval pair 3 unit}}', description: 'An interval [low, high] as "low to high unit", both ends to the same significant figures.' },
-  { name: 'percent', usage: '{{percent fraction 1}}', description: 'A fraction (0.123) as a percentage ("12.3 %") with the given decimals.' },
-  { name: 'isoDate', usage: '{{isoDate date}}', description: "ISO 8601 date and time with the UTC offset of the organisation's time zone, e.g. 2026-12-01T14:05:00+00:00." },
-  { name: 'isoDay', usage: '{{isoDay date}}', description: "The calendar day (ISO 8601, YYYY-MM-DD) in the organisation's time zone." },
-  { name: 'table', usage: '{{table dataTable}}', description: 'A table object of the context ({ caption, columns, rows }) as an HTML table with header cells; every cell escaped.' },
-  { name: 'figure', usage: '{{figure "figure-id"}}', description: 'The figure with this id, as inline SVG with its number and caption. See figures[] for the ids of this report.' },
-  { name: 'hasFigure', usage: '{{#if (hasFigure "arrhenius")}}…{{/if}}', description: 'True when the report has a figure with this id.' },
-  { name: 'ifEquals', usage: '{{#ifEquals a b}}…{{else}}…{{/ifEquals}}', description: 'Shows the block when both values are equal (===), else the {{else}} part.' },
-  { name: 'eq', usage: '{{#if (eq a b)}}…{{/if}}', description: 'True when both values are equal (===), for use inside if/unless.' },
-  { name: 'not', usage: '{{#if (not value)}}…{{/if}}', description: 'True when the value is empty, false, zero or missing.' },
-  { name: 'join', usage: '{{join list ", "}}', description: 'The items of a list of text, joined with the separator.' },
-  { name: 'default', usage: '{{default value "none"}}', description: 'The value, or the fallback text when the value is missing or empty.' },
-  { name: 'reportStyles', usage: '{{reportStyles}}', description: "The template's stylesheet with the embedded fonts and page size; put it in <head>." },
+  {
+    name: 'sig',
+    usage: '{{sig value 3 unit}}',
+    description:
+      'A number to 3 (1–15) significant figures, followed by its unit when given; "not estimable" for a missing value.',
+  },
+  {
+    name: 'interval',
+    usage: '{{interval pair 3 unit}}',
+    description: 'An interval [low, high] as "low to high unit", both ends to the same significant figures.',
+  },
+  {
+    name: 'percent',
+    usage: '{{percent fraction 1}}',
+    description: 'A fraction (0.123) as a percentage ("12.3 %") with the given decimals.',
+  },
+  {
+    name: 'isoDate',
+    usage: '{{isoDate date}}',
+    description:
+      "ISO 8601 date and time with the UTC offset of the organisation's time zone, e.g. 2026-12-01T14:05:00+00:00.",
+  },
+  {
+    name: 'isoDay',
+    usage: '{{isoDay date}}',
+    description: "The calendar day (ISO 8601, YYYY-MM-DD) in the organisation's time zone.",
+  },
+  {
+    name: 'table',
+    usage: '{{table dataTable}}',
+    description:
+      'A table object of the context ({ caption, columns, rows }) as an HTML table with header cells; every cell escaped.',
+  },
+  {
+    name: 'figure',
+    usage: '{{figure "figure-id"}}',
+    description:
+      'The figure with this id, as inline SVG with its number and caption. See figures[] for the ids of this report.',
+  },
+  {
+    name: 'hasFigure',
+    usage: '{{#if (hasFigure "arrhenius")}}…{{/if}}',
+    description: 'True when the report has a figure with this id.',
+  },
+  {
+    name: 'ifEquals',
+    usage: '{{#ifEquals a b}}…{{else}}…{{/ifEquals}}',
+    description: 'Shows the block when both values are equal (===), else the {{else}} part.',
+  },
+  {
+    name: 'eq',
+    usage: '{{#if (eq a b)}}…{{/if}}',
+    description: 'True when both values are equal (===), for use inside if/unless.',
+  },
+  {
+    name: 'not',
+    usage: '{{#if (not value)}}…{{/if}}',
+    description: 'True when the value is empty, false, zero or missing.',
+  },
+  {
+    name: 'join',
+    usage: '{{join list ", "}}',
+    description: 'The items of a list of text, joined with the separator.',
+  },
+  {
+    name: 'default',
+    usage: '{{default value "none"}}',
+    description: 'The value, or the fallback text when the value is missing or empty.',
+  },
+  {
+    name: 'reportStyles',
+    usage: '{{reportStyles}}',
+    description: "The template's stylesheet with the embedded fonts and page size; put it in <head>.",
+  },
 ];
 
 export interface TableColumn {
@@ -58,7 +125,8 @@ export interface FigureMarkup {
   svg: string;
 }
 
-const escape = (hb: Env, value: unknown) => hb.escapeExpression(value === null || value === undefined ? '' : String(value));
+const escapeText = (hb: Env, value: unknown) =>
+  hb.escapeExpression(value === null || value === undefined ? '' : String(value));
 
 function tableMarkup(hb: Env, table: unknown): string {
   if (!table || typeof table !== 'object' || !Array.isArray((table as ReportTable).columns)) {
@@ -66,20 +134,22 @@ function tableMarkup(hb: Env, table: unknown): string {
   }
   const { caption, columns, rows, empty } = table as ReportTable;
   const alignClass = (column: TableColumn) => (column.align ? ` class="align-${column.align}"` : '');
-  const head = columns.map((column) => `<th scope="col"${alignClass(column)}>${escape(hb, column.label)}</th>`).join('');
+  const head = columns
+    .map((column) => `<th scope="col"${alignClass(column)}>${escapeText(hb, column.label)}</th>`)
+    .join('');
   const body =
     rows.length === 0
-      ? `<tr><td colspan="${columns.length}">${escape(hb, empty ?? 'None.')}</td></tr>`
+      ? `<tr><td colspan="${columns.length}">${escapeText(hb, empty ?? 'None.')}</td></tr>`
       : rows
           .map((row) => {
             const cells = columns.map((column) => {
               const cell = Object.hasOwn(row, column.key) ? row[column.key] : '';
-              return `<td${alignClass(column)}>${escape(hb, cell)}</td>`;
+              return `<td${alignClass(column)}>${escapeText(hb, cell)}</td>`;
             });
             return `<tr>${cells.join('')}</tr>`;
           })
           .join('');
-  const captionHtml = caption ? `<caption>${escape(hb, caption)}</caption>` : '';
+  const captionHtml = caption ? `<caption>${escapeText(hb, caption)}</caption>` : '';
   return `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
 }
 
@@ -110,10 +180,15 @@ export function registerTemplateHelpers(hb: Env): void {
     const [fraction, decimals] = args(list);
     return percent(fraction, decimals ?? 1);
   });
-  hb.registerHelper('isoDate', (value: unknown, options: HelperOptions) => isoDateTime(value, timeZoneOf(options)));
+  hb.registerHelper('isoDate', (value: unknown, options: HelperOptions) =>
+    isoDateTime(value, timeZoneOf(options)),
+  );
   hb.registerHelper('isoDay', (value: unknown, options: HelperOptions) => isoDay(value, timeZoneOf(options)));
   hb.registerHelper('table', (table: unknown) => new hb.SafeString(tableMarkup(hb, table)));
-  hb.registerHelper('hasFigure', (id: unknown, options: HelperOptions) => typeof id === 'string' && figures(options).has(id));
+  hb.registerHelper(
+    'hasFigure',
+    (id: unknown, options: HelperOptions) => typeof id === 'string' && figures(options).has(id),
+  );
   hb.registerHelper('figure', (id: unknown, options: HelperOptions) => {
     const known = figures(options);
     const figure = typeof id === 'string' ? known.get(id) : undefined;
@@ -122,11 +197,13 @@ export function registerTemplateHelpers(hb: Env): void {
         `figure: no figure "${String(id)}" in this report; the figures are ${[...known.keys()].join(', ') || 'none'}.`,
       );
     }
-    const caption = `<figcaption><span class="figure-number">Figure ${figure.number}.</span> ${escape(hb, figure.title)}${
-      figure.description ? ` <span class="figure-description">${escape(hb, figure.description)}</span>` : ''
+    const caption = `<figcaption><span class="figure-number">Figure ${figure.number}.</span> ${escapeText(hb, figure.title)}${
+      figure.description
+        ? ` <span class="figure-description">${escapeText(hb, figure.description)}</span>`
+        : ''
     }</figcaption>`;
     return new hb.SafeString(
-      `<figure class="report-figure" id="figure-${escape(hb, id)}">${figure.svg}${caption}</figure>`,
+      `<figure class="report-figure" id="figure-${escapeText(hb, id)}">${figure.svg}${caption}</figure>`,
     );
   });
   hb.registerHelper('ifEquals', function (this: unknown, a: unknown, b: unknown, options: HelperOptions) {

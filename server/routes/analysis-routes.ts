@@ -2,6 +2,7 @@ import { Router } from 'express';
 import { ZodError } from 'zod';
 import {
   type AnalysisFiguresResponse,
+  analysisOptionsSchema,
   datasetIdParamSchema,
   excludePointRequestSchema,
   idParamSchema,
@@ -84,6 +85,33 @@ export function analysisRoutes(services: AppServices): Router {
     const { id } = idParamSchema.parse(req.params);
     const run = await getAnalysisRun(services.db, req.user!.organisationId, id);
     renderPage(req, res, 'analysis', analysisPageModel(run, req.user!.roles.includes('analyst')));
+  });
+
+  // "Run again with other options" on the analysis page: same dataset and exclusions, new options.
+  router.post('/analyses/:id/rerun', requireRole('analyst'), async (req, res) => {
+    const { id } = idParamSchema.parse(req.params);
+    const body = req.body as Record<string, unknown>;
+    const earlier = await getAnalysisRun(services.db, req.user!.organisationId, id);
+    const options = analysisOptionsSchema.parse({
+      confidenceLevel: body.confidenceLevel,
+      errorModel: body.errorModel,
+      ...(body.order === '0' || body.order === '1' || body.order === '2'
+        ? { order: Number(body.order) }
+        : {}),
+    });
+    const outcome = await runAnalysis(services.db, {
+      organisationId: req.user!.organisationId,
+      datasetId: earlier.datasetId,
+      options,
+      exclusions: earlier.exclusions.map(({ seriesId, observationIndex, reason }) => ({
+        seriesId,
+        observationIndex,
+        reason,
+      })),
+      actor: actorOf(req.user!),
+      auditContext: { rerunOf: earlier.id },
+    });
+    res.redirect(303, `/analyses/${outcome.runId}`);
   });
 
   // The exclusion form on the analysis page (works without JavaScript); problems are shown beside the fields.

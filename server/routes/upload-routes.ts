@@ -108,11 +108,12 @@ export function uploadRoutes(services: AppServices): Router {
   router.get('/uploads/:uploadId/original', requireRole(...READERS), async (req, res) => {
     const uploadId = recordIdSchema.parse(req.params.uploadId);
     const upload = await findUpload(services.db, req.user!.organisationId, uploadId);
-    res
-      .attachment(upload.fileName)
-      .type(upload.mediaType)
-      .set('x-content-sha256', upload.sha256)
-      .send(upload.content);
+    // Served as what the content is (never the type the browser claimed), and always as a download.
+    const type =
+      upload.format === 'csv'
+        ? 'text/csv'
+        : 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+    res.attachment(upload.fileName).type(type).set('x-content-sha256', upload.sha256).send(upload.content);
   });
 
   router.get('/api/uploads/:uploadId/preview', requireRole(...READERS), async (req, res) => {

@@ -8,6 +8,7 @@ import {
   NOT_ESTIMABLE,
 } from '../../shared/figures/significant-figures.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
+import { groupedWarnings, readableNumbers, verdictSummary } from './analysis-verdict.ts';
 
 /**
  * What the analysis page shows, as plain strings and numbers for the Handlebars view. Every
@@ -66,25 +67,6 @@ function numberCell(row: ResultRow | undefined): NumberCell {
   };
 }
 
-/** Long decimals inside engine messages ("27.949325675939914") written with 4 significant figures. */
-export function readableNumbers(text: string): string {
-  return text.replace(/-?\d+\.\d{5,}(?:e[-+]?\d+)?/gi, (number) => formatSignificant(Number(number), 4));
-}
-
-const WARNING_TITLES: Record<string, string> = {
-  'low-fraction-reacted': 'Little of the initial value has reacted',
-  'order-not-identified': 'Reaction order not identified',
-  'analyst-order-disfavoured': 'The data disfavour the analyst’s order',
-  'possible-outliers': 'Possible outliers',
-  'systematic-misfit': 'Systematic misfit',
-  'not-converged': 'A fit did not converge',
-  extrapolation: 'Extrapolation beyond the observed time',
-  'series-not-analysed': 'Series not analysed',
-  'order-disagreement': 'Series disagree on the order',
-  'arrhenius-extrapolation': 'Arrhenius extrapolation',
-  'non-finite-replaced': 'Numbers not estimable',
-};
-
 export interface FormState {
   problems: { field: string; message: string }[];
   point: string;
@@ -93,6 +75,7 @@ export interface FormState {
 
 export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, form?: FormState) {
   const { analysis } = run.result;
+  const options = run.options.analyst;
   const rows = resultRows(analysis);
   const byKey = new Map(rows.map((row) => [row.key, row]));
   const find = (section: string, seriesId: string | null, model: string | null, quantity: string) =>
@@ -233,24 +216,8 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     };
   });
 
-  const allWarnings = [
-    ...analysis.warnings.map((warning) => ({
-      where: 'dataset',
-      code: warning.code,
-      message: readableNumbers(warning.message),
-    })),
-    ...analysis.series.flatMap((result) =>
-      (result.analysis?.warnings ?? []).map((warning) => ({
-        where: result.id,
-        code: warning.code,
-        message: readableNumbers(warning.message),
-      })),
-    ),
-  ];
-  const warningGroups = [...new Set(allWarnings.map((warning) => warning.code))].map((code) => {
-    const items = allWarnings.filter((warning) => warning.code === code);
-    return { code, title: WARNING_TITLES[code] ?? code, count: items.length, items, open: items.length <= 3 };
-  });
+  const summary = verdictSummary(analysis, shelfLife, arrheniusModel, options.order);
+  const warningGroups = groupedWarnings(analysis);
   const points = run.series.map((entry, seriesIndex) => ({
     label: entry.id,
     options: entry.observations.map((observation, index) => ({
@@ -261,7 +228,6 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     })),
   }));
   const problem = (field: string) => form?.problems.find((entry) => entry.field === field)?.message ?? '';
-  const options = run.options.analyst;
 
   return {
     title: `Analysis #${run.id} · ${study.product}`,
@@ -295,6 +261,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         .join(' / '),
     },
     warningGroups,
+    summary,
     series,
     arrhenius: arrheniusModel,
     shelfLife,
@@ -307,6 +274,30 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     methodParagraphs: run.methodStatement.split(/\n\n+/),
     caution: CAUTION,
     canExclude: canExclude && run.supersededByRunId === null,
+    canRerun: canExclude,
+    noOrderNamed: analysis.series.every(
+      (result) => !result.analysis || result.analysis.reportedOrder === null,
+    ),
+    rerun: {
+      orders: [
+        { value: '', label: 'decided by the data', selected: options.order === undefined },
+        ...[0, 1, 2].map((order) => ({
+          value: String(order),
+          label: `fixed: ${MODEL_NAMES[String(order)]}`,
+          selected: options.order === order,
+        })),
+      ],
+      levels: [0.9, 0.95, 0.99].map((level) => ({
+        value: String(level),
+        label: formatPercent(level, 0),
+        selected: options.confidenceLevel === level,
+      })),
+      errorModels: ['auto', 'constant', 'proportional'].map((model) => ({
+        value: model,
+        label: model,
+        selected: options.errorModel === model,
+      })),
+    },
     exclusionForm: {
       points,
       reason: form?.reason ?? '',

@@ -14,7 +14,11 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       role: 'analyst',
       heading: 'Analyst',
       summary: 'Bring stability data, determine the degradation kinetics and draft the report.',
-      links: [{ href: '/app/activity', label: 'My recorded activity' }],
+      links: [
+        { href: '/studies', label: 'Studies: upload a workbook, map columns, analyse' },
+        { href: '/studies/new', label: 'New study' },
+        { href: '/app/activity', label: 'My recorded activity' },
+      ],
     },
     reviewer: {
       role: 'reviewer',

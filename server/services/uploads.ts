@@ -93,7 +93,12 @@ export function clearSheetCache(): void {
 }
 
 /** The sheets of a file, or a 422 naming why it cannot be read (empty sheets included). */
-export async function readUploadedSheets(bytes: Uint8Array, format: UploadFormat, fileName: string, sha256?: string) {
+export async function readUploadedSheets(
+  bytes: Uint8Array,
+  format: UploadFormat,
+  fileName: string,
+  sha256?: string,
+) {
   const key = cacheKey(bytes, format, fileName, sha256);
   const cached = sheetCache.get(key);
   if (cached) {
@@ -163,7 +168,12 @@ export async function storeUpload(
         content: file.bytes,
         uploadedBy: actor.id,
       })
-      .returning({ id: uploads.id, sha256: uploads.sha256, format: uploads.format, sizeBytes: uploads.sizeBytes });
+      .returning({
+        id: uploads.id,
+        sha256: uploads.sha256,
+        format: uploads.format,
+        sizeBytes: uploads.sizeBytes,
+      });
     await appendAuditEvent(tx, {
       organisationId: actor.organisationId,
       actorUserId: actor.id,

@@ -82,11 +82,14 @@ export const studyFormSchema = z
     message: 'Give a lower limit, an upper limit or both: the acceptance criterion needs at least one.',
     ...whenLimitsRead,
   })
-  .refine((study) => study.lowerLimit === null || study.upperLimit === null || study.lowerLimit < study.upperLimit, {
-    path: ['upperLimit'],
-    message: 'The upper limit must be above the lower limit.',
-    ...whenLimitsRead,
-  });
+  .refine(
+    (study) => study.lowerLimit === null || study.upperLimit === null || study.lowerLimit < study.upperLimit,
+    {
+      path: ['upperLimit'],
+      message: 'The upper limit must be above the lower limit.',
+      ...whenLimitsRead,
+    },
+  );
 
 export type StudyFormInput = z.input<typeof studyFormSchema>;
 export type StudyInput = z.output<typeof studyFormSchema>;

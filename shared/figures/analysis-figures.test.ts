@@ -33,7 +33,12 @@ const SERIES: Series[] = [
   series('A @ 40 °C', 'A', 40, 0.06, 1),
 ];
 SERIES[1]!.observations[4]!.excluded = { reason: 'vial cracked (test)' };
-const OPTIONS: DatasetOptions = { lowerLimit: 90, storageTemperatureC: 25, direction: 'decreasing', order: 1 };
+const OPTIONS: DatasetOptions = {
+  lowerLimit: 90,
+  storageTemperatureC: 25,
+  direction: 'decreasing',
+  order: 1,
+};
 
 function build(): StoredAnalysisResult {
   const analysis = analyseDataset(SERIES, OPTIONS);
@@ -59,7 +64,11 @@ describe('analysisFigures', () => {
 
   it('gives three figures per series, the Arrhenius plot and the Q1E plot of the storage condition', () => {
     expect(figures.map((figure) => figure.id)).toEqual([
-      ...[0, 1, 2, 3].flatMap((index) => [`series-${index}-linearised`, `series-${index}-curves`, `series-${index}-residuals`]),
+      ...[0, 1, 2, 3].flatMap((index) => [
+        `series-${index}-linearised`,
+        `series-${index}-curves`,
+        `series-${index}-residuals`,
+      ]),
       'arrhenius',
       'q1e-25',
     ]);
@@ -72,7 +81,9 @@ describe('analysisFigures', () => {
 
   it('every spec compiles with Vega-Lite and renders to SVG with Vega, with no NaN', async () => {
     for (const figure of figures) {
-      const view = new vega.View(vega.parse(compile(figure.spec as unknown as TopLevelSpec).spec), { renderer: 'none' });
+      const view = new vega.View(vega.parse(compile(figure.spec as unknown as TopLevelSpec).spec), {
+        renderer: 'none',
+      });
       const svg = await view.toSVG();
       view.finalize();
       expect(svg.startsWith('<svg'), figure.id).toBe(true);
@@ -82,7 +93,9 @@ describe('analysisFigures', () => {
 
   it('draws the ln(value) line of the least-squares fit (checked against simple-statistics linearRegression)', () => {
     const first = SERIES[0]!;
-    const reference = linearRegression(first.observations.map((point) => [point.time, Math.log(point.value)]));
+    const reference = linearRegression(
+      first.observations.map((point) => [point.time, Math.log(point.value)]),
+    );
     const [, line] = layerData((figures[0]!.spec.hconcat as Record<string, unknown>[])[1]!);
     const [start, end] = line as { time: number; y: number }[];
     expect(start!.y).toBeCloseTo(reference.b + reference.m * start!.time, 10);
@@ -109,7 +122,9 @@ describe('analysisFigures', () => {
 
   it('plots the Arrhenius points at 1000/T with T = θ + 273.15 K (IUPAC Gold Book, thermodynamic temperature)', () => {
     const arrhenius = figures.find((figure) => figure.id === 'arrhenius')!;
-    const pooled = layerData(arrhenius.spec).find((values) => values.some((datum) => 'seriesCount' in datum))!;
+    const pooled = layerData(arrhenius.spec).find((values) =>
+      values.some((datum) => 'seriesCount' in datum),
+    )!;
     expect(pooled.map((datum) => datum.x)).toEqual([1000 / 298.15, 1000 / 313.15]);
   });
 });

@@ -47,6 +47,12 @@ export const MODEL_NAMES: Record<string, string> = {
   n: 'free order n',
 };
 
+const POOLING_WORDS: Record<string, string> = {
+  'single-series': 'one series',
+  'inverse-variance-mean-of-ln-k': 'batches pooled: inverse-variance weighted mean of ln k',
+  'mean-of-ln-k': 'batches pooled: mean of ln k',
+};
+
 type RowInput = Omit<ResultRow, 'key' | 'lower' | 'upper' | 'note'> & {
   interval?: readonly [number, number] | null;
   note?: string;
@@ -241,7 +247,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
           estimate: point.k,
           unit: arrhenius.kUnit ?? '',
           digits: DIGITS.estimate,
-          note: point.pooling,
+          note: POOLING_WORDS[point.pooling] ?? point.pooling,
         }),
       );
     }

@@ -48,7 +48,7 @@ export function headerTexts(sheet: SheetGrid, headerRow: number): string[] {
   if (headerRow < 1) return [];
   const rowIndex = headerRow - 1;
   const row = sheet.rows[rowIndex] ?? [];
-  const width = Math.max(0, ...sheet.rows.map((cells) => cells.length));
+  const width = sheet.rows.reduce((widest, cells) => Math.max(widest, cells.length), 0);
   const texts: string[] = [];
   for (let column = 0; column < width; column += 1) {
     let text = cellText(row[column]);

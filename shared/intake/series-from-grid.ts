@@ -88,7 +88,11 @@ function groupRows(rows: DataRow[], fallbackId: string): Map<string, DataRow[]> 
 
 function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, problems: IntakeProblem[]): Series {
   const dates = rows.flatMap((row) => (row.time instanceof Date ? [row.time.getTime()] : []));
-  const start = dates.length > 0 ? new Date(Math.min(...dates)) : undefined;
+  // A loop, not Math.min(...dates): spreading 100,000 arguments overflows the call stack.
+  const start =
+    dates.length > 0
+      ? new Date(dates.reduce((earliest, date) => (date < earliest ? date : earliest)))
+      : undefined;
   const observations: Observation[] = rows.map((row) => ({
     time:
       row.time instanceof Date && start

@@ -1,5 +1,7 @@
 import { BrowserRouter, NavLink, Route, Routes } from 'react-router-dom';
 import { ActivityList } from '../features/activity/components/activity-list.tsx';
+import { ReportDetail } from '../features/reports/components/report-detail.tsx';
+import { ReportHistory } from '../features/reports/components/report-history.tsx';
 
 /** The client section under /app (React Router). Later features add their routes here. */
 export default function ClientApp() {
@@ -13,11 +15,19 @@ export default function ClientApp() {
           >
             My activity
           </NavLink>
+          <NavLink
+            to="/reports"
+            className={({ isActive }) => `mt-1 block ${isActive ? 'font-semibold text-ledger' : 'text-ink'}`}
+          >
+            Reports
+          </NavLink>
         </nav>
         <div className="flex-1">
           <Routes>
             <Route path="/" element={<ActivityPage />} />
             <Route path="/activity" element={<ActivityPage />} />
+            <Route path="/reports" element={<ReportHistory />} />
+            <Route path="/reports/:reportId" element={<ReportDetail />} />
             <Route path="*" element={<p>There is no page here. Choose one on the left.</p>} />
           </Routes>
         </div>

@@ -23,8 +23,6 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { resourceUsage } from 'node:process';
 import ExcelJS from 'exceljs';
-import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
-import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
 import type { SessionUser } from '../../server/auth/roles.ts';
 import { openDatabase } from '../../server/db/client.ts';
 import { applyMigrations } from '../../server/db/migrate.ts';
@@ -32,6 +30,8 @@ import { memberships, organisations, studies, users } from '../../server/db/sche
 import { readWorkbook } from '../../server/intake/read-workbook.ts';
 import { importUpload } from '../../server/services/datasets.ts';
 import { storeUpload } from '../../server/services/uploads.ts';
+import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
+import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
 
 const ROWS = 100_000;
 const REPETITIONS = 3;
@@ -105,16 +105,24 @@ async function readAndMap(bytes: Buffer): Promise<Record<string, number>> {
 }
 
 /** Child: one upload → dataset → analysis in a throwaway organisation. */
-async function pipeline(bytes: Buffer, url: string): Promise<{ phases: Record<string, number>; total: number; analysed: boolean }> {
+async function pipeline(
+  bytes: Buffer,
+  url: string,
+): Promise<{ phases: Record<string, number>; total: number; analysed: boolean }> {
   const database = openDatabase(url);
   try {
     const tag = randomBytes(4).toString('hex');
-    const [organisation] = await database.db.insert(organisations).values({ slug: `bench-${tag}`, name: `Bench ${tag}` }).returning();
+    const [organisation] = await database.db
+      .insert(organisations)
+      .values({ slug: `bench-${tag}`, name: `Bench ${tag}` })
+      .returning();
     const [user] = await database.db
       .insert(users)
       .values({ email: `bench.${tag}@bench.example`, fullName: 'Bench analyst', passwordHash: 'not-a-login' })
       .returning();
-    await database.db.insert(memberships).values({ userId: user!.id, organisationId: organisation!.id, role: 'analyst' });
+    await database.db
+      .insert(memberships)
+      .values({ userId: user!.id, organisationId: organisation!.id, role: 'analyst' });
     const actor: SessionUser = {
       id: user!.id,
       email: user!.email,
@@ -143,7 +151,13 @@ async function pipeline(bytes: Buffer, url: string): Promise<{ phases: Record<st
     const runAnalysis = analysisModule?.runAnalysis;
     const phases: Record<string, number> = {};
     const start = process.hrtime.bigint();
-    const upload = await storeUpload(database.db, actor, study!.id, { fileName: 'bench.xlsx', mediaType: 'application/octet-stream', bytes }, {});
+    const upload = await storeUpload(
+      database.db,
+      actor,
+      study!.id,
+      { fileName: 'bench.xlsx', mediaType: 'application/octet-stream', bytes },
+      {},
+    );
     phases.store = seconds(start);
     const imported = process.hrtime.bigint();
     const dataset = await importUpload(database.db, actor, upload.id, mapping, undefined, {});
@@ -151,7 +165,11 @@ async function pipeline(bytes: Buffer, url: string): Promise<{ phases: Record<st
     if (dataset.pointCount !== ROWS) throw new Error(`expected ${ROWS} points, stored ${dataset.pointCount}`);
     if (runAnalysis) {
       const analysed = process.hrtime.bigint();
-      await runAnalysis(database.db, { organisationId: organisation!.id, datasetId: dataset.datasetId, actor: { userId: user!.id, label: user!.email } });
+      await runAnalysis(database.db, {
+        organisationId: organisation!.id,
+        datasetId: dataset.datasetId,
+        actor: { userId: user!.id, label: user!.email },
+      });
       phases.analyse = seconds(analysed);
     }
     return { phases, total: seconds(start), analysed: runAnalysis !== undefined };
@@ -177,13 +195,20 @@ if (role === '--read-and-map' || role === '--pipeline') {
       : { phases: await readAndMap(bytes), total: 0, analysed: false };
   clearInterval(sampler);
   peak = Math.max(peak, process.memoryUsage().rss);
-  const measurement: Measurement = { ...outcome, maxRssMb: resourceUsage().maxRSS / 1024, sampledRssMb: peak / MB };
+  const measurement: Measurement = {
+    ...outcome,
+    maxRssMb: resourceUsage().maxRSS / 1024,
+    sampledRssMb: peak / MB,
+  };
   console.log(`RESULT ${JSON.stringify(measurement)}`);
   process.exit(0);
 }
 
 function child(args: string[]): Measurement {
-  const run = spawnSync(process.execPath, ['--import', 'tsx', import.meta.filename, ...args], { encoding: 'utf8', env: process.env });
+  const run = spawnSync(process.execPath, ['--import', 'tsx', import.meta.filename, ...args], {
+    encoding: 'utf8',
+    env: process.env,
+  });
   const line = run.stdout.split('\n').find((text) => text.startsWith('RESULT '));
   if (run.status !== 0 || !line) throw new Error(`bench child ${args[0]} failed:\n${run.stderr}`);
   return JSON.parse(line.slice('RESULT '.length)) as Measurement;
@@ -193,10 +218,16 @@ const folder = mkdtempSync(path.join(tmpdir(), 'rateledger-bench-'));
 const workbookFile = path.join(folder, 'bench.xlsx');
 try {
   const built = process.hrtime.bigint();
-  const building = spawnSync(process.execPath, ['--import', 'tsx', import.meta.filename, '--build-workbook', workbookFile], { stdio: 'inherit' });
+  const building = spawnSync(
+    process.execPath,
+    ['--import', 'tsx', import.meta.filename, '--build-workbook', workbookFile],
+    { stdio: 'inherit' },
+  );
   if (building.status !== 0) throw new Error('building the bench workbook failed');
   const size = readFileSync(workbookFile).length;
-  console.log(`workbook: ${ROWS.toLocaleString('en')} rows, ${(size / MB).toFixed(1)} MB, built in ${format(seconds(built))}`);
+  console.log(
+    `workbook: ${ROWS.toLocaleString('en')} rows, ${(size / MB).toFixed(1)} MB, built in ${format(seconds(built))}`,
+  );
 
   const reads = Array.from({ length: REPETITIONS }, () => child(['--read-and-map', workbookFile]));
   console.log(`read workbook (readWorkbook):   median ${format(median(reads.map((m) => m.phases.read!)))}`);
@@ -206,7 +237,9 @@ try {
   const failures: string[] = [];
   const url = process.env.DATABASE_URL;
   if (!url) {
-    console.log('DATABASE_URL is not set: the upload → stored dataset → stored analysis part is SKIPPED (only reading and mapping were timed).');
+    console.log(
+      'DATABASE_URL is not set: the upload → stored dataset → stored analysis part is SKIPPED (only reading and mapping were timed).',
+    );
   } else {
     await applyMigrations(url);
     const runs = Array.from({ length: REPETITIONS }, () => child(['--pipeline', workbookFile]));
@@ -215,11 +248,16 @@ try {
     console.log(`import (map, hash, insert dataset):       median ${phase('import')}`);
     const analysed = runs.every((m) => m.analysed);
     if (analysed) console.log(`run and store analysis:                   median ${phase('analyse')}`);
-    else console.log('server/services/analysis-runs.ts exports no runAnalysis: timed upload → stored dataset only.');
+    else
+      console.log(
+        'server/services/analysis-runs.ts exports no runAnalysis: timed upload → stored dataset only.',
+      );
     const total = median(runs.map((m) => m.total));
     const verdict = total < TARGET_SECONDS ? 'PASS' : 'FAIL';
     const what = analysed ? 'upload → stored analysis' : 'upload → stored dataset';
-    console.log(`${what}: median ${format(total)} (runs: ${runs.map((m) => format(m.total)).join(', ')}) — target < ${TARGET_SECONDS} s: ${verdict}`);
+    console.log(
+      `${what}: median ${format(total)} (runs: ${runs.map((m) => format(m.total)).join(', ')}) — target < ${TARGET_SECONDS} s: ${verdict}`,
+    );
     if (verdict === 'FAIL') failures.push('time');
     const maxRss = median(runs.map((m) => Math.max(m.maxRssMb, m.sampledRssMb)));
     const memoryVerdict = maxRss < TARGET_RSS_MB ? 'PASS' : 'FAIL';

@@ -30,7 +30,11 @@ const fixture = reportFixture();
 const template = loadDefaultTemplate();
 const input = { template, context: fixture.context, figures: fixture.figures, paper: 'A4' as const };
 const pool = new BrowserPool({ size: 1 });
-const header = { reportNumber: fixture.context.report.number, version: fixture.context.report.version, organisation: fixture.context.organisation.name };
+const header = {
+  reportNumber: fixture.context.report.number,
+  version: fixture.context.report.version,
+  organisation: fixture.context.organisation.name,
+};
 
 async function pipeline() {
   const started = performance.now();
@@ -89,16 +93,24 @@ try {
   const pipelineMedian = median(pipelineMs);
   const directMedian = median(directMs);
   const ratio = pipelineMedian / directMedian;
-  console.log(`warm pipeline, median of ${RUNS}: ${pipelineMedian.toFixed(0)} ms (min ${Math.min(...pipelineMs).toFixed(0)}, max ${Math.max(...pipelineMs).toFixed(0)})`);
+  console.log(
+    `warm pipeline, median of ${RUNS}: ${pipelineMedian.toFixed(0)} ms (min ${Math.min(...pipelineMs).toFixed(0)}, max ${Math.max(...pipelineMs).toFixed(0)})`,
+  );
   console.log(
     `  of which figures ${median(parts.figuresMs).toFixed(0)} ms, template ${median(parts.templateMs).toFixed(1)} ms, ` +
       `print + metadata ${median(parts.printMs).toFixed(0)} ms`,
   );
-  console.log(`direct Chromium print of the same HTML, median of ${RUNS}: ${directMedian.toFixed(0)} ms (min ${Math.min(...directMs).toFixed(0)})`);
+  console.log(
+    `direct Chromium print of the same HTML, median of ${RUNS}: ${directMedian.toFixed(0)} ms (min ${Math.min(...directMs).toFixed(0)})`,
+  );
   const timeOk = pipelineMedian < TARGET_MS;
   const ratioOk = ratio <= TARGET_RATIO;
-  console.log(`${timeOk ? 'PASS' : 'FAIL'} warm render ${pipelineMedian.toFixed(0)} ms (target < ${TARGET_MS} ms)`);
-  console.log(`${ratioOk ? 'PASS' : 'FAIL'} pipeline / direct ratio ${ratio.toFixed(2)}× (target ≤ ${TARGET_RATIO}×)`);
+  console.log(
+    `${timeOk ? 'PASS' : 'FAIL'} warm render ${pipelineMedian.toFixed(0)} ms (target < ${TARGET_MS} ms)`,
+  );
+  console.log(
+    `${ratioOk ? 'PASS' : 'FAIL'} pipeline / direct ratio ${ratio.toFixed(2)}× (target ≤ ${TARGET_RATIO}×)`,
+  );
   process.exitCode = timeOk && ratioOk ? 0 : 1;
 } finally {
   await pool.close();

@@ -3,12 +3,12 @@ import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { BrowserPool } from '../../server/pdf/browser-pool.ts';
 import { reportFixture } from '../../server/reports/render-fixture.ts';
-import { REPORT_CAUTION, SIGNATURES_PLACEHOLDER } from '../../server/reports/report-context.ts';
 import { renderReportPdf } from '../../server/reports/render-report.ts';
+import { REPORT_CAUTION, SIGNATURES_PLACEHOLDER } from '../../server/reports/report-context.ts';
 import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { SCREENSHOT_DIR } from '../support/browser.ts';
 
 /**
@@ -35,13 +35,19 @@ const info = (file: string) =>
 
 beforeAll(async () => {
   for (const paper of ['A4', 'Letter'] as const) {
-    const result = await renderReportPdf(pool, { template: loadDefaultTemplate(), context: fixture.context, figures: fixture.figures, paper });
+    const result = await renderReportPdf(pool, {
+      template: loadDefaultTemplate(),
+      context: fixture.context,
+      figures: fixture.figures,
+      paper,
+    });
     const file = path.join(folder, `report-${paper}.pdf`);
     writeFileSync(file, result.pdf);
     printed[paper] = { file, pageCount: result.pageCount, blocked: result.requests.blocked };
   }
   mkdirSync(SCREENSHOT_DIR, { recursive: true });
-  for (const old of readdirSync(SCREENSHOT_DIR).filter((name) => name.startsWith('report-a4-'))) rmSync(path.join(SCREENSHOT_DIR, old));
+  for (const old of readdirSync(SCREENSHOT_DIR).filter((name) => name.startsWith('report-a4-')))
+    rmSync(path.join(SCREENSHOT_DIR, old));
   poppler('pdftoppm', '-r', '50', '-png', printed.A4.file, path.join(SCREENSHOT_DIR, 'report-a4'));
 });
 afterAll(async () => {
@@ -68,7 +74,8 @@ describe('the default report as a PDF', () => {
   it('prints on A4 and on US Letter (pdfinfo "Page size")', () => {
     // ISO 216: A4 is 210 × 297 mm = 595.28 × 841.89 pt; ANSI/ASME Y14.1: Letter is 8.5 × 11 in = 612 × 792 pt.
     // Chromium rounds the sheet to whole CSS pixels, so allow 1 pt.
-    const size = (file: string) => (/([\d.]+) x ([\d.]+) pts/.exec(info(file)['Page size'] ?? '') ?? []).slice(1).map(Number);
+    const size = (file: string) =>
+      (/([\d.]+) x ([\d.]+) pts/.exec(info(file)['Page size'] ?? '') ?? []).slice(1).map(Number);
     const [a4Width, a4Height] = size(printed.A4.file);
     expect(Math.abs(a4Width! - 595.28)).toBeLessThan(1);
     expect(Math.abs(a4Height! - 841.89)).toBeLessThan(1);
@@ -79,7 +86,10 @@ describe('the default report as a PDF', () => {
   });
 
   it('embeds every font, including the bundled Merriweather and Source Sans 3 (pdffonts)', () => {
-    const rows = poppler('pdffonts', printed.A4.file).split('\n').slice(2).filter((line) => line.trim() !== '');
+    const rows = poppler('pdffonts', printed.A4.file)
+      .split('\n')
+      .slice(2)
+      .filter((line) => line.trim() !== '');
     expect(rows.length).toBeGreaterThan(0);
     for (const row of rows) {
       // Columns: name type encoding emb sub uni object ID; the type may hold a space ("CID TrueType").
@@ -98,9 +108,14 @@ describe('the default report as a PDF', () => {
     // Numbers from the engine's result, written with the product's one formatter (shared with the screen).
     expect(text).toContain(`${formatSignificant(model.k, 4)} ${model.kUnit}`);
     expect(text).toContain(`${formatSignificant(first.t90!.estimate, 3)} month`);
-    const shelfLife = analysis.shelfLife!.find((condition) => condition.temperatureC === 25)!.result!.shelfLife!;
-    expect(text).toContain(`ICH Q1E shelf life at 25 °C (storage condition): ${formatSignificant(shelfLife, 3)} month`);
-    expect(text).toContain(`${formatSignificant(analysis.arrhenius!.fit!.activationEnergy / 1000, 4)} kJ/mol`);
+    const shelfLife = analysis.shelfLife!.find((condition) => condition.temperatureC === 25)!.result!
+      .shelfLife!;
+    expect(text).toContain(
+      `ICH Q1E shelf life at 25 °C (storage condition): ${formatSignificant(shelfLife, 3)} month`,
+    );
+    expect(text).toContain(
+      `${formatSignificant(analysis.arrhenius!.fit!.activationEnergy / 1000, 4)} kJ/mol`,
+    );
     expect(text).toContain('not less than 95 % label claim');
     expect(text).toContain('Sample vial cracked in transit; retest recorded in deviation DV-0118.');
     expect(text).toContain(flat(REPORT_CAUTION));
@@ -128,7 +143,12 @@ describe('the default report as a PDF', () => {
     expect(pid).toBeTypeOf('number');
     process.kill(pid!, 'SIGKILL');
     await expect.poll(() => pool.restarts, { timeout: 10_000 }).toBe(1);
-    const again = await renderReportPdf(pool, { template: loadDefaultTemplate(), context: fixture.context, figures: fixture.figures, paper: 'A4' });
+    const again = await renderReportPdf(pool, {
+      template: loadDefaultTemplate(),
+      context: fixture.context,
+      figures: fixture.figures,
+      paper: 'A4',
+    });
     expect(again.pageCount).toBe(printed.A4.pageCount);
     const newPid = await pool.withBrowser(async (browser) => browser.process()?.pid);
     expect(newPid).not.toBe(pid);

@@ -112,7 +112,8 @@ describe('a hostile template', () => {
 
   it('prints values escaped and prototype expressions as nothing, leaking no code or environment', () => {
     expect(text).toContain('product: <script>document.title="x"</script>Veltrazine');
-    for (const label of ['proto', 'ctor', 'ctor name', 'proto keys', 'nested']) expect(text).toContain(`${label}: []`);
+    for (const label of ['proto', 'ctor', 'ctor name', 'proto keys', 'nested'])
+      expect(text).toContain(`${label}: []`);
     expect(text).not.toMatch(/function|native code|\[object|Object|process|RATELEDGER|PATH=/);
     expect(text).not.toContain(CANARY);
   });
@@ -124,7 +125,11 @@ describe('a hostile template', () => {
   });
 
   it('refuses {{constructor.constructor}} with a located error that leaks nothing', () => {
-    const template = compileReportTemplate({ body: '<p>{{constructor.constructor "return process"}}</p>', partials: {}, stylesheet: '' });
+    const template = compileReportTemplate({
+      body: '<p>{{constructor.constructor "return process"}}</p>',
+      partials: {},
+      stylesheet: '',
+    });
     expect(() => template.render({ context: {}, figures: new Map(), paper: 'A4' })).toThrow(TemplateError);
     try {
       template.render({ context: {}, figures: new Map(), paper: 'A4' });

@@ -2,8 +2,8 @@ import { parse } from 'csv-parse/sync';
 import ExcelJS from 'exceljs';
 import type { Response } from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { createDemoDataset } from '../../server/db/demo-study.ts';
+import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;
@@ -53,7 +53,10 @@ beforeAll(async () => {
   const created = await agent
     .post(`/api/datasets/${datasetId}/analyses`)
     .set('x-csrf-token', token)
-    .send({ options: { order: 1 }, exclusions: [{ seriesId: 'QT-2402 @ 40 °C', observationIndex: 2, reason: EXCLUDED_REASON }] });
+    .send({
+      options: { order: 1 },
+      exclusions: [{ seriesId: 'QT-2402 @ 40 °C', observationIndex: 2, reason: EXCLUDED_REASON }],
+    });
   expect(created.status).toBe(201);
   runId = created.body.runId;
   pageHtml = (await agent.get(`/analyses/${runId}`)).text;
@@ -69,7 +72,7 @@ describe('the exported workbook', () => {
     expect(response.headers['content-type']).toContain('spreadsheetml');
     expect(response.headers['content-disposition']).toContain(`rateledger-analysis-${runId}`);
     const workbook = new ExcelJS.Workbook();
-    await workbook.xlsx.load(response.body as Buffer);
+    await workbook.xlsx.load(response.body as unknown as ExcelJS.Buffer);
     expect(workbook.worksheets.map((sheet) => sheet.name)).toEqual([
       'About',
       'Results',
@@ -123,7 +126,9 @@ describe('the exported workbook', () => {
     expect(data.rowCount - 1).toBe(72);
 
     const method = workbook.getWorksheet('Method statement')!;
-    const text = (method.getColumn(1).values as unknown[]).filter((value) => typeof value === 'string').join('\n');
+    const text = (method.getColumn(1).values as unknown[])
+      .filter((value) => typeof value === 'string')
+      .join('\n');
     expect(text).toContain(EXCLUDED_REASON);
     expect(text).toContain('support, but do not replace, qualified judgement');
     expect(workbook.getWorksheet('Figure data')!.rowCount).toBeGreaterThan(1000);
@@ -140,7 +145,8 @@ describe('the exported workbook', () => {
   });
 
   it('a reviewer may download; an unknown run is a clean 404', async () => {
-    const reviewer = (await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password)).agent;
+    const reviewer = (await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password))
+      .agent;
     expect((await reviewer.get(`/api/analyses/${runId}/export.csv`)).status).toBe(200);
     const missing = await reviewer.get('/api/analyses/999999999/export.xlsx');
     expect(missing.status).toBe(404);

@@ -1,11 +1,11 @@
 import { createHash } from 'node:crypto';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { StoredAnalysisResult } from '../../shared/figures/stored-result.ts';
-import { ENGINE_VERSION } from '../../shared/kinetics/version.ts';
 import { canonicalJson } from '../../server/audit/canonical-json.ts';
 import { createDemoDataset } from '../../server/db/demo-study.ts';
 import { analysisRuns, auditEvents, datasets } from '../../server/db/schema/index.ts';
+import type { StoredAnalysisResult } from '../../shared/figures/stored-result.ts';
+import { ENGINE_VERSION } from '../../shared/kinetics/version.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;
@@ -59,7 +59,9 @@ describe('running an analysis', () => {
     // The recorded hash is the dataset's, and it is SHA-256 (FIPS 180-4, via node:crypto) of the
     // canonical JSON of the series actually stored.
     expect(run!.datasetSha256).toBe(dataset!.sha256);
-    expect(createHash('sha256').update(canonicalJson(dataset!.series)).digest('hex')).toBe(run!.datasetSha256);
+    expect(createHash('sha256').update(canonicalJson(dataset!.series)).digest('hex')).toBe(
+      run!.datasetSha256,
+    );
     expect(run!.engineVersion).toBe(ENGINE_VERSION);
     expect(run!.options).toMatchObject({
       analyst: { confidenceLevel: 0.95, errorModel: 'auto' },
@@ -80,15 +82,24 @@ describe('running an analysis', () => {
       .from(auditEvents)
       .where(and(eq(auditEvents.action, 'analysis.run'), eq(auditEvents.recordId, String(runId))));
     expect(event?.actorUserId).toBe(world.users.analyst!.id);
-    expect(event?.afterValue).toMatchObject({ datasetId, datasetSha256: dataset!.sha256, engineVersion: ENGINE_VERSION });
+    expect(event?.afterValue).toMatchObject({
+      datasetId,
+      datasetSha256: dataset!.sha256,
+      engineVersion: ENGINE_VERSION,
+    });
   });
 
   it('the stored run cannot be changed or deleted (write-once trigger)', async () => {
     const [run] = await world.database.db.select({ id: analysisRuns.id }).from(analysisRuns).limit(1);
     await expect(
-      world.database.db.update(analysisRuns).set({ methodStatement: 'edited' }).where(eq(analysisRuns.id, run!.id)),
+      world.database.db
+        .update(analysisRuns)
+        .set({ methodStatement: 'edited' })
+        .where(eq(analysisRuns.id, run!.id)),
     ).rejects.toThrow();
-    await expect(world.database.db.delete(analysisRuns).where(eq(analysisRuns.id, run!.id))).rejects.toThrow();
+    await expect(
+      world.database.db.delete(analysisRuns).where(eq(analysisRuns.id, run!.id)),
+    ).rejects.toThrow();
   });
 
   it('refuses an exclusion without a reason, naming the field, and stores nothing', async () => {
@@ -123,7 +134,10 @@ describe('running an analysis', () => {
       .set('x-csrf-token', analystToken)
       .send({ options: { order: 1 } });
     const earlierId = first.body.runId as number;
-    const [earlierBefore] = await world.database.db.select().from(analysisRuns).where(eq(analysisRuns.id, earlierId));
+    const [earlierBefore] = await world.database.db
+      .select()
+      .from(analysisRuns)
+      .where(eq(analysisRuns.id, earlierId));
 
     const missingReason = await analyst
       .post(`/api/analyses/${earlierId}/exclusions`)
@@ -141,22 +155,33 @@ describe('running an analysis', () => {
     expect(excluded.body.supersedesRunId).toBe(earlierId);
     const newerId = excluded.body.runId as number;
 
-    const [earlierAfter] = await world.database.db.select().from(analysisRuns).where(eq(analysisRuns.id, earlierId));
+    const [earlierAfter] = await world.database.db
+      .select()
+      .from(analysisRuns)
+      .where(eq(analysisRuns.id, earlierId));
     expect(earlierAfter).toEqual(earlierBefore);
     const [newer] = await world.database.db.select().from(analysisRuns).where(eq(analysisRuns.id, newerId));
     expect(newer!.supersedesRunId).toBe(earlierId);
     expect(newer!.options).toEqual(earlierBefore!.options);
-    expect(newer!.exclusions).toEqual([expect.objectContaining({ seriesId: 'QT-2402 @ 40 °C', observationIndex: 2, reason })]);
+    expect(newer!.exclusions).toEqual([
+      expect.objectContaining({ seriesId: 'QT-2402 @ 40 °C', observationIndex: 2, reason }),
+    ]);
     const statement = (newer!.result as StoredAnalysisResult).analysis.methodStatement;
-    expect(statement.data.excludedPoints).toEqual([expect.objectContaining({ seriesId: 'QT-2402 @ 40 °C', reason })]);
+    expect(statement.data.excludedPoints).toEqual([
+      expect.objectContaining({ seriesId: 'QT-2402 @ 40 °C', reason }),
+    ]);
     expect(newer!.methodStatement).toContain(reason);
-    const series = (newer!.result as StoredAnalysisResult).analysis.series.find((entry) => entry.id === 'QT-2402 @ 40 °C');
+    const series = (newer!.result as StoredAnalysisResult).analysis.series.find(
+      (entry) => entry.id === 'QT-2402 @ 40 °C',
+    );
     expect(series?.analysis?.n).toBe(4);
 
     const [event] = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.action, 'analysis.point-excluded'), eq(auditEvents.recordId, String(newerId))));
+      .where(
+        and(eq(auditEvents.action, 'analysis.point-excluded'), eq(auditEvents.recordId, String(newerId))),
+      );
     expect(event?.context).toMatchObject({
       supersedesRunId: earlierId,
       point: { seriesId: 'QT-2402 @ 40 °C', observationIndex: 2 },
@@ -216,9 +241,13 @@ describe('who may do what', () => {
       .from(analysisRuns)
       .where(eq(analysisRuns.organisationId, world.organisationId))
       .limit(1);
-    const reviewer = (await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password)).agent;
+    const reviewer = (await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password))
+      .agent;
     const reviewerToken = await tokenOf(reviewer);
-    const refused = await reviewer.post(`/api/datasets/${datasetId}/analyses`).set('x-csrf-token', reviewerToken).send({});
+    const refused = await reviewer
+      .post(`/api/datasets/${datasetId}/analyses`)
+      .set('x-csrf-token', reviewerToken)
+      .send({});
     expect(refused.status).toBe(403);
     const refusedExclusion = await reviewer
       .post(`/api/analyses/${run!.id}/exclusions`)
@@ -233,11 +262,13 @@ describe('who may do what', () => {
     expect((await admin.get(`/api/analyses/${run!.id}`)).status).toBe(200);
     expect((await admin.get(`/api/analyses/${run!.id}/export.csv`)).status).toBe(200);
 
-    const outsider = (await signIn(other.app, other.users.outsider!.email, other.users.outsider!.password)).agent;
+    const outsider = (await signIn(other.app, other.users.outsider!.email, other.users.outsider!.password))
+      .agent;
     expect((await outsider.get(`/api/analyses/${run!.id}`)).status).toBe(404);
     const outsiderToken = await tokenOf(outsider);
     expect(
-      (await outsider.post(`/api/datasets/${datasetId}/analyses`).set('x-csrf-token', outsiderToken).send({})).status,
+      (await outsider.post(`/api/datasets/${datasetId}/analyses`).set('x-csrf-token', outsiderToken).send({}))
+        .status,
     ).toBe(404);
 
     const anonymous = await (await import('supertest')).default(world.app).get(`/api/analyses/${run!.id}`);

@@ -4,11 +4,11 @@ import path from 'node:path';
 import { and, eq } from 'drizzle-orm';
 import ExcelJS from 'exceljs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { ColumnMappingInput } from '../../shared/intake/column-mapping.ts';
-import type { Series } from '../../shared/kinetics/types.ts';
 import { canonicalJson } from '../../server/audit/canonical-json.ts';
 import { auditEvents, datasets, savedMappings, studies } from '../../server/db/schema/index.ts';
-import { csrfFrom, createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
+import type { ColumnMappingInput } from '../../shared/intake/column-mapping.ts';
+import type { Series } from '../../shared/kinetics/types.ts';
+import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 const FIXTURES = path.resolve(import.meta.dirname, '../fixtures');
 
@@ -45,20 +45,32 @@ async function workbook(fill: (book: ExcelJS.Workbook) => void): Promise<Buffer>
 }
 
 async function uploaded(bytes: Buffer, name: string): Promise<number> {
-  const response = await analyst.post(`/api/studies/${studyId}/uploads`).set('x-csrf-token', token).attach('file', bytes, name);
+  const response = await analyst
+    .post(`/api/studies/${studyId}/uploads`)
+    .set('x-csrf-token', token)
+    .attach('file', bytes, name);
   expect(response.status).toBe(201);
   return response.body.uploadId as number;
 }
 
 const importWith = (uploadId: number, mapping: ColumnMappingInput, extra: Record<string, unknown> = {}) =>
-  analyst.post(`/api/uploads/${uploadId}/import`).set('x-csrf-token', token).send({ mapping, ...extra });
+  analyst
+    .post(`/api/uploads/${uploadId}/import`)
+    .set('x-csrf-token', token)
+    .send({ mapping, ...extra });
 
 const preview = (uploadId: number, mapping?: ColumnMappingInput) =>
   analyst.get(`/api/uploads/${uploadId}/preview`).query(mapping ? { mapping: JSON.stringify(mapping) } : {});
 
-const datasetCount = () => world.database.db.$count(datasets, eq(datasets.organisationId, world.organisationId));
+const datasetCount = () =>
+  world.database.db.$count(datasets, eq(datasets.organisationId, world.organisationId));
 
-const BASIC: ColumnMappingInput = { timeColumn: 'Month', timeUnit: 'month', valueColumn: 'Assay', seriesColumn: 'Batch' };
+const BASIC: ColumnMappingInput = {
+  timeColumn: 'Month',
+  timeUnit: 'month',
+  valueColumn: 'Assay',
+  seriesColumn: 'Batch',
+};
 
 /** Asserts a 422 listing exactly these problem texts, and that no dataset was stored. */
 async function expectProblems(uploadId: number, mapping: ColumnMappingInput, texts: string[]) {
@@ -89,9 +101,17 @@ describe('import of a mapped upload', () => {
     );
     const response = await importWith(uploadId, BASIC);
     expect(response.status).toBe(201);
-    const [row] = await world.database.db.select().from(datasets).where(eq(datasets.id, response.body.datasetId));
+    const [row] = await world.database.db
+      .select()
+      .from(datasets)
+      .where(eq(datasets.id, response.body.datasetId));
     expect(row).toMatchObject({ uploadId, studyId, pointCount: 6, createdBy: world.users.analyst!.id });
-    expect(row!.mapping).toMatchObject({ sheet: 'Sheet1', timeColumn: 'Month', headerRow: 1, timeFormat: 'elapsed' });
+    expect(row!.mapping).toMatchObject({
+      sheet: 'Sheet1',
+      timeColumn: 'Month',
+      headerRow: 1,
+      timeFormat: 'elapsed',
+    });
     const series = row!.series as Series[];
     expect(series.map((entry) => entry.id)).toEqual(['OR-2401', 'OR-2402']);
     // Rows in any order: each series comes sorted by time.
@@ -103,7 +123,13 @@ describe('import of a mapped upload', () => {
     expect(series[0]!.observations[0]!.source).toEqual({ row: 4, cell: 'Sheet1!C4' });
     expect(row!.sha256).toBe(createHash('sha256').update(canonicalJson(series)).digest('hex'));
     expect(response.body.sha256).toBe(row!.sha256);
-    expect(response.body.series[0]).toMatchObject({ id: 'OR-2401', points: 3, distinctTimes: 3, firstTime: 0, lastTime: 6 });
+    expect(response.body.series[0]).toMatchObject({
+      id: 'OR-2401',
+      points: 3,
+      distinctTimes: 3,
+      firstTime: 0,
+      lastTime: 6,
+    });
 
     const [event] = await world.database.db
       .select()
@@ -159,7 +185,11 @@ describe('import of a mapped upload', () => {
     );
     const shown = await preview(uploadId);
     expect(shown.body.sheets[0].rows[2][1]).toEqual({ text: '=B2*0.99', kind: 'formula-without-value' });
-    const response = await importWith(uploadId, { timeColumn: 'Month', timeUnit: 'month', valueColumn: 'Assay' });
+    const response = await importWith(uploadId, {
+      timeColumn: 'Month',
+      timeUnit: 'month',
+      valueColumn: 'Assay',
+    });
     expect(response.status).toBe(422);
     const texts = (response.body.error.details as { text: string }[]).map((problem) => problem.text);
     expect(texts).toHaveLength(2);
@@ -168,7 +198,10 @@ describe('import of a mapped upload', () => {
   });
 
   it('text in number columns and a missing time in a CSV: every cell named, nothing stored', async () => {
-    const uploadId = await uploaded(readFileSync(path.join(FIXTURES, 'veltrazine-bad-cells.csv')), 'veltrazine-bad-cells.csv');
+    const uploadId = await uploaded(
+      readFileSync(path.join(FIXTURES, 'veltrazine-bad-cells.csv')),
+      'veltrazine-bad-cells.csv',
+    );
     await expectProblems(uploadId, BASIC, [
       `'veltrazine-bad-cells'!C3: "n/a" is not a number`,
       `'veltrazine-bad-cells'!B5: no time given for this value`,
@@ -181,7 +214,10 @@ describe('import of a mapped upload', () => {
       'single!B2: series "Assay" has a single result at time 0 month; a rate needs results at two or more different times',
     ]);
     // One batch only at time 0, one usable batch: kept, with a note about the unusable one.
-    const mixed = await uploaded(readFileSync(path.join(FIXTURES, 'veltrazine-single-time.csv')), 'veltrazine-single-time.csv');
+    const mixed = await uploaded(
+      readFileSync(path.join(FIXTURES, 'veltrazine-single-time.csv')),
+      'veltrazine-single-time.csv',
+    );
     const response = await importWith(mixed, BASIC);
     expect(response.status).toBe(201);
     expect(response.body.warnings.join('\n')).toMatch(/series "VZ-010" has 3 results, all at time 0/);
@@ -207,18 +243,30 @@ describe('import of a mapped upload', () => {
     );
     const shown = await preview(uploadId);
     expect(shown.body.sheets[0].merges).toEqual(expect.arrayContaining(['A1:A2', 'B1:C1']));
-    const response = await importWith(uploadId, { headerRow: 2, timeColumn: 'Month', timeUnit: 'month', valueColumn: 'Assay (%)' });
+    const response = await importWith(uploadId, {
+      headerRow: 2,
+      timeColumn: 'Month',
+      timeUnit: 'month',
+      valueColumn: 'Assay (%)',
+    });
     expect(response.status).toBe(201);
     expect(response.body.pointCount).toBe(3);
   });
 
   it('repeated times are replicates: marked in the preview, all kept in the dataset', async () => {
     const uploadId = await uploaded(
-      Buffer.from('Batch,Month,Assay\nOR-1,0,100.1\nOR-1,0,99.9\nOR-1,3,99.0\nOR-1,3,98.8\nOR-1,6,98.1\nOR-2,6,97.7\nOR-2,0,100.0\n'),
+      Buffer.from(
+        'Batch,Month,Assay\nOR-1,0,100.1\nOR-1,0,99.9\nOR-1,3,99.0\nOR-1,3,98.8\nOR-1,6,98.1\nOR-2,6,97.7\nOR-2,0,100.0\n',
+      ),
       'replicates.csv',
     );
     const checked = await preview(uploadId, BASIC);
-    expect(checked.body.check).toMatchObject({ ok: true, replicateRows: [2, 3, 4, 5], seriesCount: 2, pointCount: 7 });
+    expect(checked.body.check).toMatchObject({
+      ok: true,
+      replicateRows: [2, 3, 4, 5],
+      seriesCount: 2,
+      pointCount: 7,
+    });
     const response = await importWith(uploadId, BASIC);
     expect(response.body.series[0]).toMatchObject({ id: 'OR-1', points: 5, distinctTimes: 3 });
   });
@@ -238,24 +286,46 @@ describe('import of a mapped upload', () => {
       'sheets.xlsx',
     );
     const shown = await preview(uploadId);
-    expect(shown.body.sheets.map((sheet: { name: string; rowCount: number; columnCount: number }) => [sheet.name, sheet.rowCount, sheet.columnCount])).toEqual([
+    expect(
+      shown.body.sheets.map((sheet: { name: string; rowCount: number; columnCount: number }) => [
+        sheet.name,
+        sheet.rowCount,
+        sheet.columnCount,
+      ]),
+    ).toEqual([
       ['Cover', 2, 1],
       ['40 C', 4, 2],
     ]);
     // Dates shown as ISO text; the header guessed.
     expect(shown.body.sheets[1].rows[1][0]).toEqual({ text: '2025-01-01', kind: 'date' });
     expect(shown.body.sheets[1].headerGuess).toBe(1);
-    const mapping: ColumnMappingInput = { sheet: '40 C', timeColumn: 'Day', timeFormat: 'datetime', timeUnit: 'd', valueColumn: 'Content' };
+    const mapping: ColumnMappingInput = {
+      sheet: '40 C',
+      timeColumn: 'Day',
+      timeFormat: 'datetime',
+      timeUnit: 'd',
+      valueColumn: 'Content',
+    };
     const response = await importWith(uploadId, mapping);
     expect(response.status).toBe(201);
     expect(response.body.series[0]).toMatchObject({ firstTime: 0, lastTime: 60, timeUnit: 'd' });
-    await expectProblems(uploadId, { ...mapping, sheet: 'Missing' }, ['no sheet named "Missing" (sheets: Cover, 40 C)']);
+    await expectProblems(uploadId, { ...mapping, sheet: 'Missing' }, [
+      'no sheet named "Missing" (sheets: Cover, 40 C)',
+    ]);
   });
 
   it('a European CSV — BOM, semicolons, decimal commas, rows shuffled, a blank line — reads correctly', async () => {
-    const uploadId = await uploaded(readFileSync(path.join(FIXTURES, 'veltrazine-long-term-semicolon.csv')), 'langzeit.csv');
+    const uploadId = await uploaded(
+      readFileSync(path.join(FIXTURES, 'veltrazine-long-term-semicolon.csv')),
+      'langzeit.csv',
+    );
     const shown = await preview(uploadId);
-    expect(shown.body.sheets[0].rows[0].map((cell: { text: string }) => cell.text)).toEqual(['Charge', 'Lagerung °C', 'Monat', 'Gehalt %']);
+    expect(shown.body.sheets[0].rows[0].map((cell: { text: string }) => cell.text)).toEqual([
+      'Charge',
+      'Lagerung °C',
+      'Monat',
+      'Gehalt %',
+    ]);
     const response = await importWith(uploadId, {
       timeColumn: 'Monat',
       timeUnit: 'month',
@@ -265,10 +335,15 @@ describe('import of a mapped upload', () => {
     });
     expect(response.status).toBe(201);
     expect(response.body.pointCount).toBe(21);
-    const [row] = await world.database.db.select().from(datasets).where(eq(datasets.id, response.body.datasetId));
+    const [row] = await world.database.db
+      .select()
+      .from(datasets)
+      .where(eq(datasets.id, response.body.datasetId));
     const first = (row!.series as Series[]).find((series) => series.id === 'VZ-003')!;
     expect(first.temperatureC).toBe(25);
-    expect(first.observations.slice(0, 3).map((observation) => observation.value)).toEqual([100.4, 99.2, 98.2]);
+    expect(first.observations.slice(0, 3).map((observation) => observation.value)).toEqual([
+      100.4, 99.2, 98.2,
+    ]);
   });
 
   it('a saved mapping is offered for the next file whose header row matches', async () => {
@@ -276,22 +351,40 @@ describe('import of a mapped upload', () => {
     const first = await uploaded(Buffer.from(csv), 'first.csv');
     const response = await importWith(first, BASIC, { saveMappingAs: 'Monthly assay export' });
     expect(response.status).toBe(201);
-    const [saved] = await world.database.db.select().from(savedMappings).where(eq(savedMappings.id, response.body.savedMappingId));
+    const [saved] = await world.database.db
+      .select()
+      .from(savedMappings)
+      .where(eq(savedMappings.id, response.body.savedMappingId));
     expect(saved!.headerSignature).toEqual(['Batch', 'Month', 'Assay']);
     const next = await uploaded(Buffer.from('batch,month,assay\nOR-8,0,99.7\nOR-8,6,98.0\n'), 'next.csv');
     const offered = (await preview(next)).body.savedMappings;
     expect(offered.map((offer: { name: string }) => offer.name)).toContain('Monthly assay export');
-    expect(offered.find((offer: { name: string }) => offer.name === 'Monthly assay export').mapping.sheet).toBe('next');
+    expect(
+      offered.find((offer: { name: string }) => offer.name === 'Monthly assay export').mapping.sheet,
+    ).toBe('next');
     const other = await uploaded(Buffer.from('Time (h),Conc\n0,1\n2,0.9\n'), 'other.csv');
-    expect((await preview(other)).body.savedMappings.map((offer: { name: string }) => offer.name)).not.toContain('Monthly assay export');
+    expect(
+      (await preview(other)).body.savedMappings.map((offer: { name: string }) => offer.name),
+    ).not.toContain('Monthly assay export');
   });
 
   it('an invalid mapping is a 400 naming the field; a reviewer may preview but not import', async () => {
     const uploadId = await uploaded(Buffer.from('Month,Assay\n0,100\n3,99\n'), 'fields.csv');
-    const bad = await importWith(uploadId, { timeColumn: 'Month', timeUnit: 'fortnight', valueColumn: '' } as unknown as ColumnMappingInput);
+    const bad = await importWith(uploadId, {
+      timeColumn: 'Month',
+      timeUnit: 'fortnight',
+      valueColumn: '',
+    } as unknown as ColumnMappingInput);
     expect(bad.status).toBe(400);
-    expect(bad.body.error.details.map((detail: { field: string }) => detail.field)).toEqual(['mapping.timeUnit', 'mapping.valueColumn']);
-    const { agent: reviewer } = await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password);
+    expect(bad.body.error.details.map((detail: { field: string }) => detail.field)).toEqual([
+      'mapping.timeUnit',
+      'mapping.valueColumn',
+    ]);
+    const { agent: reviewer } = await signIn(
+      world.app,
+      world.users.reviewer!.email,
+      world.users.reviewer!.password,
+    );
     expect((await reviewer.get(`/api/uploads/${uploadId}/preview`)).status).toBe(200);
     const reviewerToken = csrfFrom((await reviewer.get('/')).text);
     const refused = await reviewer

@@ -1,7 +1,7 @@
 import { and, asc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditEvents, studies } from '../../server/db/schema/index.ts';
-import { csrfFrom, createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
+import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;
 beforeAll(async () => {
@@ -25,9 +25,16 @@ const VALID = {
   notes: 'Invented study for tests.',
 };
 
-async function postStudy(agent: Awaited<ReturnType<typeof signInAs>>['agent'], path: string, fields: Record<string, string>) {
+async function postStudy(
+  agent: Awaited<ReturnType<typeof signInAs>>['agent'],
+  path: string,
+  fields: Record<string, string>,
+) {
   const page = await agent.get('/studies/new');
-  return agent.post(path).type('form').send({ _csrf: csrfFrom(page.text), ...fields });
+  return agent
+    .post(path)
+    .type('form')
+    .send({ _csrf: csrfFrom(page.text), ...fields });
 }
 
 describe('studies', () => {
@@ -39,7 +46,12 @@ describe('studies', () => {
     expect(id).toBeGreaterThan(0);
 
     const [row] = await world.database.db.select().from(studies).where(eq(studies.id, id));
-    expect(row).toMatchObject({ lowerLimit: 95, upperLimit: 105, storageTemperatureC: 25, storageHumidityPercent: 60 });
+    expect(row).toMatchObject({
+      lowerLimit: 95,
+      upperLimit: 105,
+      storageTemperatureC: 25,
+      storageHumidityPercent: 60,
+    });
     // Repeats dropped, order kept.
     expect(row!.batches).toEqual(['OR-2401', 'OR-2402', 'OR-2403']);
 
@@ -50,7 +62,11 @@ describe('studies', () => {
     expect(event!.action).toBe('study.created');
     expect(event!.actorUserId).toBe(world.users.analyst!.id);
     expect(event!.beforeValue).toBeNull();
-    expect(event!.afterValue).toMatchObject({ title: VALID.title, lowerLimit: 95, batches: ['OR-2401', 'OR-2402', 'OR-2403'] });
+    expect(event!.afterValue).toMatchObject({
+      title: VALID.title,
+      lowerLimit: 95,
+      batches: ['OR-2401', 'OR-2402', 'OR-2403'],
+    });
 
     const list = await agent.get('/studies');
     expect(list.status).toBe(200);
@@ -66,10 +82,20 @@ describe('studies', () => {
     const { agent } = await signInAs('analyst');
     const created = await postStudy(agent, '/studies', { ...VALID, title: 'Study to edit' });
     const id = Number(/\/studies\/(\d+)/.exec(created.headers.location ?? '')?.[1]);
-    const edited = await postStudy(agent, `/studies/${id}`, { ...VALID, title: 'Study to edit', lowerLimit: '94.5', notes: 'Limit widened.' });
+    const edited = await postStudy(agent, `/studies/${id}`, {
+      ...VALID,
+      title: 'Study to edit',
+      lowerLimit: '94.5',
+      notes: 'Limit widened.',
+    });
     expect(edited.status).toBe(303);
     expect(edited.headers.location).toContain('saved=updated');
-    const unchanged = await postStudy(agent, `/studies/${id}`, { ...VALID, title: 'Study to edit', lowerLimit: '94.5', notes: 'Limit widened.' });
+    const unchanged = await postStudy(agent, `/studies/${id}`, {
+      ...VALID,
+      title: 'Study to edit',
+      lowerLimit: '94.5',
+      notes: 'Limit widened.',
+    });
     expect(unchanged.headers.location).toContain('saved=unchanged');
 
     const events = await world.database.db
@@ -94,14 +120,20 @@ describe('studies', () => {
     });
     expect(response.status).toBe(400);
     expect(response.text).toMatch(/id="title-error"[^>]*>Title is required\./);
-    expect(response.text).toMatch(/id="upperLimit-error"[^>]*>The upper limit must be above the lower limit\./);
-    expect(response.text).toMatch(/id="storageHumidityPercent-error"[^>]*>Relative humidity must be a number/);
+    expect(response.text).toMatch(
+      /id="upperLimit-error"[^>]*>The upper limit must be above the lower limit\./,
+    );
+    expect(response.text).toMatch(
+      /id="storageHumidityPercent-error"[^>]*>Relative humidity must be a number/,
+    );
     expect(response.text).toContain('value="sixty"');
     expect(response.text).toContain('value="Orvellin 250 mg film-coated tablets (invented)"');
     const noLimits = await postStudy(agent, '/studies', { ...VALID, lowerLimit: '', upperLimit: '' });
     expect(noLimits.status).toBe(400);
     expect(noLimits.text).toMatch(/id="lowerLimit-error"[^>]*>Give a lower limit, an upper limit or both/);
-    expect(await world.database.db.$count(studies, eq(studies.organisationId, world.organisationId))).toBe(before);
+    expect(await world.database.db.$count(studies, eq(studies.organisationId, world.organisationId))).toBe(
+      before,
+    );
   });
 
   it('a reviewer and an admin may read studies but not create or edit them (403)', async () => {
@@ -117,9 +149,15 @@ describe('studies', () => {
       expect(page.text).not.toContain('data-island="study-upload"');
       expect((await agent.get('/studies/new')).status).toBe(403);
       const home = await agent.get('/');
-      const create = await agent.post('/studies').type('form').send({ _csrf: csrfFrom(home.text), ...VALID });
+      const create = await agent
+        .post('/studies')
+        .type('form')
+        .send({ _csrf: csrfFrom(home.text), ...VALID });
       expect(create.status).toBe(403);
-      const edit = await agent.post(`/studies/${id}`).type('form').send({ _csrf: csrfFrom(home.text), ...VALID });
+      const edit = await agent
+        .post(`/studies/${id}`)
+        .type('form')
+        .send({ _csrf: csrfFrom(home.text), ...VALID });
       expect(edit.status).toBe(403);
     }
   });
@@ -128,7 +166,11 @@ describe('studies', () => {
     const other = await createTestWorld({ outsider: ['analyst'] });
     try {
       const { agent } = await signIn(other.app, other.users.outsider!.email, other.users.outsider!.password);
-      const [mine] = await world.database.db.select().from(studies).where(eq(studies.organisationId, world.organisationId)).limit(1);
+      const [mine] = await world.database.db
+        .select()
+        .from(studies)
+        .where(eq(studies.organisationId, world.organisationId))
+        .limit(1);
       expect((await agent.get(`/studies/${mine!.id}`)).status).toBe(404);
       expect((await agent.get('/studies/abc')).status).toBe(400);
     } finally {

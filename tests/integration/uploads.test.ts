@@ -3,9 +3,9 @@ import { and, eq } from 'drizzle-orm';
 import ExcelJS from 'exceljs';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { UPLOAD_SIZE_LIMIT_BYTES } from '../../shared/api/uploads.ts';
 import { auditEvents, studies, uploads } from '../../server/db/schema/index.ts';
-import { csrfFrom, createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
+import { UPLOAD_SIZE_LIMIT_BYTES } from '../../shared/api/uploads.ts';
+import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;
 let studyId: number;
@@ -74,17 +74,28 @@ describe('upload', () => {
     expect(response.body.sha256).toBe(expectedHash);
     expect(response.body.mapUrl).toBe(`/uploads/${response.body.uploadId}/map`);
 
-    const [row] = await world.database.db.select().from(uploads).where(eq(uploads.id, response.body.uploadId));
+    const [row] = await world.database.db
+      .select()
+      .from(uploads)
+      .where(eq(uploads.id, response.body.uploadId));
     expect(Buffer.compare(row!.content, bytes)).toBe(0);
     expect(createHash('sha256').update(row!.content).digest('hex')).toBe(expectedHash);
-    expect(row).toMatchObject({ format: 'xlsx', sizeBytes: bytes.length, uploadedBy: world.users.analyst!.id, fileName: 'stability ü.xlsx' });
+    expect(row).toMatchObject({
+      format: 'xlsx',
+      sizeBytes: bytes.length,
+      uploadedBy: world.users.analyst!.id,
+      fileName: 'stability ü.xlsx',
+    });
     expect(row!.uploadedAt).toBeInstanceOf(Date);
 
-    const original = await analyst.get(`/uploads/${row!.id}/original`).buffer(true).parse((res, done) => {
-      const chunks: Buffer[] = [];
-      res.on('data', (chunk: Buffer) => chunks.push(chunk));
-      res.on('end', () => done(null, Buffer.concat(chunks)));
-    });
+    const original = await analyst
+      .get(`/uploads/${row!.id}/original`)
+      .buffer(true)
+      .parse((res, done) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (chunk: Buffer) => chunks.push(chunk));
+        res.on('end', () => done(null, Buffer.concat(chunks)));
+      });
     expect(Buffer.compare(original.body as Buffer, bytes)).toBe(0);
 
     const [event] = await world.database.db
@@ -98,14 +109,20 @@ describe('upload', () => {
   it('the stored original cannot be changed or deleted (write-once in the database)', async () => {
     const response = await upload(await goodWorkbook(), 'write-once.xlsx');
     await expect(
-      world.database.db.update(uploads).set({ fileName: 'changed.xlsx' }).where(eq(uploads.id, response.body.uploadId)),
+      world.database.db
+        .update(uploads)
+        .set({ fileName: 'changed.xlsx' })
+        .where(eq(uploads.id, response.body.uploadId)),
     ).rejects.toThrow();
   });
 
   it('decides the format from the content: a CSV named .txt is a CSV', async () => {
     const response = await upload(Buffer.from('Month,Assay\n0,100.1\n3,99.0\n'), 'export.txt');
     expect(response.status).toBe(201);
-    const [row] = await world.database.db.select().from(uploads).where(eq(uploads.id, response.body.uploadId));
+    const [row] = await world.database.db
+      .select()
+      .from(uploads)
+      .where(eq(uploads.id, response.body.uploadId));
     expect(row!.format).toBe('csv');
   });
 
@@ -118,19 +135,36 @@ describe('upload', () => {
   });
 
   it('not a workbook at all (binary content) → 422 saying so', async () => {
-    const png = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d, 0x49, 0x48, 0x44, 0x52, 0, 0, 1, 0]);
+    const png = Buffer.from([
+      0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0, 0, 0x0d, 0x49, 0x48, 0x44, 0x52, 0, 0, 1, 0,
+    ]);
     await expectRefused(png, 'photo.png', 422, /neither an Excel workbook \(\.xlsx\) nor a CSV/);
-    await expectRefused(Buffer.from('just some words, not a workbook'), 'named-like.xlsx', 422, /not an Excel workbook/);
+    await expectRefused(
+      Buffer.from('just some words, not a workbook'),
+      'named-like.xlsx',
+      422,
+      /not an Excel workbook/,
+    );
   });
 
   it('a truncated workbook → 422 "incomplete or damaged"', async () => {
     const bytes = await goodWorkbook();
-    await expectRefused(bytes.subarray(0, Math.floor(bytes.length / 2)), 'cut.xlsx', 422, /incomplete or damaged/);
+    await expectRefused(
+      bytes.subarray(0, Math.floor(bytes.length / 2)),
+      'cut.xlsx',
+      422,
+      /incomplete or damaged/,
+    );
   });
 
   it('a password-protected workbook (an OLE compound file holding an EncryptedPackage) → 422 naming the password', async () => {
     const header = Buffer.from([0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1]);
-    const bytes = Buffer.concat([header, Buffer.alloc(504), Buffer.from('EncryptedPackage', 'utf16le'), Buffer.alloc(512)]);
+    const bytes = Buffer.concat([
+      header,
+      Buffer.alloc(504),
+      Buffer.from('EncryptedPackage', 'utf16le'),
+      Buffer.alloc(512),
+    ]);
     await expectRefused(bytes, 'locked.xlsx', 422, /protected by a password/);
     // Without the encrypted stream it is the old binary format.
     await expectRefused(Buffer.concat([header, Buffer.alloc(1024)]), 'old.xls', 422, /old-format Excel file/);
@@ -145,17 +179,26 @@ describe('upload', () => {
   });
 
   it('refuses a request without a file (400), a reviewer (403), a missing CSRF token (403), an unknown study (404)', async () => {
-    const none = await analyst.post(`/api/studies/${studyId}/uploads`).set('x-csrf-token', token).field('note', 'no file');
+    const none = await analyst
+      .post(`/api/studies/${studyId}/uploads`)
+      .set('x-csrf-token', token)
+      .field('note', 'no file');
     expect(none.status).toBe(400);
     expect(none.body.error.message).toMatch(/Choose a file/);
-    const { agent: reviewer } = await signIn(world.app, world.users.reviewer!.email, world.users.reviewer!.password);
+    const { agent: reviewer } = await signIn(
+      world.app,
+      world.users.reviewer!.email,
+      world.users.reviewer!.password,
+    );
     const reviewerToken = csrfFrom((await reviewer.get('/')).text);
     const refused = await reviewer
       .post(`/api/studies/${studyId}/uploads`)
       .set('x-csrf-token', reviewerToken)
       .attach('file', await goodWorkbook(), 'x.xlsx');
     expect(refused.status).toBe(403);
-    const noToken = await analyst.post(`/api/studies/${studyId}/uploads`).attach('file', await goodWorkbook(), 'x.xlsx');
+    const noToken = await analyst
+      .post(`/api/studies/${studyId}/uploads`)
+      .attach('file', await goodWorkbook(), 'x.xlsx');
     expect(noToken.status).toBe(403);
     const unknown = await analyst
       .post('/api/studies/999999999/uploads')
@@ -169,7 +212,9 @@ describe('upload', () => {
       .post(`/api/studies/${studyId}/uploads`)
       .set('x-csrf-token', token)
       .set('content-type', 'multipart/form-data; boundary=xyz')
-      .send('--xyz\r\nContent-Disposition: form-data; name="file"; filename="a.csv"\r\n\r\nMonth,Assay\r\n0,1');
+      .send(
+        '--xyz\r\nContent-Disposition: form-data; name="file"; filename="a.csv"\r\n\r\nMonth,Assay\r\n0,1',
+      );
     expect(response.status).toBe(400);
     expect(response.body.error.message).toMatch(/could not be read/);
   });

@@ -108,7 +108,7 @@ export function MappingFields({ draft, errors, sheetNames, columns, onChange }: 
       <Field id="map-timeColumn" label="Time column" error={errors.timeColumn}>
         {columnSelect('timeColumn', false)}
       </Field>
-      <Field id="map-timeFormat" label="The time column holds" error={errors.timeFormat}>
+      <Field id="map-timeFormat" label="Time format" error={errors.timeFormat}>
         <select
           id="map-timeFormat"
           value={draft.timeFormat}

@@ -28,6 +28,8 @@ function useDebounced<T>(value: T, delay: number): T {
   return settled;
 }
 
+const plural = (count: number, noun: string) => `${count} ${noun}${count === 1 ? '' : 's'}`;
+
 const ROLE_FIELDS = [
   ['timeColumn', 'time'],
   ['valueColumn', 'value'],
@@ -106,6 +108,12 @@ export function MappingWorkbench({
   const replicateRows = new Set(check?.replicateRows ?? []);
   const refused = importer.error instanceof ImportRefused ? importer.error : null;
   const offers = dismissedOffer ? [] : data.savedMappings;
+  const problemCells = new Map<string, string>();
+  for (const problem of [...(check?.problems ?? []), ...(refused?.problems ?? [])]) {
+    const address = /^(?:'((?:[^']|'')+)'|([^!]+))!([A-Z]+\d+)$/.exec(problem.where ?? '');
+    const sheetName = address?.[1]?.replaceAll("''", "'") ?? address?.[2];
+    if (address?.[3] && sheetName === sheet.name) problemCells.set(address[3], problem.message);
+  }
 
   const submit = () => {
     setTouched(true);
@@ -161,11 +169,11 @@ export function MappingWorkbench({
             The whole sheet reads cleanly: {check.pointCount} points in {check.seriesCount} series
             {check.replicateRows.length > 0 &&
               `, ${check.replicateRows.length} rows are replicates (same time, same series)`}
-            .{check.warnings.length > 0 && ` ${check.warnings.length} note(s) below.`}
+            .{check.warnings.length > 0 && ` ${plural(check.warnings.length, 'note')} below.`}
           </p>
         ) : (
           <ProblemList
-            heading={`With this mapping the file has ${check.problems.length} problem(s); an import would store nothing:`}
+            heading={`With this mapping the file has ${plural(check.problems.length, 'problem')} (marked in the table below); an import would store nothing:`}
             problems={check.problems}
           />
         )}
@@ -176,7 +184,13 @@ export function MappingWorkbench({
         )}
       </section>
 
-      <SheetPreviewTable sheet={sheet} headerRow={headerRow} roles={roles} replicateRows={replicateRows} />
+      <SheetPreviewTable
+        sheet={sheet}
+        headerRow={headerRow}
+        roles={roles}
+        replicateRows={replicateRows}
+        problemCells={problemCells}
+      />
 
       <section aria-label="Import" className="space-y-3 rounded-md border border-rule bg-white p-5">
         <label className="flex items-center gap-2 text-sm">

@@ -15,11 +15,14 @@ export function SheetPreviewTable({
   headerRow,
   roles,
   replicateRows,
+  problemCells,
 }: {
   sheet: SheetPreview;
   headerRow: number;
   roles: ColumnRoles;
   replicateRows: ReadonlySet<number>;
+  /** Cell address ("C7") → the problem found there. */
+  problemCells: ReadonlyMap<string, string>;
 }) {
   const letters = Array.from({ length: sheet.columnCount }, (_, index) => columnLetter(index));
   return (
@@ -61,15 +64,26 @@ export function SheetPreviewTable({
                 >
                   {rowNumber}
                 </th>
-                {row.map((cell, column) => (
-                  <td
-                    key={letters[column]}
-                    title={cell.kind === 'formula-without-value' ? 'Formula with no stored value' : undefined}
-                    className={`whitespace-nowrap border-r border-rule/60 px-2 py-1 ${cell.kind === 'number' ? 'text-right tabular-nums' : ''} ${cell.kind === 'formula-without-value' ? 'bg-alert/10 font-mono text-xs text-alert' : ''} ${roles[column] && !isHeader ? 'bg-ledger-light/40' : ''}`}
-                  >
-                    {cell.text}
-                  </td>
-                ))}
+                {row.map((cell, column) => {
+                  const problem = problemCells.get(`${letters[column]}${rowNumber}`);
+                  const formula = cell.kind === 'formula-without-value';
+                  const tone = problem
+                    ? 'bg-alert/15 text-alert outline outline-1 outline-alert'
+                    : formula
+                      ? 'bg-alert/10 text-alert'
+                      : roles[column] && !isHeader
+                        ? 'bg-ledger-light/40'
+                        : '';
+                  return (
+                    <td
+                      key={letters[column]}
+                      title={problem ?? (formula ? 'Formula with no stored value' : undefined)}
+                      className={`whitespace-nowrap border-r border-rule/60 px-2 py-1 ${cell.kind === 'number' ? 'text-right tabular-nums' : ''} ${formula ? 'font-mono text-xs' : ''} ${tone}`}
+                    >
+                      {cell.text}
+                    </td>
+                  );
+                })}
                 <td className="px-2 py-1 text-xs">
                   {isHeader && <span className="rounded-sm bg-ledger px-1.5 py-0.5 text-white">header</span>}
                   {isReplicate && (

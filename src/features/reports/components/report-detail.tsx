@@ -1,0 +1,138 @@
+import { Link, useParams } from 'react-router-dom';
+import { useCreateReportVersion } from '../api/create-report-version.ts';
+import { useReport } from '../api/get-report.ts';
+import { isRendering } from '../api/report-keys.ts';
+import { byteSize, RenderStatusBadge, utcTime } from './render-status.tsx';
+
+const PAPER_NAMES = { a4: 'A4', letter: 'US Letter' } as const;
+
+/** One report: its versions with their render state (refreshing while one runs), preview and download. */
+export function ReportDetail() {
+  const reportId = Number(useParams().reportId);
+  const report = useReport(reportId);
+  const renderAgain = useCreateReportVersion(reportId);
+
+  if (!Number.isInteger(reportId) || reportId <= 0) return <p role="alert">There is no such report.</p>;
+  if (report.isPending) return <p className="text-ink-muted">Loading the report…</p>;
+  if (report.isError)
+    return (
+      <p role="alert" className="text-alert">
+        Could not load the report: {report.error.message}
+      </p>
+    );
+  const data = report.data;
+  const running = data.versions.some((version) => isRendering(version.renderStatus));
+
+  return (
+    <section>
+      <p className="text-sm">
+        <Link className="text-ledger underline" to="/reports">
+          ← All reports
+        </Link>
+      </p>
+      <h1 className="mt-2 font-serif text-2xl">
+        <span className="tabular-nums">{data.reportNumber}</span> · {data.title}
+      </h1>
+      <dl className="mt-2 grid grid-cols-[max-content_1fr] gap-x-4 gap-y-0.5 text-sm">
+        <dt className="text-ink-muted">Study</dt>
+        <dd>
+          {data.study.title} ({data.study.product})
+        </dd>
+        <dt className="text-ink-muted">Analysis</dt>
+        <dd>
+          <a className="text-ledger underline" href={data.analysisUrl}>
+            Analysis {data.analysisRunId}
+          </a>
+        </dd>
+        <dt className="text-ink-muted">Author</dt>
+        <dd>{data.author.fullName}</dd>
+        <dt className="text-ink-muted">Created</dt>
+        <dd className="tabular-nums">{utcTime(data.createdAt)}</dd>
+      </dl>
+
+      <div className="mt-4 flex items-center gap-3">
+        <h2 className="font-serif text-lg">Versions</h2>
+        <button
+          type="button"
+          className="rounded-sm border border-ledger px-2 py-1 text-sm text-ledger hover:bg-paper disabled:opacity-40"
+          disabled={renderAgain.isPending}
+          onClick={() => renderAgain.mutate({})}
+        >
+          Render a new version
+        </button>
+        <span aria-live="polite" className="text-sm text-ink-muted">
+          {running ? 'Rendering — this page updates by itself.' : ''}
+        </span>
+      </div>
+      {renderAgain.isError && (
+        <p role="alert" className="mt-1 text-sm text-alert">
+          {renderAgain.error.message}
+        </p>
+      )}
+
+      <table className="mt-2 w-full rounded-md border border-rule bg-white text-sm">
+        <thead>
+          <tr className="border-b border-rule text-left">
+            <th className="px-2 py-1">Version</th>
+            <th className="px-2 py-1">State</th>
+            <th className="px-2 py-1">Paper</th>
+            <th className="px-2 py-1">Pages</th>
+            <th className="px-2 py-1">Requested</th>
+            <th className="px-2 py-1">Finished</th>
+            <th className="px-2 py-1">Output</th>
+          </tr>
+        </thead>
+        <tbody>
+          {[...data.versions].reverse().map((version) => (
+            <tr key={version.versionNumber} className="border-b border-rule/50 align-top" data-version={version.versionNumber}>
+              <td className="px-2 py-1.5 tabular-nums">
+                v{version.versionNumber}
+                <div className="text-xs text-ink-muted">
+                  analysis {version.analysisRunId} · template v{version.templateVersionNumber}
+                </div>
+              </td>
+              <td className="px-2 py-1.5">
+                <RenderStatusBadge status={version.renderStatus} />
+                {version.renderAttempts > 1 && <div className="text-xs text-ink-muted">{version.renderAttempts} attempts</div>}
+                {version.failureReason && <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>}
+              </td>
+              <td className="px-2 py-1.5">{PAPER_NAMES[version.paperSize]}</td>
+              <td className="px-2 py-1.5 tabular-nums">
+                {version.pageCount ?? '—'}
+                {version.pdfByteSize !== null && <div className="text-xs text-ink-muted">{byteSize(version.pdfByteSize)}</div>}
+              </td>
+              <td className="px-2 py-1.5 tabular-nums">
+                {utcTime(version.createdAt)}
+                <div className="text-xs text-ink-muted">{version.requestedBy.fullName}</div>
+              </td>
+              <td className="px-2 py-1.5 tabular-nums">{utcTime(version.finishedAt)}</td>
+              <td className="px-2 py-1.5">
+                {version.pdfUrl && version.htmlUrl ? (
+                  <div className="flex flex-col gap-0.5">
+                    <a className="text-ledger underline" href={version.pdfUrl} download>
+                      Download PDF
+                    </a>
+                    <a className="text-ledger underline" href={version.htmlUrl} target="_blank" rel="noopener noreferrer">
+                      Preview (HTML)
+                    </a>
+                    {version.pdfSha256 && (
+                      <span className="font-mono text-[10px] text-ink-muted" title="SHA-256 of the stored PDF">
+                        SHA-256 {version.pdfSha256.slice(0, 16)}…
+                      </span>
+                    )}
+                  </div>
+                ) : (
+                  '—'
+                )}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      <p className="mt-4 text-xs text-ink-muted">
+        The estimates in a report support, and do not replace, the judgement of qualified people, applicable
+        guidance and your laboratory's approved procedures.
+      </p>
+    </section>
+  );
+}
