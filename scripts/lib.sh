@@ -9,13 +9,15 @@ PG_VERSION_WANTED="${PG_VERSION_WANTED:-15}"
 log() { printf '[rateledger] %s\n' "$*" >&2; }
 
 # Debian packages the app needs at run time: PostgreSQL for the private cluster, Chromium for
-# PDF printing and browser tests, poppler-utils for PDF checks, fonts for Chromium's fallbacks.
+# PDF printing and browser tests, poppler-utils for PDF checks (pdfsig verifies signatures),
+# libnss3-tools (certutil) for the trust store pdfsig reads, fonts for Chromium's fallbacks.
 ensure_system_packages() {
   local missing=()
   command -v chromium >/dev/null 2>&1 || missing+=(chromium)
   command -v pdftotext >/dev/null 2>&1 || missing+=(poppler-utils)
   ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 || missing+=(postgresql)
   dpkg -s fonts-liberation >/dev/null 2>&1 || missing+=(fonts-liberation)
+  command -v certutil >/dev/null 2>&1 || missing+=(libnss3-tools)
   if ((${#missing[@]})); then
     log "installing Debian packages: ${missing[*]}"
     if [ "$(id -u)" != 0 ]; then

@@ -179,6 +179,20 @@ export async function createDemoDataset(
         uploadedBy: context.analystUserId,
       })
       .returning({ id: uploads.id, sha256: uploads.sha256 });
+    await appendAuditEvent(tx, {
+      organisationId: context.organisationId,
+      ...actor,
+      action: 'upload.stored',
+      recordType: 'upload',
+      recordId: upload!.id,
+      after: {
+        studyId: study!.id,
+        fileName: DEMO_WORKBOOK_NAME,
+        format: 'xlsx',
+        sizeBytes: content.length,
+        sha256: upload!.sha256,
+      },
+    });
     const mapping = columnMappingSchema.parse(DEMO_MAPPING);
     const intake = seriesFromGrid(await readWorkbook(content), mapping);
     if (!intake.ok)

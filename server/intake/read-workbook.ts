@@ -21,6 +21,7 @@ import ExcelJS from 'exceljs';
 import { columnIndex } from '../../shared/intake/cell-reference.ts';
 import type { GridCell, MergedRange, SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { FileReadError } from './file-read-error.ts';
+import { xlsxSheetGrids } from './xlsx-sheet-grids.ts';
 
 const ZIP_SIGNATURE = [0x50, 0x4b, 0x03, 0x04];
 const OLE_SIGNATURE = [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1];
@@ -107,6 +108,16 @@ function readSheet(worksheet: ExcelJS.Worksheet): SheetGrid {
 
 export async function readWorkbook(content: Uint8Array): Promise<SheetGrid[]> {
   checkContainer(content);
+  try {
+    return xlsxSheetGrids(content);
+  } catch {
+    // Outside the fast reader's plain subset, or damaged: the general reader decides.
+    return readWithObjectModel(content);
+  }
+}
+
+/** The general reader: exceljs's full workbook model, slower and larger but complete. */
+export async function readWithObjectModel(content: Uint8Array): Promise<SheetGrid[]> {
   const workbook = new ExcelJS.Workbook();
   try {
     await workbook.xlsx.load(Buffer.from(content) as unknown as ExcelJS.Buffer);

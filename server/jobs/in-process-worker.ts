@@ -18,10 +18,16 @@ export function startInProcessRenderWorker(database: DatabaseHandle, connectionS
     queue: openRenderQueue({ config, connectionString, supervise: true }),
     storage: reportStorage(config.reportsDir),
     renderer: createRenderPipeline(),
-  }).catch((error: Error) => {
-    console.error(`[render-worker] could not start: ${error.message}`);
-    return null;
-  });
+  }).then(
+    (worker) => {
+      console.log(`[render-worker] rendering reports in this process into ${config.reportsDir}`);
+      return worker;
+    },
+    (error: Error) => {
+      console.error(`[render-worker] could not start: ${error.message}`);
+      return null;
+    },
+  );
   return {
     async close() {
       const worker = await starting;

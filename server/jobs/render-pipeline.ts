@@ -1,21 +1,26 @@
-import type { TopLevelSpec } from 'vega-lite';
 import { analysisFigures } from '../../shared/figures/analysis-figures.ts';
-import { renderSvg } from '../figures/render-svg.ts';
+import { FigureRenderError } from '../figures/render-svg.ts';
 import { BrowserPool } from '../pdf/browser-pool.ts';
-import { printPdf } from '../pdf/print-pdf.ts';
-import { buildReportContext } from '../reports/report-context.ts';
-import { compileReportTemplate, TemplateError } from '../reports/template-engine.ts';
-import type { FigureMarkup } from '../reports/template-helpers.ts';
-import { RenderFailure, type RenderedReport, type RenderRequest, type ReportRenderer } from './report-renderer.ts';
+import { renderReportPdf, reportFigures } from '../reports/render-report.ts';
+import { buildReportContext, type ReportContext } from '../reports/report-context.ts';
+import { TemplateError } from '../reports/template-engine.ts';
+import {
+  type RenderedReport,
+  RenderFailure,
+  type RenderRequest,
+  type ReportRenderer,
+} from './report-renderer.ts';
 
 /**
- * The real render pipeline behind the job: the analysis screen's Vega-Lite figures drawn to SVG
- * on the server, the template filled with `buildReportContext`, and the HTML printed by a warm
- * Chromium from `BrowserPool` (`RENDER_BROWSERS` browsers, default 1).
+ * The real render pipeline behind the job: the records of one report version become the
+ * template's context (`buildReportContext`), and `renderReportPdf` draws the figures, fills the
+ * template and prints it in a warm Chromium from a `BrowserPool` (`RENDER_BROWSERS` browsers,
+ * default 1, restarted if one dies).
  *
- * Failures are sorted for the queue: a template that cannot be filled in with this analysis, or
- * a figure that cannot be drawn, will fail the same way every time (permanent); a browser that
- * cannot start or print may work on the next attempt (retried).
+ * Failures are sorted for the queue: a template that cannot be filled in with this analysis, a
+ * figure that cannot be drawn or a run without a result fails the same way every time
+ * (permanent, the version fails at once with the reason); a browser that cannot start or print
+ * may work on the next attempt (retried).
  */
 
 const PAPER = { a4: 'A4', letter: 'Letter' } as const;
@@ -24,26 +29,28 @@ export function createRenderPipeline(options: { browsers?: number } = {}): Repor
   const pool = new BrowserPool({ size: options.browsers ?? Number(process.env.RENDER_BROWSERS ?? 1) });
   return {
     async render(request: RenderRequest): Promise<RenderedReport> {
-      const html = await reportHtml(request);
+      const { context, figures } = reportInput(request);
       try {
-        const printed = await printPdf(pool, {
-          html,
+        const printed = await renderReportPdf(pool, {
+          template: request.template.source,
+          context,
+          figures,
           paper: PAPER[request.version.paperSize],
-          header: {
-            reportNumber: request.report.reportNumber,
-            version: request.version.versionNumber,
-            organisation: request.organisation.name,
-          },
-          metadata: {
-            title: `${request.report.reportNumber} v${request.version.versionNumber}: ${request.report.title}`,
-            author: request.report.author.fullName,
-            subject: `Degradation kinetics of ${request.run.study.product} (${request.run.study.attribute})`,
-            keywords: [request.report.reportNumber, request.run.study.product, 'stability', 'kinetics'],
-            createdAt: request.version.createdAt,
-          },
         });
-        return { html, pdf: printed.pdf, pageCount: printed.pageCount };
+        return { html: printed.html, pdf: printed.pdf, pageCount: printed.pageCount };
       } catch (error) {
+        if (error instanceof TemplateError) {
+          throw new RenderFailure(
+            `Template version ${request.template.versionNumber} could not be filled in with analysis ${request.run.id}: ${error.message}`,
+            true,
+            { cause: error },
+          );
+        }
+        if (error instanceof FigureRenderError) {
+          throw new RenderFailure(`A figure of the analysis could not be drawn: ${error.message}`, true, {
+            cause: error,
+          });
+        }
         throw new RenderFailure(`Chromium could not print the report: ${(error as Error).message}`, false, {
           cause: error,
         });
@@ -53,30 +60,18 @@ export function createRenderPipeline(options: { browsers?: number } = {}): Repor
   };
 }
 
-/** The exact HTML of one report version (what is stored and printed). */
-export async function reportHtml(request: RenderRequest): Promise<string> {
+/** The context and figures of one report version, from its records. */
+export function reportInput(request: RenderRequest): {
+  context: ReportContext;
+  figures: ReturnType<typeof analysisFigures>;
+} {
   const { run } = request;
   const limits = {
     ...(run.study.lowerLimit === null ? {} : { lower: run.study.lowerLimit }),
     ...(run.study.upperLimit === null ? {} : { upper: run.study.upperLimit }),
   };
-  const specs = analysisFigures(run.result, run.series, limits);
-  const figures = new Map<string, FigureMarkup>();
   try {
-    for (const [index, figure] of specs.entries()) {
-      const svg = await renderSvg(figure.spec as unknown as TopLevelSpec, {
-        idPrefix: `f${index + 1}`,
-        title: figure.title,
-        description: figure.description,
-      });
-      figures.set(figure.id, { number: index + 1, title: figure.title, description: figure.description, svg });
-    }
-  } catch (error) {
-    throw new RenderFailure(`A figure of the analysis could not be drawn: ${(error as Error).message}`, true, {
-      cause: error,
-    });
-  }
-  try {
+    const figures = reportFigures(analysisFigures(run.result, run.series, limits));
     const context = buildReportContext({
       organisation: { name: request.organisation.name, timeZone: request.organisation.timeZone },
       study: run.study,
@@ -91,7 +86,7 @@ export async function reportHtml(request: RenderRequest): Promise<string> {
         result: run.result,
         series: run.series,
       },
-      figures: specs,
+      figures,
       report: {
         number: request.report.reportNumber,
         version: request.version.versionNumber,
@@ -100,12 +95,10 @@ export async function reportHtml(request: RenderRequest): Promise<string> {
         title: request.report.title,
       },
     });
-    const template = compileReportTemplate(request.template.source);
-    return template.render({ context, figures, paper: PAPER[request.version.paperSize] });
+    return { context, figures };
   } catch (error) {
-    const detail = error instanceof TemplateError ? error.message : (error as Error).message;
     throw new RenderFailure(
-      `Template version ${request.template.versionNumber} could not be filled in with analysis ${run.id}: ${detail}`,
+      `The analysis ${run.id} could not be turned into a report: ${(error as Error).message}`,
       true,
       { cause: error },
     );

@@ -1,6 +1,6 @@
 import { type SQL, sql } from 'drizzle-orm';
-import PgBoss from 'pg-boss';
 import type pg from 'pg';
+import PgBoss from 'pg-boss';
 import type { Executor } from '../db/client.ts';
 import type { RenderConfig } from './render-config.ts';
 

@@ -67,7 +67,9 @@ export async function renderReportVersion(
         renderAttempts: sql`${reportVersions.renderAttempts} + 1`,
         jobId: attempt.jobId,
       })
-      .where(and(eq(reportVersions.id, versionId), inArray(reportVersions.renderStatus, ['queued', 'rendering'])));
+      .where(
+        and(eq(reportVersions.id, versionId), inArray(reportVersions.renderStatus, ['queued', 'rendering'])),
+      );
 
     let request: RenderRequest;
     let rendered: Awaited<ReturnType<ReportRenderer['render']>>;
@@ -179,7 +181,9 @@ async function markFailed(tx: Executor, versionId: number, reason: string, attem
   const [row] = await tx
     .update(reportVersions)
     .set({ renderStatus: 'failed', failureReason: reason, finishedAt: sql`clock_timestamp()` })
-    .where(and(eq(reportVersions.id, versionId), inArray(reportVersions.renderStatus, ['queued', 'rendering'])))
+    .where(
+      and(eq(reportVersions.id, versionId), inArray(reportVersions.renderStatus, ['queued', 'rendering'])),
+    )
     .returning({ reportId: reportVersions.reportId, versionNumber: reportVersions.versionNumber });
   if (!row) return;
   const [report] = await tx.select().from(reports).where(eq(reports.id, row.reportId));
@@ -189,7 +193,12 @@ async function markFailed(tx: Executor, versionId: number, reason: string, attem
     action: 'report-version.render-failed',
     recordType: 'report_version',
     recordId: versionId,
-    after: { reportNumber: report?.reportNumber, versionNumber: row.versionNumber, renderStatus: 'failed', reason },
+    after: {
+      reportNumber: report?.reportNumber,
+      versionNumber: row.versionNumber,
+      renderStatus: 'failed',
+      reason,
+    },
     context: { jobId: attempt.jobId, attempt: attempt.retryCount + 1 },
   });
 }
@@ -203,7 +212,12 @@ function asFailure(error: unknown): RenderFailure {
 /** Everything the pipeline needs for one version, read in the lock's transaction. */
 export async function loadRenderRequest(tx: Executor, versionId: number): Promise<RenderRequest> {
   const [row] = await tx
-    .select({ version: reportVersions, report: reports, organisation: organisations, template: reportTemplateVersions })
+    .select({
+      version: reportVersions,
+      report: reports,
+      organisation: organisations,
+      template: reportTemplateVersions,
+    })
     .from(reportVersions)
     .innerJoin(reports, eq(reports.id, reportVersions.reportId))
     .innerJoin(organisations, eq(organisations.id, reports.organisationId))
@@ -214,17 +228,26 @@ export async function loadRenderRequest(tx: Executor, versionId: number): Promis
     .select({ id: users.id, fullName: users.fullName })
     .from(users)
     .where(inArray(users.id, [row.report.authorId, row.version.requestedBy]));
-  const person = (id: number) => people.find((candidate) => candidate.id === id) ?? { id, fullName: `user ${id}` };
+  const person = (id: number) =>
+    people.find((candidate) => candidate.id === id) ?? { id, fullName: `user ${id}` };
   let run: RenderRequest['run'];
   try {
     run = await getAnalysisRun(tx, row.report.organisationId, row.version.analysisRunId);
   } catch (error) {
-    throw new RenderFailure(`The analysis ${row.version.analysisRunId} of this report could not be read.`, true, {
-      cause: error,
-    });
+    throw new RenderFailure(
+      `The analysis ${row.version.analysisRunId} of this report could not be read.`,
+      true,
+      {
+        cause: error,
+      },
+    );
   }
   return {
-    organisation: { id: row.organisation.id, name: row.organisation.name, timeZone: row.organisation.timeZone },
+    organisation: {
+      id: row.organisation.id,
+      name: row.organisation.name,
+      timeZone: row.organisation.timeZone,
+    },
     report: {
       id: row.report.id,
       reportNumber: row.report.reportNumber,

@@ -1,8 +1,13 @@
 import type PgBoss from 'pg-boss';
 import type { Database } from '../db/client.ts';
 import type { ReportStorage } from '../services/report-storage.ts';
+import {
+  RENDER_DEAD_LETTER_QUEUE,
+  RENDER_QUEUE,
+  type RenderJobData,
+  type RenderQueue,
+} from './render-queue.ts';
 import { failAbandonedVersion, renderReportVersion, sweepIncoming } from './render-report-job.ts';
-import { RENDER_DEAD_LETTER_QUEUE, RENDER_QUEUE, type RenderJobData, type RenderQueue } from './render-queue.ts';
 import type { ReportRenderer } from './report-renderer.ts';
 
 /**
@@ -56,7 +61,9 @@ export async function startRenderWorker(options: RenderWorkerOptions): Promise<R
           retryCount: job.retryCount,
           retryLimit: job.retryLimit,
         });
-        log(`version ${versionId}: ${outcome} in ${Date.now() - started} ms (job ${job.id}, attempt ${job.retryCount + 1})`);
+        log(
+          `version ${versionId}: ${outcome} in ${Date.now() - started} ms (job ${job.id}, attempt ${job.retryCount + 1})`,
+        );
       }
     });
   }

@@ -5,13 +5,14 @@ import {
   analysisOptionsSchema,
   datasetIdParamSchema,
   excludePointRequestSchema,
+  figuresQuerySchema,
   idParamSchema,
   type RunAnalysisResponse,
   runAnalysisRequestSchema,
 } from '../../shared/api/analyses.ts';
 import { requireRole } from '../auth/route-policy.ts';
 import { HttpError } from '../http/http-error.ts';
-import { analysisCsv, analysisWorkbook, exportFileName } from '../services/analysis-export.ts';
+import { analysisCsv, exportFileName, writeAnalysisWorkbook } from '../services/analysis-export.ts';
 import { excludePoint, getAnalysisRun, runAnalysis } from '../services/analysis-runs.ts';
 import { analysisPageModel, runFigures } from '../services/analysis-view.ts';
 import type { AppServices } from '../services/app-services.ts';
@@ -46,9 +47,11 @@ export function analysisRoutes(services: AppServices): Router {
 
   router.get('/api/analyses/:id/figures', requireRole(...READERS), async (req, res) => {
     const { id } = idParamSchema.parse(req.params);
+    const { group } = figuresQuerySchema.parse(req.query);
     const run = await getAnalysisRun(services.db, req.user!.organisationId, id);
+    const figures = runFigures(run);
     const body: AnalysisFiguresResponse = {
-      figures: runFigures(run),
+      figures: group === undefined ? figures : figures.filter((figure) => figure.group === group),
     };
     res.set('cache-control', 'private, max-age=3600, immutable').json(body);
   });
@@ -68,11 +71,10 @@ export function analysisRoutes(services: AppServices): Router {
   router.get('/api/analyses/:id/export.xlsx', requireRole(...READERS), async (req, res) => {
     const { id } = idParamSchema.parse(req.params);
     const run = await getAnalysisRun(services.db, req.user!.organisationId, id);
-    const workbook = await analysisWorkbook(run);
     res
       .type('application/vnd.openxmlformats-officedocument.spreadsheetml.sheet')
-      .attachment(exportFileName(run, 'xlsx'))
-      .send(workbook);
+      .attachment(exportFileName(run, 'xlsx'));
+    await writeAnalysisWorkbook(run, res);
   });
 
   router.get('/api/analyses/:id/export.csv', requireRole(...READERS), async (req, res) => {
@@ -120,7 +122,11 @@ export function analysisRoutes(services: AppServices): Router {
     const body = req.body as Record<string, unknown>;
     try {
       const earlier = await getAnalysisRun(services.db, req.user!.organisationId, id);
-      const [seriesIndex, observationIndex] = String(body.point ?? '').split(':');
+      const point =
+        typeof body.point === 'string' && body.point !== ''
+          ? body.point
+          : `${body.series ?? ''}:${Number(body.observation) - 1}`;
+      const [seriesIndex, observationIndex] = point.split(':');
       const seriesId = earlier.series[Number(seriesIndex)]?.id;
       if (seriesId === undefined || observationIndex === undefined) {
         throw new HttpError(400, 'Choose the point to exclude.', [

@@ -13,7 +13,12 @@ import { HttpError } from '../http/http-error.ts';
 import { parseRenderConfig } from '../jobs/render-config.ts';
 import { openRenderQueue } from '../jobs/render-queue.ts';
 import type { AppServices } from '../services/app-services.ts';
-import { getReportDetail, getVersionOutput, listReports, reportFilterOptions } from '../services/report-history.ts';
+import {
+  getReportDetail,
+  getVersionOutput,
+  listReports,
+  reportFilterOptions,
+} from '../services/report-history.ts';
 import { reportStorage, sha256Hex } from '../services/report-storage.ts';
 import { type CreatedReport, createReport, createReportVersion } from '../services/reports.ts';
 
@@ -58,7 +63,14 @@ export function reportRoutes(services: AppServices): Router {
   router.post('/api/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
     const { runId } = runIdParamSchema.parse(req.params);
     const request = createReportRequestSchema.parse(req.body ?? {});
-    const report = await createReport(services.db, queue, req.user!, runId, request, auditContext(req.ip, req.get('user-agent')));
+    const report = await createReport(
+      services.db,
+      queue,
+      req.user!,
+      runId,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
     res.status(201).location(`/app/reports/${report.reportId}`).json(created(report));
   });
 
@@ -66,14 +78,28 @@ export function reportRoutes(services: AppServices): Router {
   router.post('/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
     const { runId } = runIdParamSchema.parse(req.params);
     const request = createReportRequestSchema.parse(req.body ?? {});
-    const report = await createReport(services.db, queue, req.user!, runId, request, auditContext(req.ip, req.get('user-agent')));
+    const report = await createReport(
+      services.db,
+      queue,
+      req.user!,
+      runId,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
     res.redirect(303, `/app/reports/${report.reportId}`);
   });
 
   router.post('/api/reports/:id/versions', requireRole('analyst'), async (req, res) => {
     const { id } = reportIdParamSchema.parse(req.params);
     const request = createReportVersionRequestSchema.parse(req.body ?? {});
-    const report = await createReportVersion(services.db, queue, req.user!, id, request, auditContext(req.ip, req.get('user-agent')));
+    const report = await createReportVersion(
+      services.db,
+      queue,
+      req.user!,
+      id,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
     res.status(201).json(created(report));
   });
 
@@ -88,20 +114,31 @@ export function reportRoutes(services: AppServices): Router {
 
   router.get('/api/reports/:id', requireRole(...READERS), async (req, res) => {
     const { id } = reportIdParamSchema.parse(req.params);
-    res.set('cache-control', 'no-store').json(await getReportDetail(services.db, req.user!.organisationId, id));
+    res
+      .set('cache-control', 'no-store')
+      .json(await getReportDetail(services.db, req.user!.organisationId, id));
   });
 
   router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), async (req, res) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
     const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
-    if (output.renderStatus !== 'ready' || !output.pdfSha256) throw notReady(output.reportNumber, version, output.renderStatus);
+    if (output.renderStatus !== 'ready' || !output.pdfSha256)
+      throw notReady(output.reportNumber, version, output.renderStatus);
     if (!(await storage.hasPdf(output.pdfSha256))) {
-      throw new HttpError(503, `The PDF of ${output.reportNumber} version ${version} is being stored; try again in a moment.`);
+      throw new HttpError(
+        503,
+        `The PDF of ${output.reportNumber} version ${version} is being stored; try again in a moment.`,
+      );
     }
     const pdf = await storage.readPdf(output.pdfSha256);
     if (sha256Hex(pdf) !== output.pdfSha256) {
-      console.error(`[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`);
-      throw new HttpError(500, 'The stored PDF does not match its record; it has not been sent. Tell your administrator.');
+      console.error(
+        `[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`,
+      );
+      throw new HttpError(
+        500,
+        'The stored PDF does not match its record; it has not been sent. Tell your administrator.',
+      );
     }
     res
       .set({
@@ -116,7 +153,8 @@ export function reportRoutes(services: AppServices): Router {
   router.get('/api/reports/:id/versions/:version/html', requireRole(...READERS), async (req, res) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
     const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
-    if (output.renderStatus !== 'ready' || output.html === null) throw notReady(output.reportNumber, version, output.renderStatus);
+    if (output.renderStatus !== 'ready' || output.html === null)
+      throw notReady(output.reportNumber, version, output.renderStatus);
     res
       .set({
         'content-type': 'text/html; charset=utf-8',

@@ -1,3 +1,4 @@
+import { PassThrough, type Writable } from 'node:stream';
 import ExcelJS from 'exceljs';
 import { type ResultRow, resultRows } from '../../shared/figures/results-table.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
@@ -37,19 +38,65 @@ export function exportFileName(run: AnalysisRunRecord, extension: 'xlsx' | 'csv'
   return `rateledger-analysis-${run.id}-${product}.${extension}`;
 }
 
-function addSheet(
-  workbook: ExcelJS.Workbook,
-  name: string,
-  columns: { header: string; key: string; width?: number }[],
-) {
-  const sheet = workbook.addWorksheet(name, { views: [{ state: 'frozen', ySplit: 1 }] });
-  sheet.columns = columns.map((column) => ({
-    header: column.header,
-    key: column.key,
-    width: column.width ?? 14,
-  }));
-  sheet.getRow(1).font = { bold: true };
-  return sheet;
+interface SheetPlan {
+  name: string;
+  columns: { header: string; key: string; width?: number }[];
+  rows: { values: Record<string, unknown>; style?: Partial<ExcelJS.Style> }[];
+  addRow(values: Record<string, unknown>, style?: Partial<ExcelJS.Style>): void;
+}
+
+/**
+ * The sheets are planned as plain rows first and then streamed out one after the other with
+ * exceljs's streaming writer, which keeps memory flat for a 100 000-row dataset (the in-memory
+ * workbook needs several hundred bytes per cell).
+ */
+function addSheet(plans: SheetPlan[], name: string, columns: SheetPlan['columns']): SheetPlan {
+  const plan: SheetPlan = {
+    name,
+    columns,
+    rows: [],
+    addRow(values, style) {
+      plan.rows.push(style === undefined ? { values } : { values, style });
+    },
+  };
+  plans.push(plan);
+  return plan;
+}
+
+async function streamWorkbook(
+  plans: readonly SheetPlan[],
+  run: AnalysisRunRecord,
+  stream: Writable,
+): Promise<void> {
+  const workbook = new ExcelJS.stream.xlsx.WorkbookWriter({
+    stream,
+    useStyles: true,
+    useSharedStrings: false,
+  });
+  workbook.creator = 'Rateledger';
+  workbook.created = run.runAt;
+  workbook.modified = run.runAt;
+  for (const plan of plans) {
+    const sheet = workbook.addWorksheet(plan.name, { views: [{ state: 'frozen', ySplit: 1 }] });
+    sheet.columns = plan.columns.map((column) => ({
+      header: column.header,
+      key: column.key,
+      width: column.width ?? 14,
+    }));
+    const header = sheet.getRow(1);
+    header.font = { bold: true };
+    header.commit();
+    for (const { values, style } of plan.rows) {
+      const row = sheet.addRow(
+        Object.fromEntries(Object.entries(values).map(([key, value]) => [key, cellValue(value)])),
+      );
+      if (style?.font) row.font = style.font;
+      if (style?.alignment) row.alignment = style.alignment;
+      row.commit();
+    }
+    sheet.commit();
+  }
+  await workbook.commit();
 }
 
 /** Null stays an empty cell; numbers stay numbers. */
@@ -60,12 +107,10 @@ const cellValue = (value: unknown): ExcelJS.CellValue =>
       ? value
       : JSON.stringify(value);
 
-export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> {
+/** Writes the workbook to `stream` (the HTTP response, or a buffer for tests). */
+export async function writeAnalysisWorkbook(run: AnalysisRunRecord, stream: Writable): Promise<void> {
   const { analysis } = run.result;
-  const workbook = new ExcelJS.Workbook();
-  workbook.creator = 'Rateledger';
-  workbook.created = run.runAt;
-  workbook.modified = run.runAt;
+  const workbook: SheetPlan[] = [];
 
   const about = addSheet(workbook, 'About', [
     { header: 'Item', key: 'item', width: 28 },
@@ -275,11 +320,25 @@ export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> 
     { header: 'Method statement', key: 'text', width: 140 },
   ]);
   for (const paragraph of run.methodStatement.split(/\n\n+/))
-    method.addRow({ text: paragraph }).alignment = { wrapText: true, vertical: 'top' };
+    method.addRow({ text: paragraph }, { alignment: { wrapText: true, vertical: 'top' } });
   method.addRow({ text: '' });
-  method.addRow({ text: CAUTION }).font = { italic: true };
+  method.addRow({ text: CAUTION }, { font: { italic: true } });
 
-  return Buffer.from(await workbook.xlsx.writeBuffer());
+  await streamWorkbook(workbook, run, stream);
+}
+
+/** The workbook as one buffer. */
+export async function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> {
+  const chunks: Buffer[] = [];
+  const sink = new PassThrough();
+  sink.on('data', (chunk: Buffer) => chunks.push(chunk));
+  const finished = new Promise<void>((resolve, reject) => {
+    sink.on('end', resolve);
+    sink.on('error', reject);
+  });
+  await writeAnalysisWorkbook(run, sink);
+  await finished;
+  return Buffer.concat(chunks);
 }
 
 /** The inline data of every layer of a spec, depth first (layers, hconcat panels). */

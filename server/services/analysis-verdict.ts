@@ -34,6 +34,7 @@ interface ShelfLifeEntry {
   model: string;
   reason: string;
   beyondData: boolean;
+  limiting: string | null;
   accelerated: boolean;
   cell: NumberCell;
 }
@@ -54,7 +55,7 @@ export function verdictSummary(
   for (const entry of shelfLife) {
     if (entry.accelerated || !entry.cell.value) continue;
     summary.push(
-      `Shelf life at ${entry.condition} (ICH Q1E, ${entry.scale}, ${entry.model}): ${entry.cell.text} ${entry.cell.unit}${entry.beyondData ? ', beyond the observed data' : ''}.`,
+      `Shelf life at ${entry.condition} (ICH Q1E, ${entry.scale}, ${entry.model}): ${entry.cell.text} ${entry.cell.unit}${entry.limiting ? `, limited by ${entry.limiting}` : ''}${entry.beyondData ? ', beyond the observed data' : ''}.`,
     );
   }
   for (const entry of shelfLife) {

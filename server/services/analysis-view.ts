@@ -67,6 +67,9 @@ function numberCell(row: ResultRow | undefined): NumberCell {
   };
 }
 
+/** Above this many observations the point is chosen by series and number, not from one long list. */
+export const MAX_LISTED_POINTS = 1500;
+
 export interface FormState {
   problems: { field: string; message: string }[];
   point: string;
@@ -84,7 +87,9 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
   const figureIds = new Set(figures.map((figure) => figure.id));
   const figure = (id: string) => {
     const found = figures.find((candidate) => candidate.id === id);
-    return found ? { id: found.id, title: found.title, description: found.description } : null;
+    return found
+      ? { id: found.id, title: found.title, description: found.description, group: found.group }
+      : null;
   };
   const study = run.study;
   const limits = [
@@ -212,13 +217,16 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         condition.temperatureC !== null &&
         condition.temperatureC !== study.storageTemperatureC,
       beyondData: result?.extrapolation.beyondObservedData === true,
+      limiting: result?.limitingLine ?? null,
       figure: figureIds.has(figureId) ? figure(figureId) : null,
     };
   });
 
   const summary = verdictSummary(analysis, shelfLife, arrheniusModel, options.order);
   const warningGroups = groupedWarnings(analysis);
-  const points = run.series.map((entry, seriesIndex) => ({
+  const pointCount = run.series.reduce((sum, entry) => sum + entry.observations.length, 0);
+  const compactPicker = pointCount > MAX_LISTED_POINTS;
+  const points = (compactPicker ? [] : run.series).map((entry, seriesIndex) => ({
     label: entry.id,
     options: entry.observations.map((observation, index) => ({
       value: `${seriesIndex}:${index}`,
@@ -300,6 +308,12 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     },
     exclusionForm: {
       points,
+      compactPicker,
+      series: run.series.map((entry, index) => ({
+        value: String(index),
+        label: `${entry.id} (${entry.observations.length} points)`,
+        selected: form?.point.startsWith(`${index}:`) ?? false,
+      })),
       reason: form?.reason ?? '',
       minReason: MIN_EXCLUSION_REASON_LENGTH,
       pointProblem: problem('observationIndex') || problem('seriesId') || problem('point'),

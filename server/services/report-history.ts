@@ -98,7 +98,10 @@ export async function listReports(
 }
 
 /** Studies and authors that have reports, for the list's drop-downs. */
-export async function reportFilterOptions(db: Executor, organisationId: number): Promise<ReportFilterOptions> {
+export async function reportFilterOptions(
+  db: Executor,
+  organisationId: number,
+): Promise<ReportFilterOptions> {
   const studyRows = await db
     .selectDistinct({ id: studies.id, title: studies.title })
     .from(reports)
@@ -115,9 +118,17 @@ export async function reportFilterOptions(db: Executor, organisationId: number):
 }
 
 /** One report with every version and its state; 404 outside the organisation. */
-export async function getReportDetail(db: Executor, organisationId: number, reportId: number): Promise<ReportDetail> {
+export async function getReportDetail(
+  db: Executor,
+  organisationId: number,
+  reportId: number,
+): Promise<ReportDetail> {
   const [row] = await db
-    .select({ report: reports, study: { id: studies.id, title: studies.title, product: studies.product }, author: { id: users.id, fullName: users.fullName } })
+    .select({
+      report: reports,
+      study: { id: studies.id, title: studies.title, product: studies.product },
+      author: { id: users.id, fullName: users.fullName },
+    })
     .from(reports)
     .innerJoin(studies, eq(studies.id, reports.studyId))
     .innerJoin(users, eq(users.id, reports.authorId))

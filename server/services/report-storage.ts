@@ -27,7 +27,10 @@ const INCOMING_NAME = /^version-(\d+)\.pdf$/;
 export type PromoteOutcome = 'moved' | 'already-stored';
 
 export class StoredPdfMissingError extends Error {
-  constructor(readonly versionId: number, readonly sha256: string) {
+  constructor(
+    readonly versionId: number,
+    readonly sha256: string,
+  ) {
     super(`The PDF of report version ${versionId} (SHA-256 ${sha256}) is not in the report store.`);
     this.name = 'StoredPdfMissingError';
   }

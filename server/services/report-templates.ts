@@ -4,8 +4,8 @@ import { appendAuditEvent } from '../audit/audit-trail.ts';
 import type { Database, Executor } from '../db/client.ts';
 import { reportTemplates, reportTemplateVersions } from '../db/schema/index.ts';
 import { HttpError } from '../http/http-error.ts';
-import { checkReportTemplate, type ReportTemplateSource } from '../reports/template-engine.ts';
 import { DEFAULT_TEMPLATE_DIR, loadDefaultTemplate } from '../reports/template-default.ts';
+import { checkReportTemplate, type ReportTemplateSource } from '../reports/template-engine.ts';
 
 /**
  * Report templates of an organisation: immutable numbered versions, and a published pointer per
@@ -46,7 +46,13 @@ export function versionSource(version: TemplateVersion): ReportTemplateSource {
  */
 export async function createTemplateVersion(
   db: Executor,
-  input: { organisationId: number; templateId: number; source: ReportTemplateSource; note: string; actor: TemplateActor },
+  input: {
+    organisationId: number;
+    templateId: number;
+    source: ReportTemplateSource;
+    note: string;
+    actor: TemplateActor;
+  },
 ): Promise<TemplateVersion> {
   const problems = checkReportTemplate(input.source);
   if (problems.length > 0) {
@@ -55,7 +61,10 @@ export async function createTemplateVersion(
       `The template has ${problems.length} problem${problems.length === 1 ? '' : 's'}; nothing was stored.`,
       problems.map((problem) => ({
         field: problem.part,
-        message: problem.line === null ? problem.message : `line ${problem.line}, column ${problem.column}: ${problem.message}`,
+        message:
+          problem.line === null
+            ? problem.message
+            : `line ${problem.line}, column ${problem.column}: ${problem.message}`,
       })),
     );
   }
@@ -63,9 +72,15 @@ export async function createTemplateVersion(
     const [template] = await tx
       .select()
       .from(reportTemplates)
-      .where(and(eq(reportTemplates.id, input.templateId), eq(reportTemplates.organisationId, input.organisationId)))
+      .where(
+        and(
+          eq(reportTemplates.id, input.templateId),
+          eq(reportTemplates.organisationId, input.organisationId),
+        ),
+      )
       .for('update');
-    if (!template) throw new HttpError(404, `There is no report template ${input.templateId} in your organisation.`);
+    if (!template)
+      throw new HttpError(404, `There is no report template ${input.templateId} in your organisation.`);
     const [last] = await tx
       .select({ number: max(reportTemplateVersions.versionNumber) })
       .from(reportTemplateVersions)
@@ -90,7 +105,13 @@ export async function createTemplateVersion(
       action: 'report-template.version-created',
       recordType: 'report_template_version',
       recordId: version!.id,
-      after: { templateId: template.id, name: template.name, versionNumber: version!.versionNumber, sha256: version!.sha256, note: input.note },
+      after: {
+        templateId: template.id,
+        name: template.name,
+        versionNumber: version!.versionNumber,
+        sha256: version!.sha256,
+        note: input.note,
+      },
     });
     return version!;
   });
@@ -105,13 +126,24 @@ export async function publishTemplateVersion(
     const [template] = await tx
       .select()
       .from(reportTemplates)
-      .where(and(eq(reportTemplates.id, input.templateId), eq(reportTemplates.organisationId, input.organisationId)))
+      .where(
+        and(
+          eq(reportTemplates.id, input.templateId),
+          eq(reportTemplates.organisationId, input.organisationId),
+        ),
+      )
       .for('update');
-    if (!template) throw new HttpError(404, `There is no report template ${input.templateId} in your organisation.`);
+    if (!template)
+      throw new HttpError(404, `There is no report template ${input.templateId} in your organisation.`);
     const [version] = await tx
       .select()
       .from(reportTemplateVersions)
-      .where(and(eq(reportTemplateVersions.id, input.versionId), eq(reportTemplateVersions.templateId, template.id)));
+      .where(
+        and(
+          eq(reportTemplateVersions.id, input.versionId),
+          eq(reportTemplateVersions.templateId, template.id),
+        ),
+      );
     if (!version) throw new HttpError(404, `Template "${template.name}" has no version ${input.versionId}.`);
     if (template.publishedVersionId === version.id) return;
     const before = template.publishedVersionId;
@@ -142,7 +174,10 @@ export async function createTemplate(tx: Executor, organisationId: number, name:
  * The template version new reports of the organisation use; installs the shipped default as
  * version 1, published, when the organisation has none yet. Call inside the creating transaction.
  */
-export async function templateVersionForNewReports(tx: Executor, organisationId: number): Promise<TemplateVersion> {
+export async function templateVersionForNewReports(
+  tx: Executor,
+  organisationId: number,
+): Promise<TemplateVersion> {
   const found = await publishedVersion(tx, organisationId);
   if (found) return found;
   await tx.execute(sql`select pg_advisory_xact_lock(${TEMPLATE_LOCK}, ${organisationId})`);
@@ -153,13 +188,22 @@ export async function templateVersionForNewReports(tx: Executor, organisationId:
 }
 
 /** Installs `templates/default/` as a published version 1 (the seed and first use call it). */
-export async function installDefaultTemplate(tx: Executor, organisationId: number, dir = DEFAULT_TEMPLATE_DIR) {
+export async function installDefaultTemplate(
+  tx: Executor,
+  organisationId: number,
+  dir = DEFAULT_TEMPLATE_DIR,
+) {
   const source = loadDefaultTemplate(dir);
   const actor = { userId: null, label: SYSTEM_ACTOR };
   const [existing] = await tx
     .select()
     .from(reportTemplates)
-    .where(and(eq(reportTemplates.organisationId, organisationId), eq(reportTemplates.name, DEFAULT_TEMPLATE_NAME)));
+    .where(
+      and(
+        eq(reportTemplates.organisationId, organisationId),
+        eq(reportTemplates.name, DEFAULT_TEMPLATE_NAME),
+      ),
+    );
   const template = existing ?? (await createTemplate(tx, organisationId, DEFAULT_TEMPLATE_NAME));
   const version = await createTemplateVersion(tx, {
     organisationId,
@@ -177,7 +221,9 @@ async function publishedVersion(tx: Executor, organisationId: number): Promise<T
     .select({ version: reportTemplateVersions })
     .from(reportTemplates)
     .innerJoin(reportTemplateVersions, eq(reportTemplateVersions.id, reportTemplates.publishedVersionId))
-    .where(and(eq(reportTemplates.organisationId, organisationId), isNotNull(reportTemplates.publishedVersionId)))
+    .where(
+      and(eq(reportTemplates.organisationId, organisationId), isNotNull(reportTemplates.publishedVersionId)),
+    )
     .orderBy(desc(reportTemplates.updatedAt), desc(reportTemplates.id))
     .limit(1);
   return row?.version;

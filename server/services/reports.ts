@@ -46,12 +46,13 @@ export async function allocateReportNumber(tx: Executor, organisationId: number)
     .where(eq(organisations.id, organisationId));
   if (!clock) throw new HttpError(404, 'Your organisation was not found.');
   const prefix = `${REPORT_NUMBER_PREFIX}-${clock.year}-`;
+  const start = prefix.length + 1;
   const [last] = await tx
-    .select({
-      sequence: sql<number | null>`max(substring(${reports.reportNumber} from ${prefix.length + 1})::int)`,
-    })
+    .select({ sequence: sql<number | null>`max(substring(${reports.reportNumber} from ${start}::int)::int)` })
     .from(reports)
-    .where(and(eq(reports.organisationId, organisationId), sql`${reports.reportNumber} like ${`${prefix}%`}`));
+    .where(
+      and(eq(reports.organisationId, organisationId), sql`${reports.reportNumber} like ${`${prefix}%`}`),
+    );
   const next = (last?.sequence ?? 0) + 1;
   return `${prefix}${String(next).padStart(SEQUENCE_DIGITS, '0')}`;
 }
@@ -134,9 +135,11 @@ export async function createReportVersion(
     const runId = input.analysisRunId ?? latest?.analysisRunId ?? report.analysisRunId;
     const run = await getAnalysisRun(tx, actor.organisationId, runId);
     if (run.studyId !== report.studyId) {
-      throw new HttpError(409, `Analysis ${runId} belongs to another study than report ${report.reportNumber}.`, [
-        { field: 'analysisRunId', message: 'Choose an analysis of the same study.' },
-      ]);
+      throw new HttpError(
+        409,
+        `Analysis ${runId} belongs to another study than report ${report.reportNumber}.`,
+        [{ field: 'analysisRunId', message: 'Choose an analysis of the same study.' }],
+      );
     }
     const [last] = await tx
       .select({ number: max(reportVersions.versionNumber) })

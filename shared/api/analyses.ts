@@ -79,9 +79,18 @@ export const analysisFigureSchema = z.object({
   id: z.string(),
   title: z.string(),
   description: z.string(),
+  group: z.string(),
   spec: z.record(z.string(), z.unknown()),
 });
 export type AnalysisFigure = z.infer<typeof analysisFigureSchema>;
+
+/** GET /api/analyses/:id/figures?group=series-N|dataset (all figures without a group). */
+export const figuresQuerySchema = z.object({
+  group: z
+    .string()
+    .regex(/^(series-\d+|dataset)$/)
+    .optional(),
+});
 
 /** GET /api/analyses/:id/figures */
 export const analysisFiguresResponseSchema = z.object({ figures: z.array(analysisFigureSchema) });

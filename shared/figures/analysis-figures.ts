@@ -13,6 +13,8 @@ export interface FigureSpec {
   description: string;
   /** The series it belongs to, or null for the dataset figures (Arrhenius, Q1E). */
   seriesId: string | null;
+  /** 'series-N' (N = index in the analysis) or 'dataset': the screen loads one group at a time. */
+  group: string;
   spec: Record<string, unknown>;
 }
 
@@ -48,6 +50,7 @@ export function analysisFigures(
       title: `${result.id}: straight-line plots`,
       description: String(linearised.description),
       seriesId: result.id,
+      group: figureId,
       spec: linearised,
     });
     const band = stored.confidenceBands.find((candidate) => candidate.seriesId === result.id);
@@ -57,6 +60,7 @@ export function analysisFigures(
       title: `${result.id}: data and fitted curves`,
       description: String(curves.description),
       seriesId: result.id,
+      group: figureId,
       spec: curves,
     });
     const residuals = residualPlotSpec(result.analysis, series);
@@ -66,6 +70,7 @@ export function analysisFigures(
         title: `${result.id}: residuals`,
         description: String(residuals.description),
         seriesId: result.id,
+        group: figureId,
         spec: residuals,
       });
     }
@@ -77,6 +82,7 @@ export function analysisFigures(
       title: 'Arrhenius plot',
       description: String(arrhenius.description),
       seriesId: null,
+      group: 'dataset',
       spec: arrhenius,
     });
   }
@@ -92,6 +98,7 @@ export function analysisFigures(
       title: `Q1E shelf life${condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`}`,
       description: String(spec.description),
       seriesId: null,
+      group: 'dataset',
       spec,
     });
   }

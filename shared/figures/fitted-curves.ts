@@ -10,6 +10,7 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
+import { plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 import type { ConfidenceBand } from './stored-result.ts';
 
@@ -59,11 +60,12 @@ export function fittedCurvesSpec(
     const name = Object.entries(MODEL_NAMES).find(([, words]) => label.startsWith(words))?.[0] ?? '1';
     return MODEL_COLOURS[name] ?? PALETTE.ledger;
   });
-  const points = series.observations.map((observation) => ({
+  const sample = plotSample(series.observations, (observation) => observation.excluded !== undefined);
+  const points = sample.points.map((observation) => ({
     time: observation.time,
     value: observation.value,
     status: observation.excluded ? 'excluded' : 'used',
-    reason: observation.excluded?.reason ?? '',
+    reason: observation.excluded?.reason ?? '—',
   }));
   const bandValues = (band?.points ?? []).filter((point) => point.lower !== null && point.upper !== null);
   const percent = Math.round((band?.confidenceLevel ?? analysis.confidenceLevel) * 100);
@@ -147,9 +149,11 @@ export function fittedCurvesSpec(
     height: 300,
     title: {
       text: 'Data and fitted curves',
-      subtitle: band
-        ? `Shaded: ${percent} % confidence band of the ${MODEL_NAMES[String(band.order)]} curve`
-        : 'No confidence band (no law chosen)',
+      subtitle: `${
+        band
+          ? `Shaded: ${percent} % confidence band of the ${MODEL_NAMES[String(band.order)]} curve`
+          : 'No confidence band (no law chosen)'
+      }${sampleNote(sample)}`,
     },
     layer: layers,
     resolve: { scale: { color: 'independent', shape: 'independent' } },

@@ -8,6 +8,7 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
+import { plotSample, sampleNote } from './plot-sample.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -42,7 +43,8 @@ const TRANSFORMS = [
 ] as const;
 
 export function linearisedPlotsSpec(analysis: SeriesAnalysis, series: Series): Record<string, unknown> {
-  const used = series.observations.filter((observation) => observation.excluded === undefined);
+  const sample = plotSample(series.observations.filter((observation) => observation.excluded === undefined));
+  const used = sample.points;
   const [start, end] = analysis.timeSpan;
   const panels = TRANSFORMS.map((entry, order) => {
     const line = analysis.linearized.find((candidate) => candidate.transform === entry.transform);
@@ -97,7 +99,7 @@ export function linearisedPlotsSpec(analysis: SeriesAnalysis, series: Series): R
   });
   return {
     $schema: VEGA_LITE_SCHEMA,
-    description: `Straight-line plots of value, ln(value) and 1/value against time for ${series.id}.`,
+    description: `Straight-line plots of value, ln(value) and 1/value against time for ${series.id}${sampleNote(sample)}.`,
     config: FIGURE_CONFIG,
     hconcat: panels,
     spacing: 24,

@@ -8,6 +8,7 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
+import { plotSample, sampleNote } from './plot-sample.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -37,11 +38,19 @@ export function q1ePlotSpec(
   const members = seriesList.filter((series) => condition.seriesIds.includes(series.id));
   const timeUnit = members[0]?.timeUnit ?? '';
   const valueUnit = members[0]?.valueUnit ?? '';
-  const observations = members.flatMap((series) =>
-    series.observations
-      .filter((observation) => observation.excluded === undefined)
-      .map((observation) => ({ time: observation.time, value: observation.value, group: series.id })),
+  const samples = members.map((series) => ({
+    series,
+    sample: plotSample(series.observations.filter((observation) => observation.excluded === undefined)),
+  }));
+  const observations = samples.flatMap(({ series, sample }) =>
+    sample.points.map((observation) => ({
+      time: observation.time,
+      value: observation.value,
+      group: series.id,
+    })),
   );
+  const shown = samples.reduce((sum, { sample }) => sum + sample.shown, 0);
+  const total = samples.reduce((sum, { sample }) => sum + sample.total, 0);
   const curves = result.lines.flatMap((line) =>
     line.grid.flatMap((point) => [
       ...(point.mean === null
@@ -168,7 +177,7 @@ export function q1ePlotSpec(
     height: 300,
     title: {
       text: `Q1E shelf life${where}`,
-      subtitle: `${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}; dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion`,
+      subtitle: `${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}; dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion${sampleNote({ shown, total })}`,
     },
     layer: layers,
   };

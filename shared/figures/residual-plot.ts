@@ -1,6 +1,7 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import type { Series } from '../kinetics/types.ts';
 import { FIGURE_CONFIG, PALETTE, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import { plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 
 /**
@@ -21,11 +22,13 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
   const diagnostics = analysis.diagnostics;
   if (!diagnostics) return null;
   const outliers = new Set(diagnostics.possibleOutliers);
-  const points = diagnostics.points.map((point, index) => ({
+  const indexed = diagnostics.points.map((point, index) => ({ point, outlier: outliers.has(index) }));
+  const sample = plotSample(indexed, (entry) => entry.outlier);
+  const points = sample.points.map(({ point, outlier }) => ({
     time: point.time,
     residual: point.residual,
     studentised: point.externallyStudentised,
-    flag: outliers.has(index) ? 'possible outlier' : 'within threshold',
+    flag: outlier ? 'possible outlier' : 'within threshold',
   }));
   const scale = analysis.errorModel === 'proportional' ? 'ln scale' : series.valueUnit;
   return {
@@ -36,7 +39,7 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
     height: 180,
     title: {
       text: 'Residuals against time',
-      subtitle: `${MODEL_NAMES[String(diagnostics.model)]} fit; red: |studentised residual| > ${diagnostics.outlierThreshold}`,
+      subtitle: `${MODEL_NAMES[String(diagnostics.model)]} fit; red: |studentised residual| > ${diagnostics.outlierThreshold}${sampleNote(sample)}`,
     },
     layer: [
       {

@@ -13,13 +13,19 @@
  * `{ rowIndex, time: 3, value: 98.7, seriesLabel: 'B-01', ... }`.
  */
 import { toCelsius } from '../kinetics/units.ts';
-import { cellReference } from './cell-reference.ts';
+import { columnLetter, sheetPrefix } from './cell-reference.ts';
 import type { ColumnMapping } from './column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
 import { parseDateCell } from './parse-date-cell.ts';
 import { FORMULA_WITHOUT_VALUE_REASON, parseNumberCell } from './parse-number-cell.ts';
 import { cellText } from './resolve-column.ts';
-import { type GridCell, isBlankCell, isFormulaWithoutValue, type SheetGrid } from './sheet-grid.ts';
+import {
+  type GridCell,
+  isBlankCell,
+  isFormulaWithoutValue,
+  type MergedRange,
+  type SheetGrid,
+} from './sheet-grid.ts';
 
 export interface MappedColumns {
   time: number;
@@ -47,12 +53,26 @@ export interface DataRowsResult {
   warnings: IntakeProblem[];
 }
 
-function cellAt(sheet: SheetGrid, rowIndex: number, column: number): GridCell | undefined {
-  const merge = sheet.merges?.find(
-    (range) =>
-      range.top <= rowIndex && rowIndex <= range.bottom && range.left <= column && column <= range.right,
+/** Merged blocks that cover one of the mapped columns; the only ones a mapped cell can be in. */
+function mergesOnColumns(sheet: SheetGrid, columns: readonly number[]): MergedRange[] {
+  return (sheet.merges ?? []).filter((range) =>
+    columns.some((column) => range.left <= column && column <= range.right),
   );
-  if (merge) return sheet.rows[merge.top]?.[merge.left];
+}
+
+function cellAt(
+  sheet: SheetGrid,
+  merges: readonly MergedRange[],
+  rowIndex: number,
+  column: number,
+): GridCell | undefined {
+  if (merges.length > 0) {
+    const merge = merges.find(
+      (range) =>
+        range.top <= rowIndex && rowIndex <= range.bottom && range.left <= column && column <= range.right,
+    );
+    if (merge) return sheet.rows[merge.top]?.[merge.left];
+  }
   return sheet.rows[rowIndex]?.[column];
 }
 
@@ -64,20 +84,48 @@ export function readDataRows(
   const rows: DataRow[] = [];
   const problems: IntakeProblem[] = [];
   const warnings: IntakeProblem[] = [];
-  const reference = (rowIndex: number, column: number) => cellReference(sheet.name, rowIndex, column);
   const mapped = Object.values(columns).filter((column): column is number => column !== undefined);
+  const merges = mergesOnColumns(sheet, mapped);
+  // References are built from the sheet prefix and column letters worked out once: a 100,000-row
+  // sheet needs two per row (the same text `cellReference` gives).
+  const prefix = `${sheetPrefix(sheet.name)}!`;
+  const letters = new Map(mapped.map((column) => [column, columnLetter(column)]));
+  const reference = (rowIndex: number, column: number) =>
+    `${prefix}${letters.get(column) ?? columnLetter(column)}${rowIndex + 1}`;
+  const datetime = mapping.timeFormat === 'datetime';
+  const lowestTemperature = mapping.temperatureUnit === 'K' ? 0 : -273.15;
+  const temperatureSymbol = mapping.temperatureUnit === 'K' ? 'K' : '°C';
+  let rowProblems: IntakeProblem[] = [];
+  let rowIndex = 0;
+  const cell = (column: number) => cellAt(sheet, merges, rowIndex, column);
+  const report = (column: number, message: string) =>
+    rowProblems.push(intakeProblem(reference(rowIndex, column), message));
+  const label = (column: number | undefined, what: string): string | undefined => {
+    if (column === undefined) return undefined;
+    const content = cell(column);
+    if (isFormulaWithoutValue(content)) {
+      report(column, FORMULA_WITHOUT_VALUE_REASON);
+      return undefined;
+    }
+    const text = cellText(content);
+    if (text === '') report(column, `no ${what} given`);
+    return text;
+  };
 
-  for (let rowIndex = Math.max(mapping.headerRow, 0); rowIndex < sheet.rows.length; rowIndex += 1) {
-    const cell = (column: number) => cellAt(sheet, rowIndex, column);
-    if (mapped.every((column) => isBlankCell(cell(column)))) continue;
-    const rowProblems: IntakeProblem[] = [];
-    const report = (column: number, message: string) =>
-      rowProblems.push(intakeProblem(reference(rowIndex, column), message));
+  for (rowIndex = Math.max(mapping.headerRow, 0); rowIndex < sheet.rows.length; rowIndex += 1) {
+    let blank = true;
+    for (const column of mapped) {
+      if (!isBlankCell(cell(column))) {
+        blank = false;
+        break;
+      }
+    }
+    if (blank) continue;
+    if (rowProblems.length > 0) rowProblems = [];
 
     const timeCell = cell(columns.time);
     const valueCell = cell(columns.value);
-    const timeResult =
-      mapping.timeFormat === 'datetime' ? parseDateCell(timeCell) : parseNumberCell(timeCell);
+    const timeResult = datetime ? parseDateCell(timeCell) : parseNumberCell(timeCell);
     const valueResult = parseNumberCell(valueCell);
     if (!valueResult.ok && valueResult.blank && timeResult.ok) {
       warnings.push(intakeProblem(reference(rowIndex, columns.value), 'no value; row skipped'));
@@ -97,17 +145,6 @@ export function readDataRows(
     }
     if (!valueResult.ok) report(columns.value, valueResult.reason);
 
-    const label = (column: number | undefined, what: string): string | undefined => {
-      if (column === undefined) return undefined;
-      const content = cell(column);
-      if (isFormulaWithoutValue(content)) {
-        report(column, FORMULA_WITHOUT_VALUE_REASON);
-        return undefined;
-      }
-      const text = cellText(content);
-      if (text === '') report(column, `no ${what} given`);
-      return text;
-    };
     const seriesLabel = label(columns.series, 'batch name');
     const replicateLabel = label(columns.replicate, 'replicate label');
 
@@ -116,11 +153,8 @@ export function readDataRows(
       const temperature = parseNumberCell(cell(columns.temperature));
       if (!temperature.ok) {
         report(columns.temperature, temperature.blank ? 'no temperature given' : temperature.reason);
-      } else if (temperature.value < (mapping.temperatureUnit === 'K' ? 0 : -273.15)) {
-        report(
-          columns.temperature,
-          `${temperature.value} ${mapping.temperatureUnit === 'K' ? 'K' : '°C'} is below absolute zero`,
-        );
+      } else if (temperature.value < lowestTemperature) {
+        report(columns.temperature, `${temperature.value} ${temperatureSymbol} is below absolute zero`);
       } else {
         temperatureC = toCelsius(temperature.value, mapping.temperatureUnit);
       }
@@ -130,16 +164,17 @@ export function readDataRows(
       problems.push(...rowProblems);
       continue;
     }
-    rows.push({
+    const row: DataRow = {
       rowIndex,
       time: timeResult.value,
       value: valueResult.value,
       valueCell: reference(rowIndex, columns.value),
       timeCell: reference(rowIndex, columns.time),
-      ...(seriesLabel !== undefined ? { seriesLabel } : {}),
-      ...(temperatureC !== undefined ? { temperatureC } : {}),
-      ...(replicateLabel !== undefined ? { replicateLabel } : {}),
-    });
+    };
+    if (seriesLabel !== undefined) row.seriesLabel = seriesLabel;
+    if (temperatureC !== undefined) row.temperatureC = temperatureC;
+    if (replicateLabel !== undefined) row.replicateLabel = replicateLabel;
+    rows.push(row);
   }
   return { rows, problems, warnings };
 }

@@ -217,7 +217,7 @@ export function methodStatement(
     `Data. ${seriesEntries.length} series, ${pointsUsed} points used; ` +
     (excludedPoints.length === 0
       ? 'none excluded.'
-      : `${excludedPoints.length} excluded: ${excludedPoints.map((point) => `${point.seriesId} at time ${point.time} (value ${point.value}${point.cell ? `, ${point.cell}` : ''}): ${point.reason}`).join('; ')}.`) +
+      : `${excludedPoints.length} excluded: ${excludedPoints.map((point) => `${point.seriesId} at time ${point.time} (value ${point.value}${point.cell ? `, ${point.cell}` : ''}): ${point.reason.replace(/[.;\s]+$/, '')}`).join('; ')}.`) +
     (notAnalysed.length === 0
       ? ''
       : ` Not analysed: ${notAnalysed.map((entry) => `${entry.id} (${entry.notAnalysedReason})`).join('; ')}.`);

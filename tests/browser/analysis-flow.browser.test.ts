@@ -115,6 +115,12 @@ describe('from a new study to a recorded analysis in Chromium', () => {
       'lower limit 95',
     );
     await shot(page, 'analysis-flow-2-analysis.png');
+    // Tooltips work under the strict CSP (no injected <style>, styled by the bundled stylesheet).
+    await page
+      .locator('[data-figure-id="series-0-curves"] svg g.mark-symbol path')
+      .nth(2)
+      .hover({ force: true });
+    await expect.poll(() => page.locator('#vg-tooltip-element.visible').textContent()).toContain('value');
 
     // Fix first order (as shelf-life work does), so every derived figure is reported.
     await page.getByLabel('Reaction order').selectOption('1');
@@ -154,6 +160,7 @@ describe('from a new study to a recorded analysis in Chromium', () => {
     await expect.poll(() => page.locator('#exclusions').textContent()).toContain('DV-BT-1');
     await page.goto(firstOrderUrl);
     await page.getByText('Superseded', { exact: true }).waitFor();
+    await drawAllFigures(page, 5);
     await shot(page, 'analysis-flow-4-superseded.png');
 
     expect(problems).toEqual([]);

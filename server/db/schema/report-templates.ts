@@ -17,7 +17,9 @@ export const reportTemplates = pgTable(
       .references(() => organisations.id),
     name: text('name').notNull(),
     /** The version new reports are rendered with; null until one is published. */
-    publishedVersionId: integer('published_version_id').references((): AnyPgColumn => reportTemplateVersions.id),
+    publishedVersionId: integer('published_version_id').references(
+      (): AnyPgColumn => reportTemplateVersions.id,
+    ),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },

@@ -1,5 +1,8 @@
 import { lineMeanAt, type StabilityLine } from './stability-line.ts';
 
+/** Numbers in sentences: four significant figures, as the figures are printed elsewhere. */
+const formatNumber = (value: number): string => String(Number(value.toPrecision(4)));
+
 /** Which confidence limit of the mean line is compared with which acceptance limit. */
 export type LimitSide = 'lower' | 'upper';
 
@@ -118,13 +121,13 @@ export function confidenceLimitCrossing(
       status: 'no-crossing-within-horizon',
       time: null,
       horizon,
-      reason: `The ${limitName} does not meet the acceptance limit within ${horizon} time units.`,
+      reason: `The ${limitName} does not meet the acceptance limit within ${formatNumber(horizon)} time units.`,
     };
   }
   return {
     status: 'crossing',
     time,
     horizon,
-    reason: `The ${limitName} meets the acceptance limit at ${time}.`,
+    reason: `The ${limitName} meets the acceptance limit at ${formatNumber(time)}.`,
   };
 }

@@ -9,6 +9,9 @@ import type { ScaledAcceptanceLimit } from './q1e-acceptance-limits.ts';
 import type { StabilityTransform } from './stability-batch.ts';
 import { lineMeanAt, type StabilityLine } from './stability-line.ts';
 
+/** Numbers in sentences: four significant figures, as the figures are printed elsewhere. */
+const formatNumber = (value: number): string => String(Number(value.toPrecision(4)));
+
 /** The Q1E evaluation of one regression line (one batch, or the pooled line). */
 export interface LineShelfLife {
   label: string;
@@ -66,7 +69,7 @@ export function lineShelfLife(
     crossings,
     shelfLife: first?.time ?? null,
     status: first?.status ?? 'no-crossing-within-horizon',
-    reason: first?.reason ?? `No confidence limit meets an acceptance limit within ${horizon} time units.`,
+    reason: first?.reason ?? `No confidence limit meets an acceptance limit within ${formatNumber(horizon)} time units.`,
     grid: [],
   };
 }

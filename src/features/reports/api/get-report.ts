@@ -13,9 +13,12 @@ export const reportQueryOptions = (reportId: number) =>
   queryOptions({
     queryKey: reportKeys.detail(reportId),
     queryFn: () => getReport(reportId),
+    enabled: Number.isInteger(reportId) && reportId > 0,
     staleTime: 0,
     refetchInterval: (current) =>
-      current.state.data?.versions.some((version) => isRendering(version.renderStatus)) ? RENDER_POLL_MS : false,
+      current.state.data?.versions.some((version) => isRendering(version.renderStatus))
+        ? RENDER_POLL_MS
+        : false,
   });
 
 export function useReport(reportId: number) {

@@ -19,7 +19,9 @@ export const reportListQueryOptions = (query: ReportListQuery) =>
     queryFn: () => listReports(query),
     placeholderData: keepPreviousData,
     refetchInterval: (current) =>
-      current.state.data?.items.some((item) => isRendering(item.latest.renderStatus)) ? RENDER_POLL_MS : false,
+      current.state.data?.items.some((item) => isRendering(item.latest.renderStatus))
+        ? RENDER_POLL_MS
+        : false,
   });
 
 export function useReportList(query: ReportListQuery) {

@@ -84,7 +84,11 @@ export function ReportDetail() {
         </thead>
         <tbody>
           {[...data.versions].reverse().map((version) => (
-            <tr key={version.versionNumber} className="border-b border-rule/50 align-top" data-version={version.versionNumber}>
+            <tr
+              key={version.versionNumber}
+              className="border-b border-rule/50 align-top"
+              data-version={version.versionNumber}
+            >
               <td className="px-2 py-1.5 tabular-nums">
                 v{version.versionNumber}
                 <div className="text-xs text-ink-muted">
@@ -93,13 +97,19 @@ export function ReportDetail() {
               </td>
               <td className="px-2 py-1.5">
                 <RenderStatusBadge status={version.renderStatus} />
-                {version.renderAttempts > 1 && <div className="text-xs text-ink-muted">{version.renderAttempts} attempts</div>}
-                {version.failureReason && <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>}
+                {version.renderAttempts > 1 && (
+                  <div className="text-xs text-ink-muted">{version.renderAttempts} attempts</div>
+                )}
+                {version.failureReason && (
+                  <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>
+                )}
               </td>
               <td className="px-2 py-1.5">{PAPER_NAMES[version.paperSize]}</td>
               <td className="px-2 py-1.5 tabular-nums">
                 {version.pageCount ?? '—'}
-                {version.pdfByteSize !== null && <div className="text-xs text-ink-muted">{byteSize(version.pdfByteSize)}</div>}
+                {version.pdfByteSize !== null && (
+                  <div className="text-xs text-ink-muted">{byteSize(version.pdfByteSize)}</div>
+                )}
               </td>
               <td className="px-2 py-1.5 tabular-nums">
                 {utcTime(version.createdAt)}
@@ -112,11 +122,19 @@ export function ReportDetail() {
                     <a className="text-ledger underline" href={version.pdfUrl} download>
                       Download PDF
                     </a>
-                    <a className="text-ledger underline" href={version.htmlUrl} target="_blank" rel="noopener noreferrer">
+                    <a
+                      className="text-ledger underline"
+                      href={version.htmlUrl}
+                      target="_blank"
+                      rel="noopener noreferrer"
+                    >
                       Preview (HTML)
                     </a>
                     {version.pdfSha256 && (
-                      <span className="font-mono text-[10px] text-ink-muted" title="SHA-256 of the stored PDF">
+                      <span
+                        className="font-mono text-[10px] text-ink-muted"
+                        title="SHA-256 of the stored PDF"
+                      >
                         SHA-256 {version.pdfSha256.slice(0, 16)}…
                       </span>
                     )}

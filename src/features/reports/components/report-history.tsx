@@ -1,5 +1,9 @@
 import { Link, useSearchParams } from 'react-router-dom';
-import { RENDER_STATUSES, type ReportListQuery, reportListQuerySchema } from '../../../../shared/api/reports.ts';
+import {
+  RENDER_STATUSES,
+  type ReportListQuery,
+  reportListQuerySchema,
+} from '../../../../shared/api/reports.ts';
 import { useReportFilterOptions } from '../api/get-report-filter-options.ts';
 import { useReportList } from '../api/list-reports.ts';
 import { RenderStatusBadge, utcTime } from './render-status.tsx';
@@ -35,14 +39,22 @@ export function ReportHistory() {
     <section>
       <h1 className="font-serif text-2xl">Reports</h1>
       <p className="mt-1 text-sm text-ink-muted">
-        Every report of your organisation and each of its rendered versions, newest first. A stored PDF
-        never changes; rendering again makes a new version.
+        Every report of your organisation and each of its rendered versions, newest first. A stored PDF never
+        changes; rendering again makes a new version.
       </p>
 
-      <form className="mt-4 flex flex-wrap items-end gap-3 text-sm" aria-label="Filter reports" onSubmit={(event) => event.preventDefault()}>
+      <form
+        className="mt-4 flex flex-wrap items-end gap-3 text-sm"
+        aria-label="Filter reports"
+        onSubmit={(event) => event.preventDefault()}
+      >
         <label className="flex flex-col">
           <span>Status</span>
-          <select className="rounded-sm border border-rule bg-white px-2 py-1" value={query.status ?? ''} onChange={(event) => setFilter('status', event.target.value)}>
+          <select
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.status ?? ''}
+            onChange={(event) => setFilter('status', event.target.value)}
+          >
             <option value="">Any</option>
             {RENDER_STATUSES.map((status) => (
               <option key={status} value={status}>
@@ -53,7 +65,11 @@ export function ReportHistory() {
         </label>
         <label className="flex flex-col">
           <span>Study</span>
-          <select className="rounded-sm border border-rule bg-white px-2 py-1" value={query.studyId ?? ''} onChange={(event) => setFilter('studyId', event.target.value)}>
+          <select
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.studyId ?? ''}
+            onChange={(event) => setFilter('studyId', event.target.value)}
+          >
             <option value="">Any</option>
             {options.data?.studies.map((study) => (
               <option key={study.id} value={study.id}>
@@ -64,7 +80,11 @@ export function ReportHistory() {
         </label>
         <label className="flex flex-col">
           <span>Author</span>
-          <select className="rounded-sm border border-rule bg-white px-2 py-1" value={query.authorId ?? ''} onChange={(event) => setFilter('authorId', event.target.value)}>
+          <select
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.authorId ?? ''}
+            onChange={(event) => setFilter('authorId', event.target.value)}
+          >
             <option value="">Anyone</option>
             {options.data?.authors.map((author) => (
               <option key={author.id} value={author.id}>
@@ -75,14 +95,28 @@ export function ReportHistory() {
         </label>
         <label className="flex flex-col">
           <span>Created from</span>
-          <input type="date" className="rounded-sm border border-rule bg-white px-2 py-1" value={query.from ?? ''} onChange={(event) => setFilter('from', event.target.value)} />
+          <input
+            type="date"
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.from ?? ''}
+            onChange={(event) => setFilter('from', event.target.value)}
+          />
         </label>
         <label className="flex flex-col">
           <span>to</span>
-          <input type="date" className="rounded-sm border border-rule bg-white px-2 py-1" value={query.to ?? ''} onChange={(event) => setFilter('to', event.target.value)} />
+          <input
+            type="date"
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.to ?? ''}
+            onChange={(event) => setFilter('to', event.target.value)}
+          />
         </label>
         {FILTERS.some((name) => params.has(name)) && (
-          <button type="button" className="rounded-sm border border-rule px-2 py-1 hover:bg-paper" onClick={() => setParams(new URLSearchParams())}>
+          <button
+            type="button"
+            className="rounded-sm border border-rule px-2 py-1 hover:bg-paper"
+            onClick={() => setParams(new URLSearchParams())}
+          >
             Clear filters
           </button>
         )}
@@ -101,7 +135,9 @@ export function ReportHistory() {
           </p>
         )}
         {list.data && list.data.items.length === 0 && (
-          <p className="text-ink-muted">No reports match. Create one from an analysis with “Create report”.</p>
+          <p className="text-ink-muted">
+            No reports match. Create one from an analysis with “Create report”.
+          </p>
         )}
         {list.data && list.data.items.length > 0 && (
           <table className="w-full text-sm">
@@ -131,7 +167,9 @@ export function ReportHistory() {
                   <td className="py-1.5 pr-3 tabular-nums">{utcTime(report.createdAt)}</td>
                   <td className="py-1.5 pr-3">
                     v{report.latest.versionNumber} <RenderStatusBadge status={report.latest.renderStatus} />
-                    {report.versionCount > 1 && <span className="ml-1 text-xs text-ink-muted">({report.versionCount} versions)</span>}
+                    {report.versionCount > 1 && (
+                      <span className="ml-1 text-xs text-ink-muted">({report.versionCount} versions)</span>
+                    )}
                   </td>
                   <td className="py-1.5">
                     {report.latest.pdfUrl ? (
@@ -149,13 +187,24 @@ export function ReportHistory() {
         )}
         {list.data && list.data.total > 0 && (
           <nav aria-label="Pages" className="mt-3 flex items-center gap-3 text-sm">
-            <button type="button" className="rounded-sm border border-rule px-2 py-1 disabled:opacity-40" disabled={query.page <= 1} onClick={() => setFilter('page', String(query.page - 1))}>
+            <button
+              type="button"
+              className="rounded-sm border border-rule px-2 py-1 disabled:opacity-40"
+              disabled={query.page <= 1}
+              onClick={() => setFilter('page', String(query.page - 1))}
+            >
               Previous
             </button>
             <span>
-              Page {list.data.page} of {list.data.pageCount} · {list.data.total} report{list.data.total === 1 ? '' : 's'}
+              Page {list.data.page} of {list.data.pageCount} · {list.data.total} report
+              {list.data.total === 1 ? '' : 's'}
             </span>
-            <button type="button" className="rounded-sm border border-rule px-2 py-1 disabled:opacity-40" disabled={query.page >= list.data.pageCount} onClick={() => setFilter('page', String(query.page + 1))}>
+            <button
+              type="button"
+              className="rounded-sm border border-rule px-2 py-1 disabled:opacity-40"
+              disabled={query.page >= list.data.pageCount}
+              onClick={() => setFilter('page', String(query.page + 1))}
+            >
               Next
             </button>
           </nav>
