@@ -4,6 +4,7 @@ import { parseEnvironment } from './config/env.ts';
 import { openDatabase } from './db/client.ts';
 import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
 import { startInProcessRenderWorker } from './jobs/in-process-worker.ts';
+import { startMail } from './mail/start-mail.ts';
 
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
 const environment = parseEnvironment();
@@ -14,8 +15,12 @@ const app = createApp(database, {
   signInRateLimit: environment.SIGN_IN_RATE_LIMIT,
 });
 
+// Mail: the local SMTP server on loopback unless SMTP_URL names a real one (see .env.example).
+const mail = await startMail(database.db);
+
 const server: Server = app.listen(environment.PORT, environment.HOST, () => {
   console.log(`\nRateledger is running at http://${environment.HOST}:${environment.PORT}\n`);
+  console.log(`${mail.summary}\n`);
   if (environment.NODE_ENV !== 'production') console.log(DEMO_PASSWORDS_NOTE);
   console.log('Press Ctrl-C to stop.\n');
 });
@@ -30,6 +35,7 @@ async function shutdown(signal: string) {
   console.log(`[rateledger] ${signal}: stopping`);
   server.close(async () => {
     await renderWorker.close();
+    await mail.close();
     await database.close();
     process.exit(0);
   });

@@ -59,7 +59,12 @@ const CONDITIONS: Condition[] = [
   { label: '50 °C (stress)', temperatureC: 50, months: [0, 0.5, 1, 2, 3], batches: ['OR-2401'] },
   // The stress conditions run long enough (about 60 % and 80 % lost) for the order to be decidable.
   { label: '60 °C (stress)', temperatureC: 60, months: [0, 0.5, 1, 2, 3, 4, 6], batches: ['OR-2401'] },
-  { label: '70 °C (stress)', temperatureC: 70, months: [0, 0.25, 0.5, 1, 1.5, 2, 3, 4], batches: ['OR-2401'] },
+  {
+    label: '70 °C (stress)',
+    temperatureC: 70,
+    months: [0, 0.25, 0.5, 1, 1.5, 2, 3, 4],
+    batches: ['OR-2401'],
+  },
 ];
 const INITIAL: Record<string, number> = { 'OR-2401': 100.4, 'OR-2402': 99.9, 'OR-2403': 100.7 };
 

@@ -17,7 +17,7 @@ const signInForm = z.object({
 
 /** Only same-site paths may follow sign-in, never another host. */
 function safeNext(next: string | undefined): string {
-  return next && next.startsWith('/') && !next.startsWith('//') && !next.startsWith('/\\') ? next : '/';
+  return next?.startsWith('/') && !next.startsWith('//') && !next.startsWith('/\\') ? next : '/';
 }
 
 export function authRoutes(services: AppServices): Router {

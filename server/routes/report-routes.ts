@@ -19,7 +19,7 @@ import {
   listReports,
   reportFilterOptions,
 } from '../services/report-history.ts';
-import { reportStorage, sha256Hex } from '../services/report-storage.ts';
+import { reportStorage } from '../services/report-storage.ts';
 import { type CreatedReport, createReport, createReportVersion } from '../services/reports.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -124,20 +124,20 @@ export function reportRoutes(services: AppServices): Router {
     const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
     if (output.renderStatus !== 'ready' || !output.pdfSha256)
       throw notReady(output.reportNumber, version, output.renderStatus);
-    if (!(await storage.hasPdf(output.pdfSha256))) {
+    const pdf = await storage.readVersionPdf(output.versionId, output.pdfSha256);
+    if (!pdf) {
+      if (await storage.hasPdf(output.pdfSha256)) {
+        console.error(
+          `[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`,
+        );
+        throw new HttpError(
+          500,
+          'The stored PDF does not match its record; it has not been sent. Tell your administrator.',
+        );
+      }
       throw new HttpError(
         503,
-        `The PDF of ${output.reportNumber} version ${version} is being stored; try again in a moment.`,
-      );
-    }
-    const pdf = await storage.readPdf(output.pdfSha256);
-    if (sha256Hex(pdf) !== output.pdfSha256) {
-      console.error(
-        `[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`,
-      );
-      throw new HttpError(
-        500,
-        'The stored PDF does not match its record; it has not been sent. Tell your administrator.',
+        `The PDF of ${output.reportNumber} version ${version} is not in the report store.`,
       );
     }
     res

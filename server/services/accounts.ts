@@ -168,7 +168,7 @@ export async function loadSessionUser(
     .innerJoin(organisations, eq(organisations.id, memberships.organisationId))
     .where(and(eq(users.id, userId), eq(memberships.organisationId, organisationId)));
   const first = rows[0];
-  if (!first || !first.active) return null;
+  if (!first?.active) return null;
   return {
     id: first.id,
     email: first.email,

@@ -24,13 +24,20 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       role: 'reviewer',
       heading: 'Reviewer',
       summary: 'Check analyses and reports drafted by others; return them with a comment or sign them.',
-      links: [{ href: '/app/activity', label: 'My recorded activity' }],
+      links: [
+        { href: '/app/activity', label: 'My recorded activity' },
+        { href: '/audit', label: 'Audit trail: filter, export, check the chain' },
+      ],
     },
     admin: {
       role: 'admin',
       heading: 'Administrator',
       summary: 'Keep the organisation’s people, roles, report templates and settings right.',
-      links: [{ href: '/admin/people', label: 'People and roles' }],
+      links: [
+        { href: '/admin/people', label: 'People and roles' },
+        { href: '/admin/outbox', label: 'Outbox: the mail Rateledger sent' },
+        { href: '/audit', label: 'Audit trail: filter, export, check the chain' },
+      ],
     },
   };
   return (['analyst', 'reviewer', 'admin'] as const)

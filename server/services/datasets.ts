@@ -25,7 +25,7 @@ import { datasets } from '../db/schema/index.ts';
 import { HttpError } from '../http/http-error.ts';
 import { headerSignature, saveMapping } from './saved-mappings.ts';
 import type { AuditContext } from './studies.ts';
-import { findUpload, sha256Hex, sheetsOfUpload } from './uploads.ts';
+import { findUpload, forgetUploadSheets, sha256Hex, sheetsOfUpload } from './uploads.ts';
 
 /** Most problems listed in one answer; the count says how many more there were. */
 export const MAX_PROBLEMS_LISTED = 200;
@@ -94,8 +94,48 @@ export function checkMapping(sheets: readonly SheetGrid[], mapping: ColumnMappin
   };
 }
 
+const DIGIT_ZERO = 48;
+const DIGIT_NINE = 57;
+
+/**
+ * True when every object in `value` already lists its keys in the order `canonicalJson` sorts
+ * them to, none looks like an array index (which JavaScript would list first), and nothing has a
+ * `toJSON` of its own: then plain `JSON.stringify` writes exactly the canonical text.
+ */
+function inCanonicalOrder(value: unknown): boolean {
+  if (value === null || typeof value !== 'object') return true;
+  if (Array.isArray(value)) {
+    for (const entry of value)
+      if (entry !== null && typeof entry === 'object' && !inCanonicalOrder(entry)) return false;
+    return true;
+  }
+  if (value instanceof Date) return !Number.isNaN(value.getTime());
+  if ('toJSON' in value) return false;
+  let previous: string | undefined;
+  for (const key in value) {
+    if (!Object.hasOwn(value, key)) return false;
+    const first = key.charCodeAt(0);
+    if (first >= DIGIT_ZERO && first <= DIGIT_NINE) return false;
+    if (previous !== undefined && !(previous < key)) return false;
+    previous = key;
+    const entry = (value as Record<string, unknown>)[key];
+    if (entry !== null && typeof entry === 'object' && !inCanonicalOrder(entry)) return false;
+  }
+  return true;
+}
+
+/**
+ * The same text as `canonicalJson(series)` (JSON with keys sorted at every level). The intake
+ * builds series with their keys already in that order, so the text is usually plain
+ * `JSON.stringify`, without a sorted copy of every one of 100,000 observations; series in another
+ * key order (read back from jsonb, for one) go through `canonicalJson`.
+ */
+export function canonicalSeriesJson(series: readonly Series[]): string {
+  return inCanonicalOrder(series) ? JSON.stringify(series) : canonicalJson(series);
+}
+
 export function seriesSha256(series: readonly Series[]): string {
-  return sha256Hex(canonicalJson(series));
+  return sha256Hex(canonicalSeriesJson(series));
 }
 
 function problemsError(problems: IntakeProblem[]): HttpError {
@@ -128,7 +168,7 @@ export async function importUpload(
   const sheet = sheets.find((candidate) => candidate.name === mapping.sheet) ?? sheets[0]!;
   const storedMapping: ColumnMapping = { ...mapping, sheet: sheet.name };
 
-  return db.transaction(async (tx) => {
+  const stored = await db.transaction(async (tx) => {
     const [dataset] = await tx
       .insert(datasets)
       .values({
@@ -195,4 +235,6 @@ export async function importUpload(
       savedMappingId,
     };
   });
+  forgetUploadSheets(upload);
+  return stored;
 }

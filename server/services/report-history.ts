@@ -181,6 +181,7 @@ export async function getReportDetail(
 }
 
 export interface VersionOutput {
+  versionId: number;
   reportNumber: string;
   title: string;
   versionNumber: number;
@@ -198,6 +199,7 @@ export async function getVersionOutput(
 ): Promise<VersionOutput> {
   const [row] = await db
     .select({
+      versionId: reportVersions.id,
       reportNumber: reports.reportNumber,
       title: reports.title,
       versionNumber: reportVersions.versionNumber,

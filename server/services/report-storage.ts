@@ -51,6 +51,11 @@ export interface ReportStorage {
   listIncoming(): Promise<number[]>;
   hasPdf(sha256: string): Promise<boolean>;
   readPdf(sha256: string): Promise<Buffer>;
+  /**
+   * The PDF of a ready version: from its final place, or — in the moment between the commit and
+   * the rename — from `.incoming/` when the bytes there have the recorded hash. Null when neither.
+   */
+  readVersionPdf(versionId: number, sha256: string): Promise<Buffer | null>;
 }
 
 /** The store rooted at `dir` (default: REPORTS_DIR from the environment, else `reports/`). */
@@ -141,6 +146,14 @@ export function reportStorage(dir = process.env.REPORTS_DIR || DEFAULT_REPORTS_D
 
     hasPdf: (sha256) => exists(pdfPath(sha256)),
     readPdf: (sha256) => readFile(pdfPath(sha256)),
+
+    async readVersionPdf(versionId, sha256) {
+      for (const file of [pdfPath(sha256), incomingPath(versionId)]) {
+        const bytes = await readFile(file).catch(() => null);
+        if (bytes && sha256Hex(bytes) === sha256) return bytes;
+      }
+      return null;
+    },
   };
 }
 

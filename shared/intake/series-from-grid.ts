@@ -93,13 +93,15 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
     dates.length > 0
       ? new Date(dates.reduce((earliest, date) => (date < earliest ? date : earliest)))
       : undefined;
+  // Keys are written in sorted order (here and in the series below) so that the dataset's
+  // canonical JSON, which is hashed, is plain JSON.stringify of what is built here.
   const observations: Observation[] = rows.map((row) => ({
+    source: { cell: row.valueCell, row: row.rowIndex + 1 },
     time:
       row.time instanceof Date && start
         ? elapsedTime(start, row.time, mapping.timeUnit)
         : (row.time as number),
     value: row.value,
-    source: { row: row.rowIndex + 1, cell: row.valueCell },
   }));
   const order = observations
     .map((_, index) => index)
@@ -121,15 +123,16 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
   }
   const first = rows[0];
   const temperatures = new Set(rows.map((row) => row.temperatureC));
-  const series: Series = {
+  const temperatureC =
+    first?.temperatureC !== undefined && temperatures.size === 1 ? first.temperatureC : undefined;
+  return {
+    ...(first?.seriesLabel !== undefined ? { batch: first.seriesLabel } : {}),
     id,
     observations: order.map((index) => observations[index]!),
+    ...(temperatureC !== undefined ? { temperatureC } : {}),
     timeUnit: mapping.timeUnit,
     valueUnit: mapping.valueUnit,
   };
-  if (first?.temperatureC !== undefined && temperatures.size === 1) series.temperatureC = first.temperatureC;
-  if (first?.seriesLabel !== undefined) series.batch = first.seriesLabel;
-  return series;
 }
 
 export function seriesFromGrid(sheets: readonly SheetGrid[], mapping: ColumnMapping): IntakeResult {

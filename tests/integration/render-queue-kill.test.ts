@@ -144,6 +144,22 @@ describe('a worker killed mid-render', () => {
     );
     expect(ready.renderAttempts).toBeGreaterThanOrEqual(2);
 
+    // The job ends once the file is in place: the row turns ready at the commit, the rename and
+    // pg-boss's completion follow. One job, completed after a retry.
+    const job = await until(
+      async () => {
+        const jobs = await world.database.db.execute<{ state: string; retry_count: number }>(
+          sql`select state, retry_count from pgboss.job where id = ${ready.jobId}::uuid
+              union all select state, retry_count from pgboss.archive where id = ${ready.jobId}::uuid`,
+        );
+        expect(jobs.rows).toHaveLength(1);
+        return jobs.rows[0]!.state === 'active' ? undefined : jobs.rows[0]!;
+      },
+      10_000,
+      'pg-boss to record the job as finished',
+    );
+    expect(job.state).toBe('completed');
+    expect(job.retry_count).toBeGreaterThanOrEqual(1);
     // Exactly one PDF in the whole store, named by the row's hash, and nothing left incoming.
     const files = readdirSync(reportsDir, { recursive: true, encoding: 'utf8' }).filter((name) =>
       name.endsWith('.pdf'),
@@ -151,14 +167,7 @@ describe('a worker killed mid-render', () => {
     expect(files).toEqual([path.join(ready.pdfSha256!.slice(0, 2), `${ready.pdfSha256}.pdf`)]);
     expect(sha256Hex(readFileSync(path.join(reportsDir, files[0]!)))).toBe(ready.pdfSha256);
 
-    // One job, completed after a retry; one "rendered" audit event for the version.
-    const jobs = await world.database.db.execute<{ state: string; retry_count: number }>(
-      sql`select state, retry_count from pgboss.job where id = ${ready.jobId}::uuid
-          union all select state, retry_count from pgboss.archive where id = ${ready.jobId}::uuid`,
-    );
-    expect(jobs.rows).toHaveLength(1);
-    expect(jobs.rows[0]!.state).toBe('completed');
-    expect(jobs.rows[0]!.retry_count).toBeGreaterThanOrEqual(1);
+    // One "rendered" audit event for the version.
     const rendered = await world.database.db
       .select()
       .from(auditEvents)

@@ -45,7 +45,9 @@ async function waitForFinal(reportId: number, versionNumber: number, timeoutMs =
   const deadline = Date.now() + timeoutMs;
   for (;;) {
     const row = await versionRow(reportId, versionNumber);
-    if (row.renderStatus === 'ready' || row.renderStatus === 'failed') return row;
+    // Ready is committed just before the file is renamed into place; wait for the rename too.
+    if (row.renderStatus === 'failed') return row;
+    if (row.renderStatus === 'ready' && (await storage.hasPdf(row.pdfSha256!))) return row;
     if (Date.now() > deadline) throw new Error(`version ${versionNumber} still ${row.renderStatus}`);
     await new Promise((resolve) => setTimeout(resolve, 200));
   }
@@ -213,6 +215,23 @@ describe('creating and rendering a report', () => {
       /write-once/,
     );
     expect((await versionRow(reportId, 1)).pdfSha256).toBe(row.pdfSha256);
+  });
+
+  it('a stored PDF altered on disk is refused at download, not served', async () => {
+    const row = await versionRow(reportId, 1);
+    const file = storage.pdfPath(row.pdfSha256!);
+    const original = readFileSync(file);
+    const altered = Buffer.from(original);
+    altered[altered.length - 10] = altered[altered.length - 10]! ^ 0xff;
+    writeFileSync(file, altered);
+    try {
+      const response = await reviewer.get(`/api/reports/${reportId}/versions/1/pdf`);
+      expect(response.status).toBe(500);
+      expect(response.body.error.message).toMatch(/does not match its record/);
+    } finally {
+      writeFileSync(file, original);
+    }
+    expect((await reviewer.get(`/api/reports/${reportId}/versions/1/pdf`)).status).toBe(200);
   });
 
   it('rendering again makes version 2 and leaves version 1 and its PDF as they were', async () => {

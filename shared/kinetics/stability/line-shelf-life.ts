@@ -69,7 +69,9 @@ export function lineShelfLife(
     crossings,
     shelfLife: first?.time ?? null,
     status: first?.status ?? 'no-crossing-within-horizon',
-    reason: first?.reason ?? `No confidence limit meets an acceptance limit within ${formatNumber(horizon)} time units.`,
+    reason:
+      first?.reason ??
+      `No confidence limit meets an acceptance limit within ${formatNumber(horizon)} time units.`,
     grid: [],
   };
 }

@@ -216,8 +216,8 @@ export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShe
     limitingLine: limiting?.label ?? null,
     reason:
       limiting === undefined
-        ? `No crossing within ${horizon} time units: no confidence limit meets an acceptance limit in the searched range.`
-        : `${limiting.reason} (line ${limiting.label}${evaluated.length > 1 ? ', the earliest of all lines' : ''}).`,
+        ? `No crossing within ${Number(horizon.toPrecision(4))} time units: no confidence limit meets an acceptance limit in the searched range.`
+        : `${limiting.reason.replace(/\.$/, '')} (line ${limiting.label}${evaluated.length > 1 ? ', the earliest of all lines' : ''}).`,
     horizon,
     extrapolation: {
       longestObservedTime,

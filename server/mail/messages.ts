@@ -1,0 +1,196 @@
+import { mailConfig } from './mail-config.ts';
+
+/**
+ * The messages Rateledger sends, each as plain text and a simple HTML version in which every
+ * value is escaped. Functions only: the caller (review workflow, administration) builds the
+ * content, then hands it to `sendMail` with the recipients once its transaction has committed.
+ * Links are absolute, on PUBLIC_URL; subjects begin with the report number so that a mailbox
+ * sorts and threads them by report.
+ *
+ * Example: `reviewRequestedMail({ reportNumber: 'RL-2026-0007', reportTitle: 'Veltrazine 10 mg',
+ * versionNumber: 2, authorName: 'A. Analyst', reviewerName: 'R. Reviewer', reportPath: '/reports/7' })`
+ * → subject `RL-2026-0007: review requested — Veltrazine 10 mg (version 2)`.
+ */
+
+export interface MailContent {
+  subject: string;
+  text: string;
+  html: string;
+}
+
+export type MailKind =
+  | 'review-requested'
+  | 'report-returned'
+  | 'report-signed'
+  | 'invitation'
+  | 'password-reset';
+
+interface ReportMailBase {
+  reportNumber: string;
+  reportTitle: string;
+  versionNumber: number;
+  /** Path of the report (or the version) on this site, e.g. `/reports/7`; made absolute on PUBLIC_URL. */
+  reportPath: string;
+}
+
+export function escapeHtml(value: string): string {
+  return value
+    .replaceAll('&', '&amp;')
+    .replaceAll('<', '&lt;')
+    .replaceAll('>', '&gt;')
+    .replaceAll('"', '&quot;')
+    .replaceAll("'", '&#39;');
+}
+
+/** `PUBLIC_URL` + a site path. Throws TypeError for anything but a path on this site. */
+export function absoluteLink(sitePath: string): string {
+  if (!sitePath.startsWith('/') || sitePath.startsWith('//') || /[\s\\]/.test(sitePath)) {
+    throw new TypeError(`a link in a message must be a path on this site, not "${sitePath}"`);
+  }
+  return `${mailConfig().publicUrl}${sitePath}`;
+}
+
+/** `2026-12-01 14:05 CET`: the date and time in the organisation's zone, with the zone named. */
+export function formatMailTime(date: Date, timeZone = 'UTC'): string {
+  const parts = Object.fromEntries(
+    new Intl.DateTimeFormat('en-GB', {
+      timeZone,
+      year: 'numeric',
+      month: '2-digit',
+      day: '2-digit',
+      hour: '2-digit',
+      minute: '2-digit',
+      hourCycle: 'h23',
+      timeZoneName: 'short',
+    })
+      .formatToParts(date)
+      .map((part) => [part.type, part.value]),
+  );
+  return `${parts.year}-${parts.month}-${parts.day} ${parts.hour}:${parts.minute} ${parts.timeZoneName}`;
+}
+
+const oneLine = (value: string) => value.replace(/\s+/g, ' ').trim();
+
+/** A paragraph is a string; a link is `{ label, href }`; a quotation is `{ quote }`. */
+type Block = string | { label: string; href: string } | { quote: string };
+
+function compose(subject: string, greeting: string, blocks: Block[]): MailContent {
+  const textBlocks = blocks.map((block) => {
+    if (typeof block === 'string') return block;
+    if ('quote' in block)
+      return block.quote
+        .split(/\r?\n/)
+        .map((line) => `> ${line}`)
+        .join('\n');
+    return `${block.label}:\n${block.href}`;
+  });
+  const htmlBlocks = blocks.map((block) => {
+    if (typeof block === 'string') return `<p>${escapeHtml(block)}</p>`;
+    if ('quote' in block) {
+      const lines = block.quote.split(/\r?\n/).map(escapeHtml).join('<br>');
+      return `<blockquote style="border-left:3px solid #c9c2b3;margin:0;padding:0 0 0 12px">${lines}</blockquote>`;
+    }
+    return `<p><a href="${escapeHtml(block.href)}">${escapeHtml(block.label)}</a></p>`;
+  });
+  const signOff = 'This message was sent by Rateledger. Do not reply to it.';
+  return {
+    subject: oneLine(subject),
+    text: [greeting, ...textBlocks, '--', signOff].join('\n\n'),
+    html:
+      '<!doctype html><html><body style="font-family:sans-serif;color:#1f2933;line-height:1.5">' +
+      `<p>${escapeHtml(greeting)}</p>${htmlBlocks.join('')}` +
+      `<p style="color:#6b7280;font-size:12px">${escapeHtml(signOff)}</p></body></html>`,
+  };
+}
+
+const reportLine = (report: ReportMailBase) =>
+  `${report.reportNumber} "${oneLine(report.reportTitle)}", version ${report.versionNumber}`;
+
+/** To each chosen reviewer: the author asks them to review (and perhaps sign) a report version. */
+export function reviewRequestedMail(
+  input: ReportMailBase & { authorName: string; reviewerName: string; note?: string },
+): MailContent {
+  const blocks: Block[] = [
+    `${input.authorName} asks you to review report ${reportLine(input)}.`,
+    ...(input.note?.trim() ? [`Their note:`, { quote: input.note.trim() }] : []),
+    { label: 'Open the report', href: absoluteLink(input.reportPath) },
+    'Sign only what you have checked: your electronic signature is the legally binding equivalent of your handwritten signature.',
+  ];
+  return compose(
+    `${input.reportNumber}: review requested — ${input.reportTitle} (version ${input.versionNumber})`,
+    `Dear ${input.reviewerName},`,
+    blocks,
+  );
+}
+
+/** To the author: a reviewer returned the version to draft with a comment. */
+export function reportReturnedMail(
+  input: ReportMailBase & { authorName: string; reviewerName: string; comment: string },
+): MailContent {
+  return compose(
+    `${input.reportNumber}: returned by ${input.reviewerName} — ${input.reportTitle} (version ${input.versionNumber})`,
+    `Dear ${input.authorName},`,
+    [
+      `${input.reviewerName} returned report ${reportLine(input)} to draft with this comment:`,
+      { quote: input.comment },
+      'Address the comment in a new version and submit it for review again.',
+      { label: 'Open the report', href: absoluteLink(input.reportPath) },
+    ],
+  );
+}
+
+/** To the author: the version was signed. */
+export function reportSignedMail(
+  input: ReportMailBase & {
+    authorName: string;
+    signerName: string;
+    /** The meaning of the signature, e.g. "Approved". */
+    meaning: string;
+    signedAt: Date;
+    timeZone?: string;
+  },
+): MailContent {
+  return compose(
+    `${input.reportNumber}: signed (${input.meaning}) — ${input.reportTitle} (version ${input.versionNumber})`,
+    `Dear ${input.authorName},`,
+    [
+      `${input.signerName} signed report ${reportLine(input)} on ${formatMailTime(input.signedAt, input.timeZone)}, meaning: ${input.meaning}.`,
+      'The signed version is locked; any correction is a new version that goes through review again.',
+      { label: 'Open the report', href: absoluteLink(input.reportPath) },
+    ],
+  );
+}
+
+/** To a person invited to the organisation; `actionPath` carries the one-time token. */
+export function invitationMail(input: {
+  organisationName: string;
+  inviterName: string;
+  recipientName?: string;
+  actionPath: string;
+  expiresAt: Date;
+  timeZone?: string;
+}): MailContent {
+  return compose(
+    `Invitation to ${input.organisationName} on Rateledger`,
+    input.recipientName ? `Dear ${input.recipientName},` : 'Hello,',
+    [
+      `${input.inviterName} invites you to join ${input.organisationName} on Rateledger.`,
+      { label: 'Accept the invitation and choose your password', href: absoluteLink(input.actionPath) },
+      `The link works once and until ${formatMailTime(input.expiresAt, input.timeZone)}. If you did not expect this invitation, ignore this message.`,
+    ],
+  );
+}
+
+/** To a person who asked to reset their password; `actionPath` carries the one-time token. */
+export function passwordResetMail(input: {
+  recipientName: string;
+  actionPath: string;
+  expiresAt: Date;
+  timeZone?: string;
+}): MailContent {
+  return compose('Reset your Rateledger password', `Dear ${input.recipientName},`, [
+    'Someone (we hope you) asked to reset the password of your Rateledger account.',
+    { label: 'Choose a new password', href: absoluteLink(input.actionPath) },
+    `The link works once and until ${formatMailTime(input.expiresAt, input.timeZone)}. If you did not ask for this, ignore this message: your password stays as it is.`,
+  ]);
+}
