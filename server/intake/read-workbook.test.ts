@@ -160,9 +160,13 @@ function zipOf(parts: Record<string, string>): Uint8Array {
 const MAIN = 'xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"';
 const RELS = 'xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"';
 
-function handWritten(sheetData: string, options: { strings?: string; after?: string; workbookPr?: string } = {}) {
+function handWritten(
+  sheetData: string,
+  options: { strings?: string; after?: string; workbookPr?: string } = {},
+) {
   return zipOf({
-    '[Content_Types].xml': '<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>',
+    '[Content_Types].xml':
+      '<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>',
     'xl/workbook.xml': `<?xml version="1.0" encoding="UTF-8"?>\n<workbook ${MAIN} ${RELS}>${options.workbookPr ?? ''}<sheets><sheet name="Pulls &amp; results" sheetId="1" r:id="rId1"/></sheets></workbook>`,
     'xl/_rels/workbook.xml.rels':
       '<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/worksheet" Target="worksheets/sheet1.xml"/></Relationships>',
@@ -224,12 +228,39 @@ describe('the fast reader', () => {
       sheet.addRow(['Month', 'Assay', 'Batch']);
       sheet.addRow([0, 100.2, 'VZ-001']);
       sheet.addRow([3, { formula: 'B2-1.1' }, { richText: [{ text: 'VZ-' }, { text: '001' }] }]);
-      sheet.addRow([new Date(Date.UTC(2024, 0, 15)), { error: '#N/A' }, { text: 'VZ-002', hyperlink: 'https://example.org' }]);
+      sheet.addRow([
+        new Date(Date.UTC(2024, 0, 15)),
+        { error: '#N/A' },
+        { text: 'VZ-002', hyperlink: 'https://example.org' },
+      ]);
       sheet.mergeCells('A5:C6');
       workbook.addWorksheet('Empty');
       workbook.addWorksheet('Second').addRow(['t', 'y', '<&>"\'']);
     });
-    expect((await expectSameAsObjectModel(bytes)).map((sheet) => sheet.name)).toEqual(['Long term', 'Empty', 'Second']);
+    expect((await expectSameAsObjectModel(bytes)).map((sheet) => sheet.name)).toEqual([
+      'Long term',
+      'Empty',
+      'Second',
+    ]);
+  });
+
+  it('reads indented XML as exceljs does', async () => {
+    const rows =
+      '\n  <row r="1">\n    <c r="A1" t="inlineStr">\n      <is><t>Month</t></is>\n    </c>\n    <c r="B1">\n      <v>98.5</v>\n    </c>\n  </row>\n';
+    const [sheet] = await expectSameAsObjectModel(handWritten(rows));
+    expect(sheet?.rows).toEqual([['Month', 98.5]]);
+  });
+
+  it('reads ISO date cells and rows and cells written without references (ECMA-376 §18.3.1.4, §18.18.11)', () => {
+    // exceljs reads t="d" as the number before the first "-" and needs the r attributes.
+    const rows =
+      '<row><c t="inlineStr"><is><t>Pulled</t></is></c><c><v>3</v></c></row>' +
+      '<row><c t="d"><v>2024-04-15T00:00:00</v></c><c r="C2"><v>98.1</v></c></row>';
+    const [sheet] = xlsxSheetGrids(handWritten(rows));
+    expect(sheet?.rows).toEqual([
+      ['Pulled', 3],
+      [new Date(Date.UTC(2024, 3, 15)), null, 98.1],
+    ]);
   });
 
   it('leaves prefixed, damaged and truncated parts to the general reader', async () => {

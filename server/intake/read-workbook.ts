@@ -8,11 +8,13 @@
  * listed, and their content kept in the top-left cell only, as the file stores it.
  *
  * Two readers give the same grids. The fast one (`xlsx-sheet-grids.ts`) reads the workbook's XML
- * parts directly and handles the plain SpreadsheetML that spreadsheet programs write; a
- * 100,000-row sheet takes it about a tenth of a second per 25,000 rows and a few tens of MB. For
- * anything outside that subset, or a damaged file, it steps aside and the general reader (exceljs's
- * full workbook model, loaded only then) reads the file or names the problem, so messages for
- * damaged files are the same as ever.
+ * parts directly and handles the plain SpreadsheetML that spreadsheet programs write: a
+ * 100,000-row sheet takes it about 0.35 s and 20 MB of cells, against about 2.3 s and 250 MB more
+ * for a full workbook model. For anything outside that subset, or a damaged file, it steps aside
+ * and the general reader (exceljs's full workbook model, loaded only then) reads the file or names
+ * the problem, so damaged files get the same messages as before. The fast reader also reads two
+ * things the general one misreads: ISO date cells (`t="d"`) and a 1904 date system written
+ * `date1904="true"`.
  *
  * The file's first bytes tell the failure cases apart before exceljs sees them: a ZIP container
  * is an .xlsx; an OLE compound file holding an "EncryptedPackage" is a password-protected

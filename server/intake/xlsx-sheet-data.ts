@@ -42,7 +42,13 @@ function excelDate(serial: number, date1904: boolean): Date {
 /** The five entity names decoded once more, as the general reader does for string results. */
 function decodeAgain(text: string): string {
   if (!text.includes('&')) return text;
-  const names: Record<string, string> = { '&lt;': '<', '&gt;': '>', '&amp;': '&', '&apos;': "'", '&quot;': '"' };
+  const names: Record<string, string> = {
+    '&lt;': '<',
+    '&gt;': '>',
+    '&amp;': '&',
+    '&apos;': "'",
+    '&quot;': '"',
+  };
   return text.replace(/&([a-z]*);/g, (entity) => names[entity] ?? entity);
 }
 
@@ -94,7 +100,9 @@ function cellValue(
     const inline = /<is\b[^>]*>([\s\S]*?)<\/is>/.exec(content);
     if (inline && value === undefined) {
       rich = /<r\b/.test(inline[1]!);
-      const texts = [...inline[1]!.matchAll(/<t\b[^>]*?(?:\/>|>([\s\S]*?)<\/t>)/g)].map((t) => xmlText(t[1] ?? ''));
+      const texts = [...inline[1]!.matchAll(/<t\b[^>]*?(?:\/>|>([\s\S]*?)<\/t>)/g)].map((t) =>
+        xmlText(t[1] ?? ''),
+      );
       const text = texts.join('');
       if (text !== '') value = rich ? unescapeOoxml(text) : text;
     }

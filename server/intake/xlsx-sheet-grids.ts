@@ -25,14 +25,14 @@
 import type { GridCell, MergedRange, SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { readSheetData } from './xlsx-sheet-data.ts';
 import { requireUnprefixedRoot, unescapeOoxml, xmlAttributes, xmlPart, xmlText } from './xlsx-xml-text.ts';
-import { ZipUnsupported, zipEntries, type ZipEntries } from './xlsx-zip-entries.ts';
+import { type ZipEntries, ZipUnsupported, zipEntries } from './xlsx-zip-entries.ts';
 
 /** Worksheet parts the general reader recognises; sheets in other parts (charts) are skipped. */
 const WORKSHEET_PART = /xl\/worksheets\/sheet(\d+)[.]xml/;
 /** Built-in number formats that show dates or times (ECMA-376 Part 1, §18.8.30). */
 const BUILT_IN_DATE_FORMATS = new Set([14, 15, 16, 17, 18, 19, 20, 21, 22, 45, 46, 47]);
 /** A start tag's attributes, with quoted values that may contain ">". */
-const TAG_ATTRIBUTES = String.raw`((?:[^>"']|"[^"]*"|'[^']*')*)`;
+const TAG_ATTRIBUTES = `((?:[^>"']|"[^"]*"|'[^']*')*)`;
 
 function tags(xml: string, name: string): Record<string, string>[] {
   const pattern = new RegExp(`<${name}\\b${TAG_ATTRIBUTES}>`, 'g');
@@ -77,7 +77,9 @@ function sharedStrings(zip: ZipEntries): (string | null)[] | undefined {
   for (const item of xml.matchAll(/<si\b[^>]*?(?:\/>|>([\s\S]*?)<\/si>)/g)) {
     const body = (item[1] ?? '').replace(/<rPh\b[\s\S]*?<\/rPh>/g, '');
     const texts = [...body.matchAll(/<t\b[^>]*?(?:\/>|>([\s\S]*?)<\/t>)/g)];
-    strings.push(texts.length === 0 ? null : texts.map((text) => unescapeOoxml(xmlText(text[1] ?? ''))).join(''));
+    strings.push(
+      texts.length === 0 ? null : texts.map((text) => unescapeOoxml(xmlText(text[1] ?? ''))).join(''),
+    );
   }
   return strings;
 }
@@ -97,7 +99,8 @@ function parseRange(range: string): MergedRange | null {
 export function columnNumber(letters: string): number {
   if (letters.length > 3) throw new ZipUnsupported(`column ${letters}`);
   let number = 0;
-  for (let index = 0; index < letters.length; index += 1) number = number * 26 + letters.charCodeAt(index) - 64;
+  for (let index = 0; index < letters.length; index += 1)
+    number = number * 26 + letters.charCodeAt(index) - 64;
   return number;
 }
 

@@ -43,7 +43,9 @@ export function xmlAttributes(tagBody: string): Record<string, string> {
 
 export function unescapeOoxml(text: string): string {
   if (!text.includes('_x')) return text;
-  return text.replace(OOXML_ESCAPE_PATTERN, (_, hex: string) => String.fromCharCode(Number.parseInt(hex, 16)));
+  return text.replace(OOXML_ESCAPE_PATTERN, (_, hex: string) =>
+    String.fromCharCode(Number.parseInt(hex, 16)),
+  );
 }
 
 /** A part's text: UTF-8 (the only encoding Excel writes), byte-order mark removed. */

@@ -2,7 +2,7 @@ import type { AddressInfo } from 'node:net';
 import { type AddressObject, simpleParser } from 'mailparser';
 import { SMTPServer, type SMTPServerDataStream, type SMTPServerSession } from 'smtp-server';
 import type { Database } from '../db/client.ts';
-import { type ReceivedHeaderLine, receivedMail } from '../db/schema/mail.ts';
+import { type ReceivedHeaderLine, receivedMail } from '../db/schema/index.ts';
 
 /**
  * The app's own SMTP server for the demo and the tests, in place of a hosted mail service: it

@@ -3,7 +3,7 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import type SMTPTransport from 'nodemailer/lib/smtp-transport/index.js';
 import { z } from 'zod';
 import type { Database, Transaction } from '../db/client.ts';
-import { outgoingMail } from '../db/schema/mail.ts';
+import { outgoingMail } from '../db/schema/index.ts';
 import { describeSmtpUrl, mailConfig } from './mail-config.ts';
 
 /**

@@ -50,7 +50,11 @@ export function absoluteLink(sitePath: string): string {
   return `${mailConfig().publicUrl}${sitePath}`;
 }
 
-/** `2026-12-01 14:05 CET`: the date and time in the organisation's zone, with the zone named. */
+/**
+ * The date and time in the organisation's zone, with the zone and its UTC offset named, so that no
+ * abbreviation (CST, IST) is ambiguous: `2026-06-01 14:30 (UTC+02:00, Europe/Berlin)`, or
+ * `2026-06-01 12:30 UTC` when the zone is UTC.
+ */
 export function formatMailTime(date: Date, timeZone = 'UTC'): string {
   const parts = Object.fromEntries(
     new Intl.DateTimeFormat('en-GB', {
@@ -61,12 +65,15 @@ export function formatMailTime(date: Date, timeZone = 'UTC'): string {
       hour: '2-digit',
       minute: '2-digit',
       hourCycle: 'h23',
-      timeZoneName: 'short',
+      timeZoneName: 'longOffset',
     })
       .formatToParts(date)
       .map((part) => [part.type, part.value]),
   );
-  return `${parts.year}-${parts.month}-${parts.day} ${parts.hour}:${parts.minute} ${parts.timeZoneName}`;
+  const local = `${parts.year}-${parts.month}-${parts.day} ${parts.hour}:${parts.minute}`;
+  if (timeZone === 'UTC' || timeZone === 'Etc/UTC') return `${local} UTC`;
+  const offset = parts.timeZoneName === 'GMT' ? '+00:00' : String(parts.timeZoneName).replace('GMT', '');
+  return `${local} (UTC${offset}, ${timeZone})`;
 }
 
 const oneLine = (value: string) => value.replace(/\s+/g, ' ').trim();

@@ -64,7 +64,13 @@ export function auditRoutes(services: AppServices): Router {
     };
     if (!parsed.success) {
       const errors = auditFilterErrors(parsed.error);
-      return renderPage(req, res, 'audit', { ...locals, errors, errorCount: Object.keys(errors).length }, 400);
+      return renderPage(
+        req,
+        res,
+        'audit',
+        { ...locals, errors, errorCount: Object.keys(errors).length },
+        400,
+      );
     }
     const filter = parsed.data;
     const page = await listAuditEvents(db, organisationId, filter, organisation.timeZone);
@@ -119,7 +125,12 @@ export function auditRoutes(services: AppServices): Router {
     const row = await findAuditEvent(db, organisation.id, eventId);
     if (!row) throw new HttpError(404, `There is no audit event ${eventId} in your organisation's trail.`);
     const event = auditEventView(row, organisation.timeZone);
-    renderPage(req, res, 'audit-event', { title: `Audit event ${eventId}`, organisation, event, events: [event] });
+    renderPage(req, res, 'audit-event', {
+      title: `Audit event ${eventId}`,
+      organisation,
+      event,
+      events: [event],
+    });
   });
 
   router.get('/audit/chain', requireRole(...AUDITORS), async (req, res) => {

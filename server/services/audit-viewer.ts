@@ -263,7 +263,7 @@ export interface DiffLine {
 
 /**
  * Before and after values side by side, key by key (sorted), each value pretty-printed JSON, so a
- * changed field stands out. `shape` says which sides exist: an event that only records values
+ * changed field stands out (short values on one line, longer ones indented). `shape` says which sides exist: an event that only records values
  * (`before` null) is `after-only`, not a list of "added" keys. A value that is not an object
  * (a list, a number, a string) is one line keyed `(value)`.
  * Example: `valueDiff({ unit: '%' , title: 'A' }, { unit: 'mg', title: 'A' })` → shape `both`,
@@ -281,7 +281,7 @@ export function valueDiff(before: unknown, after: unknown) {
   const afterFields = asFields(after);
   const keys = [...new Set([...beforeFields.keys(), ...afterFields.keys()])].sort();
   const pretty = (fields: Map<string, unknown>, key: string) =>
-    fields.has(key) ? JSON.stringify(fields.get(key), null, 2) : null;
+    fields.has(key) ? readableJson(fields.get(key)) : null;
   const lines: DiffLine[] = keys.map((key) => {
     const left = pretty(beforeFields, key);
     const right = pretty(afterFields, key);
@@ -290,6 +290,13 @@ export function valueDiff(before: unknown, after: unknown) {
   });
   return { shape, lines, changedCount: lines.filter((line) => line.status !== 'same').length };
 }
+
+/** Values that fit on a short line are printed on one (`["CV-101","CV-102"]`); longer ones indented. */
+const SHORT_JSON = 40;
+const readableJson = (value: unknown) => {
+  const compact = JSON.stringify(value);
+  return compact.length <= SHORT_JSON ? compact : JSON.stringify(value, null, 2);
+};
 
 const abbreviate = (hash: string) =>
   hash === GENESIS_HASH ? 'start of chain' : `${hash.slice(0, HASH_SHOWN)}…`;

@@ -1,7 +1,7 @@
 import { and, count, desc, eq, isNull, or } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Database } from '../db/client.ts';
-import { outgoingMail, type ReceivedHeaderLine, receivedMail } from '../db/schema/mail.ts';
+import { outgoingMail, type ReceivedHeaderLine, receivedMail } from '../db/schema/index.ts';
 import { HttpError } from '../http/http-error.ts';
 import { linkSegments, type TextSegment } from '../mail/link-segments.ts';
 import { mailConfig } from '../mail/mail-config.ts';

@@ -49,17 +49,29 @@ export async function matchingSavedMappings(
     .orderBy(desc(savedMappings.id))
     .limit(MAX_MAPPINGS_CONSIDERED);
   const offers: SavedMapping[] = [];
+  // One signature per sheet and header row, however many saved mappings ask for it: working one
+  // out reads the width of the whole sheet, which is 100,000 rows in a large workbook.
+  const signatures = new Map<string, string[]>();
+  const signatureOf = (sheet: SheetGrid, index: number, headerRow: number) => {
+    const key = `${index}\u0000${headerRow}`;
+    let signature = signatures.get(key);
+    if (!signature) {
+      signature = headerSignature(sheet, headerRow);
+      signatures.set(key, signature);
+    }
+    return signature;
+  };
   for (const row of rows) {
     const parsed = columnMappingSchema.safeParse(row.mapping);
     if (!parsed.success || parsed.data.headerRow < 1) continue;
     const mapping = parsed.data;
-    const candidates = [...sheets].sort(
-      (a, b) => Number(b.name === mapping.sheet) - Number(a.name === mapping.sheet),
+    const candidates = sheets
+      .map((sheet, index) => ({ sheet, index }))
+      .sort((a, b) => Number(b.sheet.name === mapping.sheet) - Number(a.sheet.name === mapping.sheet));
+    const match = candidates.find(({ sheet, index }) =>
+      sameSignature(signatureOf(sheet, index, mapping.headerRow), row.headerSignature),
     );
-    const sheet = candidates.find((candidate) =>
-      sameSignature(headerSignature(candidate, mapping.headerRow), row.headerSignature),
-    );
-    if (sheet) offers.push({ id: row.id, name: row.name, mapping: { ...mapping, sheet: sheet.name } });
+    if (match) offers.push({ id: row.id, name: row.name, mapping: { ...mapping, sheet: match.sheet.name } });
   }
   return offers;
 }

@@ -247,7 +247,9 @@ export function guessHeaderRow(sheet: SheetGrid): number {
 }
 
 export function previewSheet(sheet: SheetGrid): SheetPreview {
-  const columnCount = Math.max(0, ...sheet.rows.map((row) => row.length));
+  // A loop, not Math.max(...lengths): spreading 100,000 or more arguments overflows the stack.
+  let columnCount = 0;
+  for (const row of sheet.rows) if (row.length > columnCount) columnCount = row.length;
   const rows = sheet.rows
     .slice(0, PREVIEW_ROW_COUNT)
     .map((row) => Array.from({ length: columnCount }, (_, column) => previewCell(row[column])));

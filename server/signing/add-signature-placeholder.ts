@@ -56,7 +56,8 @@ const TAIL_SEARCH_BYTES = 4096;
 function previousCrossReference(pdf: Buffer): { offset: number; size: number } {
   const tail = pdf.subarray(Math.max(0, pdf.length - TAIL_SEARCH_BYTES)).toString('latin1');
   const startxref = [...tail.matchAll(/startxref\s+(\d+)/g)].at(-1);
-  if (!startxref?.[1]) throw new PdfSealError('not-pdf', 'The file has no "startxref": it is not a complete PDF.');
+  if (!startxref?.[1])
+    throw new PdfSealError('not-pdf', 'The file has no "startxref": it is not a complete PDF.');
   const sizes = [...tail.matchAll(/\/Size\s+(\d+)/g)].map((match) => Number(match[1]));
   return { offset: Number(startxref[1]), size: Math.max(0, ...sizes) };
 }
@@ -69,9 +70,13 @@ async function loadDocument(pdf: Buffer): Promise<PDFDocument> {
     return await PDFDocument.load(pdf, { updateMetadata: false });
   } catch (error) {
     if ((error as Error).name === 'EncryptedPDFError') {
-      throw new PdfSealError('encrypted', 'The PDF is encrypted; an encrypted PDF cannot be sealed.', { cause: error });
+      throw new PdfSealError('encrypted', 'The PDF is encrypted; an encrypted PDF cannot be sealed.', {
+        cause: error,
+      });
     }
-    throw new PdfSealError('unreadable', `The PDF cannot be read: ${(error as Error).message}`, { cause: error });
+    throw new PdfSealError('unreadable', `The PDF cannot be read: ${(error as Error).message}`, {
+      cause: error,
+    });
   }
 }
 
@@ -109,7 +114,10 @@ function serialise(object: PDFObject): Buffer {
   return Buffer.from(bytes);
 }
 
-export async function addSignaturePlaceholder(pdf: Buffer, options: SignaturePlaceholderOptions): Promise<Buffer> {
+export async function addSignaturePlaceholder(
+  pdf: Buffer,
+  options: SignaturePlaceholderOptions,
+): Promise<Buffer> {
   const document = await loadDocument(pdf);
   const previous = previousCrossReference(pdf);
   const { context } = document;
@@ -205,7 +213,11 @@ function updateSection(pdf: Buffer, changed: Map<PDFRef, PDFObject>, trailer: PD
   let table = 'xref\n';
   for (let start = 0; start < offsets.length; ) {
     let end = start + 1;
-    while (end < offsets.length && offsets[end]?.ref.objectNumber === (offsets[end - 1]?.ref.objectNumber ?? 0) + 1) end++;
+    while (
+      end < offsets.length &&
+      offsets[end]?.ref.objectNumber === (offsets[end - 1]?.ref.objectNumber ?? 0) + 1
+    )
+      end++;
     table += `${offsets[start]?.ref.objectNumber} ${end - start}\n`;
     for (const entry of offsets.slice(start, end)) {
       table += `${String(entry.offset).padStart(10, '0')} ${String(entry.ref.generationNumber).padStart(5, '0')} n\r\n`;

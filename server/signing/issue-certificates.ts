@@ -37,14 +37,22 @@ export interface IssuedCertificate {
 
 const generateRsaKeyPair = promisify(generateKeyPair);
 
-async function rsaKeyPair(): Promise<{ privateKey: forge.pki.rsa.PrivateKey; publicKey: forge.pki.rsa.PublicKey; privateKeyPem: string }> {
+async function rsaKeyPair(): Promise<{
+  privateKey: forge.pki.rsa.PrivateKey;
+  publicKey: forge.pki.rsa.PublicKey;
+  privateKeyPem: string;
+}> {
   const { privateKey } = await generateRsaKeyPair('rsa', {
     modulusLength: RSA_MODULUS_BITS,
     publicKeyEncoding: { type: 'spki', format: 'pem' },
     privateKeyEncoding: { type: 'pkcs8', format: 'pem' },
   });
   const forgeKey = forge.pki.privateKeyFromPem(privateKey) as forge.pki.rsa.PrivateKey;
-  return { privateKey: forgeKey, publicKey: forge.pki.setRsaPublicKey(forgeKey.n, forgeKey.e), privateKeyPem: privateKey };
+  return {
+    privateKey: forgeKey,
+    publicKey: forge.pki.setRsaPublicKey(forgeKey.n, forgeKey.e),
+    privateKeyPem: privateKey,
+  };
 }
 
 function serialNumber(): string {
@@ -108,7 +116,10 @@ export async function issueSigningCertificate(options: {
     { name: 'basicConstraints', cA: false, critical: true },
     { name: 'keyUsage', digitalSignature: true, nonRepudiation: true, critical: true },
     { name: 'subjectKeyIdentifier' },
-    { name: 'authorityKeyIdentifier', keyIdentifier: caCertificate.generateSubjectKeyIdentifier().getBytes() },
+    {
+      name: 'authorityKeyIdentifier',
+      keyIdentifier: caCertificate.generateSubjectKeyIdentifier().getBytes(),
+    },
   ]);
   certificate.sign(caKey, forge.md.sha256.create());
   return { certificatePem: forge.pki.certificateToPem(certificate), privateKeyPem: keys.privateKeyPem };
@@ -118,9 +129,18 @@ export async function issueSigningCertificate(options: {
  * Packs a key and its certificate chain (leaf first) into a PKCS#12 file protected by
  * `passphrase` (PBES2 with AES-256-CBC for the key bag, as OpenSSL 3 writes by default).
  */
-export function toPkcs12(privateKeyPem: string, certificatePems: string[], passphrase: string, friendlyName: string): Buffer {
+export function toPkcs12(
+  privateKeyPem: string,
+  certificatePems: string[],
+  passphrase: string,
+  friendlyName: string,
+): Buffer {
   const key = forge.pki.privateKeyFromPem(privateKeyPem);
   const chain = certificatePems.map((pem) => forge.pki.certificateFromPem(pem));
-  const asn1 = forge.pkcs12.toPkcs12Asn1(key, chain, passphrase, { algorithm: 'aes256', friendlyName, count: 10_000 });
+  const asn1 = forge.pkcs12.toPkcs12Asn1(key, chain, passphrase, {
+    algorithm: 'aes256',
+    friendlyName,
+    count: 10_000,
+  });
   return Buffer.from(forge.asn1.toDer(asn1).getBytes(), 'binary');
 }

@@ -1,8 +1,13 @@
-import { createHash, createPrivateKey, randomBytes, X509Certificate } from 'node:crypto';
+import { createHash, createPrivateKey, randomBytes, type X509Certificate } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, renameSync } from 'node:fs';
 import path from 'node:path';
 import { withFileLock } from './file-lock.ts';
-import { createCertificateAuthority, type IssuedCertificate, issueSigningCertificate, toPkcs12 } from './issue-certificates.ts';
+import {
+  createCertificateAuthority,
+  type IssuedCertificate,
+  issueSigningCertificate,
+  toPkcs12,
+} from './issue-certificates.ts';
 import { readPkcs12 } from './read-pkcs12.ts';
 import type { SigningConfig } from './signing-config.ts';
 import { writeFileAtomic } from './write-file-atomic.ts';
@@ -66,7 +71,12 @@ const NAME_MAX_LENGTH = 64;
 
 export const subjectText = (certificate: X509Certificate) => certificate.subject.split('\n').join(', ');
 
-function identityFrom(p12: Buffer, passphrase: string, caPem: string | undefined, source: SigningIdentity['source']): SigningIdentity {
+function identityFrom(
+  p12: Buffer,
+  passphrase: string,
+  caPem: string | undefined,
+  source: SigningIdentity['source'],
+): SigningIdentity {
   const contents = readPkcs12(p12, passphrase);
   const chainPems = contents.chain.map((certificate) => certificate.toString());
   return {
@@ -144,7 +154,12 @@ async function loadLocalIdentity(request: SigningIdentityRequest): Promise<Signi
   const existing = (): SigningIdentity | undefined => {
     const passphrase = readPassphrase(request, false);
     if (!passphrase || !existsSync(signerFile) || !existsSync(caFile)) return undefined;
-    const identity = identityFrom(readFileSync(signerFile), passphrase, readFileSync(caFile, 'utf8'), 'local-ca');
+    const identity = identityFrom(
+      readFileSync(signerFile),
+      passphrase,
+      readFileSync(caFile, 'utf8'),
+      'local-ca',
+    );
     return isFresh(identity, new Date()) ? identity : undefined;
   };
   const found = existing();
@@ -157,7 +172,12 @@ async function loadLocalIdentity(request: SigningIdentityRequest): Promise<Signi
     const authority = await ensureAuthority(signingDir, passphrase);
     if (existsSync(signerFile)) renameSync(signerFile, `${signerFile}.replaced-${Date.now()}`);
     const signer = await issueSigningCertificate({ authority, organisation });
-    const p12 = toPkcs12(signer.privateKeyPem, [signer.certificatePem, authority.certificatePem], passphrase, organisation);
+    const p12 = toPkcs12(
+      signer.privateKeyPem,
+      [signer.certificatePem, authority.certificatePem],
+      passphrase,
+      organisation,
+    );
     writeFileAtomic(signerFile, p12, 0o600);
     return identityFrom(p12, passphrase, authority.certificatePem, 'local-ca');
   });
@@ -166,7 +186,11 @@ async function loadLocalIdentity(request: SigningIdentityRequest): Promise<Signi
 const cache = new Map<string, Promise<SigningIdentity>>();
 
 export function loadSigningIdentity(request: SigningIdentityRequest): Promise<SigningIdentity> {
-  const key = JSON.stringify([request.signingDir, request.p12Path ?? null, request.p12Path ? '' : request.organisationName]);
+  const key = JSON.stringify([
+    request.signingDir,
+    request.p12Path ?? null,
+    request.p12Path ? '' : request.organisationName,
+  ]);
   const cached = cache.get(key);
   if (cached) {
     return cached.then((identity) => {

@@ -2,6 +2,7 @@ import { createHash, type KeyObject, webcrypto, type X509Certificate } from 'nod
 import { Signer } from '@signpdf/utils';
 import * as asn1js from 'asn1js';
 import * as pkijs from 'pkijs';
+import { pkijsEngine as engine, toArrayBuffer } from './pkijs-engine.ts';
 
 /**
  * A CMS signer for PDF signatures at the PAdES baseline level B-B (ETSI EN 319 142-1 §6.3):
@@ -36,19 +37,17 @@ const OID = {
   signingCertificateV2: '1.2.840.113549.1.9.16.2.47',
 } as const;
 
-const engine = new pkijs.CryptoEngine({ name: 'node', crypto: webcrypto as unknown as Crypto });
-
 const CURVES: Record<string, string> = { prime256v1: 'P-256', secp384r1: 'P-384', secp521r1: 'P-521' };
 
 function webCryptoAlgorithm(key: KeyObject): RsaHashedImportParams | EcKeyImportParams {
   if (key.asymmetricKeyType === 'rsa') return { name: 'RSASSA-PKCS1-v1_5', hash: 'SHA-256' };
-  const curve = key.asymmetricKeyType === 'ec' ? CURVES[key.asymmetricKeyDetails?.namedCurve ?? ''] : undefined;
+  const curve =
+    key.asymmetricKeyType === 'ec' ? CURVES[key.asymmetricKeyDetails?.namedCurve ?? ''] : undefined;
   if (curve) return { name: 'ECDSA', namedCurve: curve };
-  throw new Error(`A ${key.asymmetricKeyType ?? 'unknown'} key cannot make a PDF seal; use RSA or EC P-256/P-384/P-521.`);
+  throw new Error(
+    `A ${key.asymmetricKeyType ?? 'unknown'} key cannot make a PDF seal; use RSA or EC P-256/P-384/P-521.`,
+  );
 }
-
-const toArrayBuffer = (bytes: Buffer): ArrayBuffer =>
-  bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer;
 
 const pkijsCertificate = (certificate: X509Certificate) =>
   pkijs.Certificate.fromBER(toArrayBuffer(certificate.raw));
@@ -64,7 +63,7 @@ export class PadesSigner extends Signer {
     super();
   }
 
-  async sign(signedBytes: Buffer): Promise<Buffer> {
+  override async sign(signedBytes: Buffer): Promise<Buffer> {
     const { privateKey, certificate, chain } = this.options;
     const algorithm = webCryptoAlgorithm(privateKey);
     const cryptoKey = await webcrypto.subtle.importKey(
@@ -77,14 +76,18 @@ export class PadesSigner extends Signer {
     const leaf = pkijsCertificate(certificate);
     const essCertIdV2 = new asn1js.Sequence({
       value: [
-        new asn1js.OctetString({ valueHex: toArrayBuffer(createHash('sha256').update(certificate.raw).digest()) }),
+        new asn1js.OctetString({
+          valueHex: toArrayBuffer(createHash('sha256').update(certificate.raw).digest()),
+        }),
         new pkijs.IssuerSerial({
           issuer: new pkijs.GeneralNames({ names: [new pkijs.GeneralName({ type: 4, value: leaf.issuer })] }),
           serialNumber: leaf.serialNumber,
         }).toSchema(),
       ],
     });
-    const signingCertificateV2 = new asn1js.Sequence({ value: [new asn1js.Sequence({ value: [essCertIdV2] })] });
+    const signingCertificateV2 = new asn1js.Sequence({
+      value: [new asn1js.Sequence({ value: [essCertIdV2] })],
+    });
     const digest = createHash('sha256').update(signedBytes).digest();
     const signedData = new pkijs.SignedData({
       version: 1,
@@ -96,8 +99,14 @@ export class PadesSigner extends Signer {
           signedAttrs: new pkijs.SignedAndUnsignedAttributes({
             type: 0,
             attributes: [
-              new pkijs.Attribute({ type: OID.contentType, values: [new asn1js.ObjectIdentifier({ value: OID.data })] }),
-              new pkijs.Attribute({ type: OID.messageDigest, values: [new asn1js.OctetString({ valueHex: toArrayBuffer(digest) })] }),
+              new pkijs.Attribute({
+                type: OID.contentType,
+                values: [new asn1js.ObjectIdentifier({ value: OID.data })],
+              }),
+              new pkijs.Attribute({
+                type: OID.messageDigest,
+                values: [new asn1js.OctetString({ valueHex: toArrayBuffer(digest) })],
+              }),
               new pkijs.Attribute({ type: OID.signingCertificateV2, values: [signingCertificateV2] }),
             ],
           }),
@@ -106,7 +115,10 @@ export class PadesSigner extends Signer {
       certificates: [leaf, ...chain.map(pkijsCertificate)],
     });
     await signedData.sign(cryptoKey, 0, 'SHA-256', undefined, engine);
-    const contentInfo = new pkijs.ContentInfo({ contentType: OID.signedData, content: signedData.toSchema(true) });
+    const contentInfo = new pkijs.ContentInfo({
+      contentType: OID.signedData,
+      content: signedData.toSchema(true),
+    });
     return Buffer.from(contentInfo.toSchema().toBER(false));
   }
 }

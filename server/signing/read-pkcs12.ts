@@ -37,7 +37,9 @@ export function readPkcs12(p12: Uint8Array, passphrase: string): Pkcs12Contents 
     );
   }
   const keyBags = [
-    ...(store.getBags({ bagType: forge.pki.oids.pkcs8ShroudedKeyBag })[forge.pki.oids.pkcs8ShroudedKeyBag ?? ''] ?? []),
+    ...(store.getBags({ bagType: forge.pki.oids.pkcs8ShroudedKeyBag })[
+      forge.pki.oids.pkcs8ShroudedKeyBag ?? ''
+    ] ?? []),
     ...(store.getBags({ bagType: forge.pki.oids.keyBag })[forge.pki.oids.keyBag ?? ''] ?? []),
   ];
   const keys = keyBags.map((bag) => {
@@ -46,12 +48,14 @@ export function readPkcs12(p12: Uint8Array, passphrase: string): Pkcs12Contents 
       : (bag as unknown as { asn1: forge.asn1.Asn1 }).asn1;
     return createPrivateKey({ key: binary(forge.asn1.toDer(info).getBytes()), format: 'der', type: 'pkcs8' });
   });
-  const certificates = (store.getBags({ bagType: forge.pki.oids.certBag })[forge.pki.oids.certBag ?? ''] ?? []).map(
-    (bag) => {
-      const asn1 = bag.cert ? forge.pki.certificateToAsn1(bag.cert) : (bag as unknown as { asn1: forge.asn1.Asn1 }).asn1;
-      return new X509Certificate(binary(forge.asn1.toDer(asn1).getBytes()));
-    },
-  );
+  const certificates = (
+    store.getBags({ bagType: forge.pki.oids.certBag })[forge.pki.oids.certBag ?? ''] ?? []
+  ).map((bag) => {
+    const asn1 = bag.cert
+      ? forge.pki.certificateToAsn1(bag.cert)
+      : (bag as unknown as { asn1: forge.asn1.Asn1 }).asn1;
+    return new X509Certificate(binary(forge.asn1.toDer(asn1).getBytes()));
+  });
   const privateKey = keys[0];
   if (!privateKey) throw new Error('The PKCS#12 file holds no private key.');
   const certificate = certificates.find((candidate) => candidate.checkPrivateKey(privateKey));

@@ -47,7 +47,10 @@ const environmentSchema = z
 
 export const DEFAULT_SIGNING_DIR = path.join('.data', 'signing');
 
-export function signingConfigFromEnv(source: NodeJS.ProcessEnv = process.env, cwd = process.cwd()): SigningConfig {
+export function signingConfigFromEnv(
+  source: NodeJS.ProcessEnv = process.env,
+  cwd = process.cwd(),
+): SigningConfig {
   const result = environmentSchema.safeParse(source);
   if (!result.success) {
     const problems = result.error.issues.map((issue) => `  ${issue.path.join('.')}: ${issue.message}`);

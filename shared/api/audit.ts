@@ -70,7 +70,15 @@ export type AuditFilterInput = z.input<typeof auditFilterSchema>;
 export type AuditFilter = z.output<typeof auditFilterSchema>;
 
 /** The fields of the filter that narrow the events (all but the page), in form order. */
-export const AUDIT_FILTER_FIELDS = ['user', 'actor', 'action', 'recordType', 'recordId', 'from', 'to'] as const;
+export const AUDIT_FILTER_FIELDS = [
+  'user',
+  'actor',
+  'action',
+  'recordType',
+  'recordId',
+  'from',
+  'to',
+] as const;
 
 /**
  * The query string that reproduces a filter (for page links and the export link); absent fields

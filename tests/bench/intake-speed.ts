@@ -106,7 +106,9 @@ interface Measurement {
 }
 
 /** Child: read and map only (no database). */
-async function readAndMap(bytes: Buffer): Promise<{ phases: Record<string, number>; cpu: Record<string, number> }> {
+async function readAndMap(
+  bytes: Buffer,
+): Promise<{ phases: Record<string, number>; cpu: Record<string, number> }> {
   const read = process.hrtime.bigint();
   const readCpu = process.cpuUsage();
   const sheets = await readWorkbook(bytes);

@@ -10,3 +10,4 @@ export * from './sessions.ts';
 export * from './studies.ts';
 export * from './uploads.ts';
 export * from './users.ts';
+export * from './mail.ts';

@@ -1,6 +1,10 @@
+import { sql } from 'drizzle-orm';
 import { index, integer, jsonb, pgEnum, pgTable, serial, text, timestamp } from 'drizzle-orm/pg-core';
-import { createdAt } from './columns.ts';
 import { organisations } from './organisations.ts';
+
+/** A time set by the database clock, as `createdAt()` in columns.ts, under this table's own name. */
+const databaseNow = (name: string) =>
+  timestamp(name, { withTimezone: true, mode: 'date' }).notNull().default(sql`now()`);
 
 /** One header line of a received message as it arrived (unfolded, not decoded). */
 export interface ReceivedHeaderLine {
@@ -37,7 +41,7 @@ export const receivedMail = pgTable(
     sentAt: timestamp('sent_at', { withTimezone: true, mode: 'date' }),
     sizeBytes: integer('size_bytes').notNull(),
     headers: jsonb('headers').$type<ReceivedHeaderLine[]>().notNull().default([]),
-    receivedAt: createdAt(),
+    receivedAt: databaseNow('received_at'),
   },
   (table) => [index('received_mail_org_received').on(table.organisationId, table.receivedAt)],
 );
@@ -69,7 +73,7 @@ export const outgoingMail = pgTable(
     /** Where it was sent (`smtp://host:port`, never credentials). */
     transport: text('transport').notNull(),
     durationMs: integer('duration_ms').notNull(),
-    attemptedAt: createdAt(),
+    attemptedAt: databaseNow('attempted_at'),
   },
   (table) => [index('outgoing_mail_org_attempted').on(table.organisationId, table.attemptedAt)],
 );

@@ -1,4 +1,5 @@
 import { Link, useParams } from 'react-router-dom';
+import { useMe } from '../../session/api/get-me.ts';
 import { useCreateReportVersion } from '../api/create-report-version.ts';
 import { useReport } from '../api/get-report.ts';
 import { isRendering } from '../api/report-keys.ts';
@@ -11,6 +12,8 @@ export function ReportDetail() {
   const reportId = Number(useParams().reportId);
   const report = useReport(reportId);
   const renderAgain = useCreateReportVersion(reportId);
+  // Only analysts may render; the server enforces it, the button just does not offer it to others.
+  const canRender = useMe().data?.roles.includes('analyst') ?? false;
 
   if (!Number.isInteger(reportId) || reportId <= 0) return <p role="alert">There is no such report.</p>;
   if (report.isPending) return <p className="text-ink-muted">Loading the report…</p>;
@@ -52,14 +55,16 @@ export function ReportDetail() {
 
       <div className="mt-4 flex items-center gap-3">
         <h2 className="font-serif text-lg">Versions</h2>
-        <button
-          type="button"
-          className="rounded-sm border border-ledger px-2 py-1 text-sm text-ledger hover:bg-paper disabled:opacity-40"
-          disabled={renderAgain.isPending}
-          onClick={() => renderAgain.mutate({})}
-        >
-          Render a new version
-        </button>
+        {canRender && (
+          <button
+            type="button"
+            className="rounded-sm border border-ledger px-2 py-1 text-sm text-ledger hover:bg-paper disabled:opacity-40"
+            disabled={renderAgain.isPending}
+            onClick={() => renderAgain.mutate({})}
+          >
+            Render a new version
+          </button>
+        )}
         <span aria-live="polite" className="text-sm text-ink-muted">
           {running ? 'Rendering — this page updates by itself.' : ''}
         </span>
