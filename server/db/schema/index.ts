@@ -11,3 +11,5 @@ export * from './studies.ts';
 export * from './uploads.ts';
 export * from './users.ts';
 export * from './mail.ts';
+export * from './review.ts';
+export * from './settings.ts';
