@@ -1,5 +1,5 @@
 import type { AddressInfo } from 'node:net';
-import { type AddressObject, simpleParser } from 'mailparser';
+import { type AddressObject, type EmailAddress, simpleParser } from 'mailparser';
 import { SMTPServer, type SMTPServerDataStream, type SMTPServerSession } from 'smtp-server';
 import type { Database } from '../db/client.ts';
 import { type ReceivedHeaderLine, receivedMail } from '../db/schema/index.ts';
@@ -48,8 +48,16 @@ class SmtpReplyError extends Error {
 // PostgreSQL text cannot hold NUL; a message with one is still stored, without it.
 const clean = (value: string | undefined | null) => (value ?? '').replaceAll('\u0000', '');
 
-const addressText = (value: AddressObject | AddressObject[] | undefined) =>
-  clean((Array.isArray(value) ? value : value ? [value] : []).map((entry) => entry.text).join(', '));
+/** `Name <address>, address` — for reading, so display names are shown unquoted. */
+function addressText(value: AddressObject | AddressObject[] | undefined): string {
+  const show = (entry: EmailAddress): string => {
+    if (entry.group) return `${entry.name}: ${entry.group.map(show).join(', ')};`;
+    if (!entry.address) return entry.name;
+    return entry.name ? `${entry.name} <${entry.address}>` : entry.address;
+  };
+  const objects = Array.isArray(value) ? value : value ? [value] : [];
+  return clean(objects.flatMap((object) => object.value.map(show)).join(', '));
+}
 
 function claimedOrganisation(value: unknown): number | null {
   const text = typeof value === 'string' ? value.trim() : '';

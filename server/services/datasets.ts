@@ -11,6 +11,7 @@
  * audit events are written in one transaction.
  */
 
+import { sql } from 'drizzle-orm';
 import type { ImportResponse, MappingCheck } from '../../shared/api/uploads.ts';
 import type { ColumnMapping } from '../../shared/intake/column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from '../../shared/intake/intake-problem.ts';
@@ -164,7 +165,10 @@ export async function importUpload(
   if (!mapped.ok) throw problemsError(mapped.problems);
   const series = mapped.series;
   const pointCount = series.reduce((sum, entry) => sum + entry.observations.length, 0);
-  const sha256 = seriesSha256(series);
+  // The canonical text is hashed and is also what is stored (jsonb keeps no key order, so the
+  // stored value is the same), which spares writing 100,000 observations out a second time.
+  const seriesJson = canonicalSeriesJson(series);
+  const sha256 = sha256Hex(seriesJson);
   const sheet = sheets.find((candidate) => candidate.name === mapping.sheet) ?? sheets[0]!;
   const storedMapping: ColumnMapping = { ...mapping, sheet: sheet.name };
 
@@ -176,7 +180,7 @@ export async function importUpload(
         studyId: upload.studyId,
         uploadId: upload.id,
         mapping: storedMapping,
-        series,
+        series: sql`${seriesJson}::jsonb`,
         pointCount,
         sha256,
         createdBy: actor.id,

@@ -1,4 +1,5 @@
 import { execFile } from 'node:child_process';
+import type { X509Certificate } from 'node:crypto';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -149,7 +150,7 @@ export async function verifyPdfSeal(
   if (bytes.length === 0) return unsigned('The file is empty.');
   if (!bytes.subarray(0, 1024).includes('%PDF-'))
     return unsigned('The file is not a PDF (no "%PDF-" header).');
-  let trusted;
+  let trusted: X509Certificate[];
   try {
     trusted = certificatesFromPem(options.caPem);
   } catch {
