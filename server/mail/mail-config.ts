@@ -46,7 +46,12 @@ export function parseMailConfig(source: NodeJS.ProcessEnv = process.env): MailCo
     throw new Error(`Rateledger cannot start; fix the mail settings:\n${problems.join('\n')}`);
   }
   const { SMTP_URL, MAIL_FROM, PUBLIC_URL, LOCAL_SMTP_PORT } = result.data;
-  return { smtpUrl: SMTP_URL, from: MAIL_FROM, publicUrl: PUBLIC_URL, localSmtpPort: LOCAL_SMTP_PORT };
+  // Without PUBLIC_URL, links point at the address the server itself listens on.
+  const listening =
+    source.PUBLIC_URL === undefined && (source.PORT || source.HOST)
+      ? `http://${source.HOST || '127.0.0.1'}:${source.PORT || '3000'}`
+      : PUBLIC_URL;
+  return { smtpUrl: SMTP_URL, from: MAIL_FROM, publicUrl: listening, localSmtpPort: LOCAL_SMTP_PORT };
 }
 
 let cached: MailConfig | undefined;

@@ -1,4 +1,4 @@
-import { X509Certificate } from 'node:crypto';
+import { createHash, X509Certificate } from 'node:crypto';
 import * as asn1js from 'asn1js';
 import * as pkijs from 'pkijs';
 import { pkijsEngine, toArrayBuffer } from './pkijs-engine.ts';
@@ -28,6 +28,8 @@ import { pkijsEngine, toArrayBuffer } from './pkijs-engine.ts';
 export interface ContentsCheck {
   intact: boolean;
   problem?: string;
+  /** SHA-256 (hex) of the signer's certificate, when the signature verified. */
+  signerCertificateSha256?: string;
 }
 
 function certificateSignaturesHold(
@@ -72,15 +74,20 @@ export async function checkSignatureContents(
     const signedData = new pkijs.SignedData({ schema: contentInfo.content });
     const data = Buffer.concat([pdf.subarray(first[0], first[1]), pdf.subarray(second[0], second[1])]);
     const verified = await signedData
-      .verify({ signer: 0, data: toArrayBuffer(data), checkChain: false }, pkijsEngine)
-      .catch(() => false);
-    if (!verified) return fail('the signature does not verify over the signed bytes');
+      .verify({ signer: 0, data: toArrayBuffer(data), checkChain: false, extendedMode: true }, pkijsEngine)
+      .catch(() => undefined);
+    if (!verified?.signatureVerified || !verified.signerCertificate) {
+      return fail('the signature does not verify over the signed bytes');
+    }
+    const signerCertificateSha256 = createHash('sha256')
+      .update(Buffer.from(verified.signerCertificate.toSchema().toBER(false)))
+      .digest('hex');
     const embedded = (signedData.certificates ?? [])
       .filter((item): item is pkijs.Certificate => item instanceof pkijs.Certificate)
       .map((item) => new X509Certificate(Buffer.from(item.toSchema().toBER(false))));
     const broken = certificateSignaturesHold(embedded, trusted);
     if (broken) return fail(broken);
-    return { intact: true };
+    return { intact: true, signerCertificateSha256 };
   } catch (error) {
     return fail(`the signature contents cannot be read (${(error as Error).message})`);
   }

@@ -27,7 +27,11 @@ export async function samplePdf(options: { objectStreams?: boolean } = {}): Prom
 /** Runs a Debian tool and returns stdout+stderr whatever its exit status. */
 export function tool(command: string, args: string[], env: NodeJS.ProcessEnv = {}): string {
   try {
-    return execFileSync(command, args, { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], env: { ...process.env, ...env } });
+    return execFileSync(command, args, {
+      encoding: 'utf8',
+      stdio: ['ignore', 'pipe', 'pipe'],
+      env: { ...process.env, ...env },
+    });
   } catch (error) {
     const failed = error as { stdout?: string; stderr?: string };
     return `${failed.stdout ?? ''}${failed.stderr ?? ''}`;

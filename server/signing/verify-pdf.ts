@@ -52,6 +52,9 @@ export interface VerifyPdfSealOptions {
 export interface SignatureCheck extends PdfsigSignature {
   contentsIntact: boolean;
   contentsProblem?: string;
+  signerCertificateSha256?: string;
+  /** Trusted because pdfsig trusted the identical certificate on an earlier signature (see below). */
+  trustedAsEarlierSignature?: boolean;
 }
 
 export interface PdfSealVerification {
@@ -71,6 +74,29 @@ const DEFAULT_TIMEOUT_MS = 20_000;
 const MAX_OUTPUT_BYTES = 4 * 1024 * 1024;
 const VALID = 'Signature is Valid.';
 const TRUSTED = 'Certificate is Trusted.';
+const UNKNOWN_ISSUE = 'Unknown issue with Certificate or corrupted data.';
+
+/**
+ * pdfsig 22.12 reports "Unknown issue with Certificate" for the second and later signatures of
+ * one file made with the same certificate (NSS refuses to import the already imported
+ * certificate again and poppler reads that leftover error as the verdict; certificates that
+ * differ are unaffected — observed here). Trust belongs to the certificate, so a signature whose
+ * signer certificate is byte-identical to one pdfsig trusted on an earlier signature of the same
+ * file is counted as trusted, and marked so.
+ */
+function carryTrust(signatures: SignatureCheck[]): void {
+  const trustedCertificates = new Set<string>();
+  for (const signature of signatures) {
+    const fingerprint = signature.signerCertificateSha256;
+    if (!fingerprint) continue;
+    if (signature.certificateValidation === TRUSTED) trustedCertificates.add(fingerprint);
+    else if (signature.certificateValidation === UNKNOWN_ISSUE && trustedCertificates.has(fingerprint)) {
+      signature.trustedAsEarlierSignature = true;
+    }
+  }
+}
+const isTrusted = (s: SignatureCheck) =>
+  s.certificateValidation === TRUSTED || s.trustedAsEarlierSignature === true;
 
 function unsigned(reason: string): PdfSealVerification {
   return {
@@ -123,7 +149,7 @@ function verdict(
   const cryptographic = signatures.every((s) => s.signatureValidation === VALID && s.contentsIntact);
   const wholeDocumentCovered = last?.totalDocumentSigned === true;
   const valid = cryptographic && wholeDocumentCovered;
-  const trusted = signatures.every((s) => s.certificateValidation === TRUSTED);
+  const trusted = signatures.every(isTrusted);
   const broken = signatures.find((s) => s.signatureValidation !== VALID || !s.contentsIntact);
   let reason: string;
   if (!digestOk)
@@ -135,7 +161,7 @@ function verdict(
   else if (!wholeDocumentCovered)
     reason = 'Bytes were added after the last signature: it does not cover the whole file.';
   else if (!trusted) {
-    const untrusted = signatures.find((s) => s.certificateValidation !== TRUSTED);
+    const untrusted = signatures.find((s) => !isTrusted(s));
     reason = `The signature is intact, but its certificate is not trusted here: ${untrusted?.certificateValidation ?? 'unknown'}`;
   } else
     reason = 'The signature is valid, covers the whole file, and its certificate chains to the trusted CA.';
@@ -178,8 +204,14 @@ export async function verifyPdfSeal(
     const signatures: SignatureCheck[] = [];
     for (const signature of found) {
       const check = await checkSignatureContents(bytes, signature.signedRanges, trusted);
-      signatures.push({ ...signature, contentsIntact: check.intact, contentsProblem: check.problem });
+      signatures.push({
+        ...signature,
+        contentsIntact: check.intact,
+        contentsProblem: check.problem,
+        signerCertificateSha256: check.signerCertificateSha256,
+      });
     }
+    carryTrust(signatures);
     const last = signatures.at(-1);
     return {
       signed: true,
