@@ -15,8 +15,11 @@ import { healthRoutes } from './routes/health-routes.ts';
 import { outboxRoutes } from './routes/outbox-routes.ts';
 import { pageRoutes } from './routes/page-routes.ts';
 import { reportRoutes } from './routes/report-routes.ts';
+import { reviewRoutes } from './routes/review-routes.ts';
 import { studyRoutes } from './routes/study-routes.ts';
+import { templateAdminRoutes } from './routes/template-admin-routes.ts';
 import { uploadRoutes } from './routes/upload-routes.ts';
+import { verificationRoutes } from './routes/verification-routes.ts';
 import type { AppOptions, AppServices } from './services/app-services.ts';
 import { CLIENT_DIST, readClientAssets } from './web/assets.ts';
 import { createViewEngine, VIEWS_DIR } from './web/view-engine.ts';
@@ -108,6 +111,9 @@ export function createApp(
   app.use(reportRoutes(services));
   app.use(studyRoutes(services));
   app.use(uploadRoutes(services));
+  app.use(reviewRoutes(services));
+  app.use(verificationRoutes(services));
+  app.use(templateAdminRoutes(services));
 
   app.use(notFound);
   app.use(errorHandler);

@@ -25,6 +25,8 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       heading: 'Reviewer',
       summary: 'Check analyses and reports drafted by others; return them with a comment or sign them.',
       links: [
+        { href: '/review', label: 'Waiting for my review' },
+        { href: '/verify', label: 'Verify a signed PDF' },
         { href: '/app/activity', label: 'My recorded activity' },
         { href: '/audit', label: 'Audit trail: filter, export, check the chain' },
       ],
@@ -36,6 +38,7 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       links: [
         { href: '/admin/people', label: 'People and roles' },
         { href: '/admin/outbox', label: 'Outbox: the mail Rateledger sent' },
+        { href: '/admin/templates', label: 'Report templates: edit, preview, publish' },
         { href: '/audit', label: 'Audit trail: filter, export, check the chain' },
       ],
     },

@@ -1,10 +1,15 @@
 import { and, eq, max, sql } from 'drizzle-orm';
 import type { CreateReportRequest, CreateReportVersionRequest, PaperSize } from '../../shared/api/reports.ts';
 import { createReportRequestSchema, createReportVersionRequestSchema } from '../../shared/api/reports.ts';
+import {
+  DEFAULT_REPORT_NUMBER_FORMAT,
+  parseReportNumberFormat,
+  reportNumberFrame,
+} from '../../shared/api/settings.ts';
 import { appendAuditEvent } from '../audit/audit-trail.ts';
 import type { SessionUser } from '../auth/roles.ts';
 import type { Database, Executor } from '../db/client.ts';
-import { organisations, reports, reportVersions } from '../db/schema/index.ts';
+import { organisationSettings, organisations, reports, reportVersions } from '../db/schema/index.ts';
 import { HttpError } from '../http/http-error.ts';
 import type { RenderQueue } from '../jobs/render-queue.ts';
 import { getAnalysisRun } from './analysis-runs.ts';
@@ -15,17 +20,15 @@ import { templateVersionForNewReports } from './report-templates.ts';
  * allocated, the report and its version are inserted, the render job is sent through the same
  * transaction and the audit events are appended — so either all of it exists or none of it.
  *
- * Report numbers read `RL-<year>-<sequence>` (`RL-2026-0001`): the year of the database clock in
- * the organisation's time zone, the sequence counting that organisation's reports of the year,
- * four digits at least. Allocation takes an advisory lock per organisation, so two reports
+ * Report numbers follow the organisation's format (settings; default `RL-{YYYY}-{NNNN}`, e.g.
+ * `RL-2026-0001`): the year of the database clock in the organisation's time zone, the sequence
+ * counting that organisation's reports of the year, as many digits as the format has N at least. Allocation takes an advisory lock per organisation, so two reports
  * created at once never get one number (the unique constraint would refuse it anyway).
  *
  * Reading (the history list, one report, its outputs) is in `report-history.ts`.
  */
 
-export const REPORT_NUMBER_PREFIX = 'RL';
 const REPORT_NUMBER_LOCK = 7_305_021;
-const SEQUENCE_DIGITS = 4;
 
 export type AuditContext = Record<string, unknown>;
 
@@ -40,21 +43,49 @@ export interface CreatedReport {
 /** Allocates the next report number of the organisation inside `tx`. */
 export async function allocateReportNumber(tx: Executor, organisationId: number): Promise<string> {
   await tx.execute(sql`select pg_advisory_xact_lock(${REPORT_NUMBER_LOCK}, ${organisationId})`);
-  const [clock] = await tx
-    .select({ year: sql<string>`to_char(now() at time zone ${organisations.timeZone}, 'YYYY')` })
+  return nextReportNumber(tx, organisationId);
+}
+
+const escapeRegex = (text: string) => text.replace(/[.*+?^${}()|[\]\\-]/g, '\\$&');
+
+/**
+ * The number the organisation's next report gets, in its format (`organisation_settings.
+ * report_number_format`, `RL-{YYYY}-{NNNN}` when no settings row exists), or in `format` when
+ * given (a preview of an unsaved format). The sequence is one above the highest among the
+ * organisation's numbers that fit the format for this year (or ever, when the format has no
+ * year), so a number is never given twice. Only `allocateReportNumber` holds the lock that makes
+ * it final; called directly it is a preview.
+ */
+export async function nextReportNumber(
+  executor: Executor,
+  organisationId: number,
+  format?: string,
+): Promise<string> {
+  const [clock] = await executor
+    .select({
+      year: sql<string>`to_char(now() at time zone ${organisations.timeZone}, 'YYYY')`,
+      format: organisationSettings.reportNumberFormat,
+    })
     .from(organisations)
+    .leftJoin(organisationSettings, eq(organisationSettings.organisationId, organisations.id))
     .where(eq(organisations.id, organisationId));
   if (!clock) throw new HttpError(404, 'Your organisation was not found.');
-  const prefix = `${REPORT_NUMBER_PREFIX}-${clock.year}-`;
-  const start = prefix.length + 1;
-  const [last] = await tx
-    .select({ sequence: sql<number | null>`max(substring(${reports.reportNumber} from ${start}::int)::int)` })
-    .from(reports)
-    .where(
-      and(eq(reports.organisationId, organisationId), sql`${reports.reportNumber} like ${`${prefix}%`}`),
+  const chosen = format ?? clock.format ?? DEFAULT_REPORT_NUMBER_FORMAT;
+  if (!parseReportNumberFormat(chosen).ok)
+    throw new HttpError(
+      409,
+      `The report number format "${chosen}" is not usable; an administrator must correct it in the settings.`,
     );
-  const next = (last?.sequence ?? 0) + 1;
-  return `${prefix}${String(next).padStart(SEQUENCE_DIGITS, '0')}`;
+  const frame = reportNumberFrame(chosen, clock.year);
+  const pattern = `^${escapeRegex(frame.prefix)}([0-9]+)${escapeRegex(frame.suffix)}$`;
+  const [last] = await executor
+    .select({
+      sequence: sql<string | null>`max(substring(${reports.reportNumber} from ${pattern})::numeric)::text`,
+    })
+    .from(reports)
+    .where(and(eq(reports.organisationId, organisationId), sql`${reports.reportNumber} ~ ${pattern}`));
+  const next = Number(last?.sequence ?? 0) + 1;
+  return `${frame.prefix}${String(next).padStart(frame.width, '0')}${frame.suffix}`;
 }
 
 /**

@@ -119,90 +119,19 @@ describe('a configured certificate', () => {
   it('is used instead of the local CA: an EC P-256 PKCS#12 made by OpenSSL', async () => {
     const folder = fresh('external');
     const file = (name: string) => path.join(folder, name);
-    const extensions = file('ext.cnf');
-    writeFileSync(
-      extensions,
-      '[ca]\nbasicConstraints=critical,CA:TRUE\nkeyUsage=critical,keyCertSign,cRLSign\n' +
-        '[leaf]\nbasicConstraints=critical,CA:FALSE\nkeyUsage=critical,digitalSignature,nonRepudiation\n',
-    );
-    const openssl = (...args: string[]) => run('openssl', args, { cwd: folder });
-    await openssl(
-      'req',
-      '-x509',
-      '-newkey',
-      'ec',
-      '-pkeyopt',
-      'ec_paramgen_curve:P-256',
-      '-nodes',
-      '-keyout',
-      'ca.key',
-    );
-    await openssl(
-      ...['req', '-x509', '-newkey', 'ec', '-pkeyopt', 'ec_paramgen_curve:P-256', '-nodes']
-        .concat([
-          '-keyout',
-          'ca.key',
-          '-out',
-          'ca.pem',
-          '-subj',
-          '/CN=Example Trust Services (invented)',
-          '-days',
-          '30',
-        ])
-        .concat([
-          '-addext',
-          'basicConstraints=critical,CA:TRUE',
-          '-addext',
-          'keyUsage=critical,keyCertSign,cRLSign',
-        ]),
-    );
-    await openssl(
-      'req',
-      '-newkey',
-      'ec',
-      '-pkeyopt',
-      'ec_paramgen_curve:P-256',
-      '-nodes',
-      '-keyout',
-      'leaf.key',
-      '-out',
-      'leaf.csr',
-      '-subj',
-      '/CN=Harbour Analytical QA (invented)/O=Harbour Analytical (invented)',
-    );
-    await openssl(
-      'x509',
-      '-req',
-      '-in',
-      'leaf.csr',
-      '-CA',
-      'ca.pem',
-      '-CAkey',
-      'ca.key',
-      '-CAcreateserial',
-      '-out',
-      'leaf.pem',
-      '-days',
-      '30',
-      '-extfile',
-      extensions,
-      '-extensions',
-      'leaf',
-    );
-    await openssl(
-      'pkcs12',
-      '-export',
-      '-inkey',
-      'leaf.key',
-      '-in',
-      'leaf.pem',
-      '-certfile',
-      'ca.pem',
-      '-out',
-      'org.p12',
-      '-passout',
-      'pass:correct horse',
-    );
+    // An outside CA and organisation certificate, both EC P-256, made by the OpenSSL CLI.
+    const script = [
+      'set -e',
+      'EC="-newkey ec -pkeyopt ec_paramgen_curve:P-256 -nodes"',
+      'openssl req -x509 $EC -keyout ca.key -out ca.pem -days 30 -subj "/CN=Example Trust Services (invented)"' +
+        ' -addext "basicConstraints=critical,CA:TRUE" -addext "keyUsage=critical,keyCertSign,cRLSign"',
+      'openssl req $EC -keyout leaf.key -out leaf.csr' +
+        ' -subj "/CN=Harbour Analytical QA (invented)/O=Harbour Analytical (invented)"',
+      'printf "basicConstraints=critical,CA:FALSE\\nkeyUsage=critical,digitalSignature,nonRepudiation\\n" > leaf.cnf',
+      'openssl x509 -req -in leaf.csr -CA ca.pem -CAkey ca.key -CAcreateserial -out leaf.pem -days 30 -extfile leaf.cnf',
+      'openssl pkcs12 -export -inkey leaf.key -in leaf.pem -certfile ca.pem -out org.p12 -passout "pass:correct horse"',
+    ].join('\n');
+    await run('bash', ['-c', script], { cwd: folder });
 
     const config = signingConfigFromEnv(
       {

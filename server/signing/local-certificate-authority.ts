@@ -1,4 +1,4 @@
-import { createHash, createPrivateKey, randomBytes, type X509Certificate } from 'node:crypto';
+import { createHash, createPrivateKey, randomBytes, X509Certificate } from 'node:crypto';
 import { existsSync, mkdirSync, readFileSync, renameSync } from 'node:fs';
 import path from 'node:path';
 import { withFileLock } from './file-lock.ts';
@@ -160,7 +160,11 @@ async function loadLocalIdentity(request: SigningIdentityRequest): Promise<Signi
       readFileSync(caFile, 'utf8'),
       'local-ca',
     );
-    return isFresh(identity, new Date()) ? identity : undefined;
+    // A certificate from an earlier CA (ca.pem was replaced by hand) would never be trusted: reissue.
+    const ca = new X509Certificate(identity.caPem);
+    const signer = new X509Certificate(identity.certificatePem);
+    const issuedByCa = signer.checkIssued(ca) && signer.verify(ca.publicKey);
+    return issuedByCa && isFresh(identity, new Date()) ? identity : undefined;
   };
   const found = existing();
   if (found) return found;
@@ -190,6 +194,9 @@ export function loadSigningIdentity(request: SigningIdentityRequest): Promise<Si
     request.signingDir,
     request.p12Path ?? null,
     request.p12Path ? '' : request.organisationName,
+    createHash('sha256')
+      .update(request.passphrase ?? '')
+      .digest('hex'),
   ]);
   const cached = cache.get(key);
   if (cached) {

@@ -68,11 +68,14 @@ function findColumns(
 }
 
 function groupRows(rows: DataRow[], fallbackId: string): Map<string, DataRow[]> {
-  const temperatures = new Set(rows.map((row) => row.temperatureC).filter((value) => value !== undefined));
+  const temperatures = new Set<number>();
+  for (const row of rows) if (row.temperatureC !== undefined) temperatures.add(row.temperatureC);
+  // Each temperature is formatted once, not once per row.
+  const temperatureTexts = new Map([...temperatures].map((celsius) => [celsius, formatTemperature(celsius)]));
   const groups = new Map<string, DataRow[]>();
   for (const row of rows) {
     const label = row.seriesLabel;
-    const temperature = row.temperatureC === undefined ? undefined : formatTemperature(row.temperatureC);
+    const temperature = row.temperatureC === undefined ? undefined : temperatureTexts.get(row.temperatureC);
     let id: string;
     if (label !== undefined && temperature !== undefined && temperatures.size > 1) {
       id = `${label} @ ${temperature}`;
@@ -87,12 +90,14 @@ function groupRows(rows: DataRow[], fallbackId: string): Map<string, DataRow[]> 
 }
 
 function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, problems: IntakeProblem[]): Series {
-  const dates = rows.flatMap((row) => (row.time instanceof Date ? [row.time.getTime()] : []));
   // A loop, not Math.min(...dates): spreading 100,000 arguments overflows the call stack.
-  const start =
-    dates.length > 0
-      ? new Date(dates.reduce((earliest, date) => (date < earliest ? date : earliest)))
-      : undefined;
+  let earliest: number | undefined;
+  for (const row of rows) {
+    if (!(row.time instanceof Date)) continue;
+    const date = row.time.getTime();
+    if (earliest === undefined || date < earliest) earliest = date;
+  }
+  const start = earliest === undefined ? undefined : new Date(earliest);
   // Keys are written in sorted order (here and in the series below) so that the dataset's
   // canonical JSON, which is hashed, is plain JSON.stringify of what is built here.
   const observations: Observation[] = rows.map((row) => ({
@@ -122,7 +127,8 @@ function buildSeries(id: string, rows: DataRow[], mapping: ColumnMapping, proble
     }
   }
   const first = rows[0];
-  const temperatures = new Set(rows.map((row) => row.temperatureC));
+  const temperatures = new Set<number | undefined>();
+  for (const row of rows) temperatures.add(row.temperatureC);
   const temperatureC =
     first?.temperatureC !== undefined && temperatures.size === 1 ? first.temperatureC : undefined;
   return {

@@ -10,6 +10,8 @@ const ISLANDS: Record<string, () => Promise<{ default: ComponentType }>> = {
   'column-mapping': () => import('./column-mapping-island.tsx'),
   'study-upload': () => import('./study-upload-island.tsx'),
   'study-run-analysis': () => import('./study-run-analysis-island.tsx'),
+  'verify-upload': () => import('../features/review/components/verify-upload.tsx'),
+  'template-editor': () => import('./template-editor-island.tsx'),
 };
 
 /** Mounts every island found in the page; unknown names are left as server-rendered HTML. */

@@ -1,8 +1,8 @@
 import { compensatedMean, compensatedSum } from '../numeric/compensated-sum.ts';
 import { fDistributionUpperTail } from '../numeric/f-distribution-upper-tail.ts';
 import { KineticsError } from '../numeric/kinetics-error.ts';
-import { linearLeastSquares } from '../numeric/linear-least-squares.ts';
-import { type AncovaModel, ancovaDesign } from './ancova-design.ts';
+import type { AncovaModel } from './ancova-design.ts';
+import { ancovaResidualSum } from './ancova-residual-sums.ts';
 import type { StabilityBatch, StabilityTransform, TransformedBatch } from './stability-batch.ts';
 import { transformedStabilityBatches } from './transformed-stability-batches.ts';
 
@@ -45,10 +45,7 @@ function nestedTest(
   reducedModel: AncovaModel,
   significance: number,
 ): NestedModelTest {
-  const fitModel = (model: AncovaModel) => {
-    const design = ancovaDesign(batches, model);
-    return linearLeastSquares(design.rows, design.response, { hasIntercept: true });
-  };
+  const fitModel = (model: AncovaModel) => ancovaResidualSum(batches, model);
   const full = fitModel(fullModel);
   const reduced = fitModel(reducedModel);
   const responses = batches.flatMap((batch) => batch.responses);

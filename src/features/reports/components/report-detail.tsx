@@ -128,6 +128,12 @@ export function ReportDetail() {
                       Download PDF
                     </a>
                     <a
+                      className="font-semibold text-ledger underline"
+                      href={`/review/reports/${data.id}/versions/${version.versionNumber}`}
+                    >
+                      Review and signing →
+                    </a>
+                    <a
                       className="text-ledger underline"
                       href={version.htmlUrl}
                       target="_blank"
