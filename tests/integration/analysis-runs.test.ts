@@ -80,7 +80,13 @@ describe('running an analysis', () => {
     const [event] = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.action, 'analysis.run'), eq(auditEvents.recordId, String(runId))));
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.action, 'analysis.run'),
+          eq(auditEvents.recordId, String(runId)),
+        ),
+      );
     expect(event?.actorUserId).toBe(world.users.analyst!.id);
     expect(event?.afterValue).toMatchObject({
       datasetId,
@@ -180,7 +186,11 @@ describe('running an analysis', () => {
       .select()
       .from(auditEvents)
       .where(
-        and(eq(auditEvents.action, 'analysis.point-excluded'), eq(auditEvents.recordId, String(newerId))),
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.action, 'analysis.point-excluded'),
+          eq(auditEvents.recordId, String(newerId)),
+        ),
       );
     expect(event?.context).toMatchObject({
       supersedesRunId: earlierId,

@@ -134,7 +134,13 @@ describe('import of a mapped upload', () => {
     const [event] = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.recordType, 'dataset'), eq(auditEvents.recordId, String(row!.id))));
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.recordType, 'dataset'),
+          eq(auditEvents.recordId, String(row!.id)),
+        ),
+      );
     expect(event!.action).toBe('dataset.imported');
     expect(event!.afterValue).toMatchObject({ uploadId, sha256: row!.sha256, pointCount: 6 });
   });

@@ -174,7 +174,11 @@ describe('a worker killed mid-render', () => {
       .select()
       .from(auditEvents)
       .where(
-        and(eq(auditEvents.action, 'report-version.rendered'), eq(auditEvents.recordId, String(ready.id))),
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.action, 'report-version.rendered'),
+          eq(auditEvents.recordId, String(ready.id)),
+        ),
       );
     expect(rendered).toHaveLength(1);
 

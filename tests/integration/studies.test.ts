@@ -58,7 +58,13 @@ describe('studies', () => {
     const [event] = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.recordType, 'study'), eq(auditEvents.recordId, String(id))));
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.recordType, 'study'),
+          eq(auditEvents.recordId, String(id)),
+        ),
+      );
     expect(event!.action).toBe('study.created');
     expect(event!.actorUserId).toBe(world.users.analyst!.id);
     expect(event!.beforeValue).toBeNull();
@@ -101,7 +107,13 @@ describe('studies', () => {
     const events = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.recordType, 'study'), eq(auditEvents.recordId, String(id))))
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.recordType, 'study'),
+          eq(auditEvents.recordId, String(id)),
+        ),
+      )
       .orderBy(asc(auditEvents.id));
     expect(events.map((event) => event.action)).toEqual(['study.created', 'study.updated']);
     expect(events[1]!.beforeValue).toEqual({ lowerLimit: 95, notes: 'Invented study for tests.' });

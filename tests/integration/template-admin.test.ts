@@ -84,7 +84,11 @@ async function auditOf(action: string) {
 beforeAll(async () => {
   world = await createTestWorld({ admin: ['admin'], analyst: ['analyst'], reviewer: ['reviewer'] });
   other = await createTestWorld({ admin: ['admin'] });
-  const sender = openRenderQueue({ config: parseRenderConfig(), pool: world.database.pool, supervise: false });
+  const sender = openRenderQueue({
+    config: parseRenderConfig(),
+    pool: world.database.pool,
+    supervise: false,
+  });
   // Reports are created for their template version only; nothing renders in this file.
   queue = { ...sender, enqueue: async () => 'not-sent' };
   ({ runId } = await makeAnalysisRun(world.database.db, world.organisationId, world.users.analyst!));
@@ -181,7 +185,10 @@ describe('saving and publishing', () => {
     expect(publishedEvents).toHaveLength(1);
     expect(publishedEvents[0]!.recordId).toBe(String(templateId));
     expect(publishedEvents[0]!.beforeValue).toEqual({ publishedVersionId: firstVersionId });
-    expect(publishedEvents[0]!.afterValue).toMatchObject({ versionNumber: 2, sha256: saved.body.version.sha256 });
+    expect(publishedEvents[0]!.afterValue).toMatchObject({
+      versionNumber: 2,
+      sha256: saved.body.version.sha256,
+    });
   });
 
   it('refuses to save a template with a syntax error, naming the part and the line; nothing is stored', async () => {
@@ -214,7 +221,7 @@ describe('saving and publishing', () => {
       .expect(422);
     // Line 3; column 8 is where the misspelt name starts, after `  <p>{{`.
     expect(refused.body.error.details[0]).toMatchObject({ part: 'partial "letterhead"', line: 3, column: 8 });
-    expect(refused.body.error.details[0].message).toContain('study.prodcut');
+    expect(refused.body.error.details[0].message).toContain('Unknown variable "prodcut"');
   });
 
   it('a stored version whose text does not compile cannot be published, and the error names the line', async () => {
@@ -238,7 +245,9 @@ describe('saving and publishing', () => {
       .set('x-csrf-token', adminToken)
       .send({ versionId: broken!.id })
       .expect(422);
-    expect(refused.body.error.message).toMatch(/^Version 3 cannot be published: .*body, line \d+, column \d+/);
+    expect(refused.body.error.message).toMatch(
+      /^Version 3 cannot be published: .*body, line \d+, column \d+/,
+    );
     expect(refused.body.error.details[0]).toMatchObject({ part: 'body' });
     expect(refused.body.error.details[0].line).toEqual(expect.any(Number));
     const [template] = await world.database.db
@@ -318,10 +327,16 @@ describe('compare and roll back', () => {
       }),
     );
     expect(lines).toContainEqual(
-      expect.objectContaining({ kind: 'added', text: `  <span class="letterhead-name">${NEW_LETTERHEAD}</span>` }),
+      expect.objectContaining({
+        kind: 'added',
+        text: `  <span class="letterhead-name">${NEW_LETTERHEAD}</span>`,
+      }),
     );
     expect(lines).toContainEqual(
-      expect.objectContaining({ kind: 'added', text: '  <span class="letterhead-study">{{study.title}}</span>' }),
+      expect.objectContaining({
+        kind: 'added',
+        text: '  <span class="letterhead-study">{{study.title}}</span>',
+      }),
     );
     expect(changed[0]).toMatchObject({ added: 2, removed: 1 });
   });
@@ -341,8 +356,16 @@ describe('compare and roll back', () => {
     const sha = (id: number) => versions.find((version) => version.id === id)!.sha256;
     expect(event!.actorUserId).toBe(world.users.admin!.id);
     expect(event!.recordId).toBe(String(templateId));
-    expect(event!.beforeValue).toEqual({ versionId: secondVersionId, versionNumber: 2, sha256: sha(secondVersionId) });
-    expect(event!.afterValue).toEqual({ versionId: firstVersionId, versionNumber: 1, sha256: sha(firstVersionId) });
+    expect(event!.beforeValue).toEqual({
+      versionId: secondVersionId,
+      versionNumber: 2,
+      sha256: sha(secondVersionId),
+    });
+    expect(event!.afterValue).toEqual({
+      versionId: firstVersionId,
+      versionNumber: 1,
+      sha256: sha(firstVersionId),
+    });
     expect(await templateVersionOf(await newReport())).toBe(firstVersionId);
   });
 });
@@ -360,7 +383,8 @@ describe('who may use the editor', () => {
           .replace(':id', String(templateId))
           .concat(route.path.endsWith('/diff') ? `?from=${firstVersionId}&to=${secondVersionId}` : '');
         for (const method of route.methods) {
-          const call = method === 'post' ? agent.post(url).set('x-csrf-token', token).send({}) : agent.get(url);
+          const call =
+            method === 'post' ? agent.post(url).set('x-csrf-token', token).send({}) : agent.get(url);
           const response = await call;
           expect({ name, method, url, status: response.status }).toEqual({ name, method, url, status: 403 });
           if (url.startsWith('/api/')) expect(response.body.error.message).toBe('This needs the admin role.');

@@ -101,7 +101,13 @@ describe('upload', () => {
     const [event] = await world.database.db
       .select()
       .from(auditEvents)
-      .where(and(eq(auditEvents.recordType, 'upload'), eq(auditEvents.recordId, String(row!.id))));
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.recordType, 'upload'),
+          eq(auditEvents.recordId, String(row!.id)),
+        ),
+      );
     expect(event).toMatchObject({ action: 'upload.stored', actorUserId: world.users.analyst!.id });
     expect(event!.afterValue).toMatchObject({ sha256: expectedHash, sizeBytes: bytes.length });
   });
