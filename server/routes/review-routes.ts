@@ -41,7 +41,9 @@ const auditContext = (req: Request) => ({ ip: req.ip ?? null, userAgent: req.get
 
 /** Field errors of a refused form, by field name, for the page to show beside the fields. */
 function fieldErrors(error: HttpError): Record<string, string> {
-  const details = Array.isArray(error.details) ? (error.details as { field?: string; message?: string }[]) : [];
+  const details = Array.isArray(error.details)
+    ? (error.details as { field?: string; message?: string }[])
+    : [];
   return Object.fromEntries(details.map((detail) => [detail.field ?? 'form', detail.message ?? '']));
 }
 
@@ -86,7 +88,10 @@ export function reviewRoutes(services: AppServices): Router {
       res.redirect(303, reviewPath(params.reportId, params.version));
     } catch (error) {
       const known = error instanceof HttpError ? error : null;
-      const zod = (error as { name?: string }).name === 'ZodError' ? (error as { issues: { path: PropertyKey[]; message: string }[] }) : null;
+      const zod =
+        (error as { name?: string }).name === 'ZodError'
+          ? (error as { issues: { path: PropertyKey[]; message: string }[] })
+          : null;
       if (!known && !zod) throw error;
       const errors = known
         ? fieldErrors(known)
@@ -99,7 +104,14 @@ export function reviewRoutes(services: AppServices): Router {
         {
           formError: { [form]: known ? known.message : 'Some fields are not valid.' },
           errors: { [form]: errors },
-          typed: { [form]: { note: body.note, comment: body.comment, meaning: body.meaning, identity: body.identity } },
+          typed: {
+            [form]: {
+              note: body.note,
+              comment: body.comment,
+              meaning: body.meaning,
+              identity: body.identity,
+            },
+          },
         },
         known?.status ?? 400,
       );
@@ -125,14 +137,28 @@ export function reviewRoutes(services: AppServices): Router {
 
   router.post('/review/reports/:reportId/versions/:version/submit', requireRole('analyst'), (req, res) =>
     formAction(req, res, 'submit', async ({ reportId, version }) => {
-      const outcome = await submitForReview(db, req.user!, reportId, version, submitForReviewSchema.parse(req.body ?? {}), auditContext(req));
+      const outcome = await submitForReview(
+        db,
+        req.user!,
+        reportId,
+        version,
+        submitForReviewSchema.parse(req.body ?? {}),
+        auditContext(req),
+      );
       return `Submitted for review (round ${outcome.round}) to ${outcome.reviewers.map((person) => person.fullName).join(', ')}.`;
     }),
   );
 
   router.post('/review/reports/:reportId/versions/:version/return', requireRole('reviewer'), (req, res) =>
     formAction(req, res, 'return', async ({ reportId, version }) => {
-      await returnForRework(db, req.user!, reportId, version, returnForReworkSchema.parse(req.body ?? {}), auditContext(req));
+      await returnForRework(
+        db,
+        req.user!,
+        reportId,
+        version,
+        returnForReworkSchema.parse(req.body ?? {}),
+        auditContext(req),
+      );
       return 'Returned to the author with your comment.';
     }),
   );
@@ -141,33 +167,59 @@ export function reviewRoutes(services: AppServices): Router {
   router.post('/review/reports/:reportId/versions/:version/sign', requireRole(...READERS), (req, res) =>
     formAction(req, res, 'sign', async ({ reportId, version }) => {
       const input = signReportSchema.parse(req.body ?? {});
-      const outcome = await signReportVersion(db, storage, req.user!, req.session, reportId, version, input, auditContext(req));
+      const outcome = await signReportVersion(
+        db,
+        storage,
+        req.user!,
+        req.session,
+        reportId,
+        version,
+        input,
+        auditContext(req),
+      );
       req.session.firstSigningDone = true;
-      await new Promise<void>((resolve, reject) => req.session.save((error) => (error ? reject(error) : resolve())));
-      return `Signed (${input.meaning}) at ${outcome.signedAt.toISOString()}. The version is now locked.`;
+      await new Promise<void>((resolve, reject) =>
+        req.session.save((error) => (error ? reject(error) : resolve())),
+      );
+      return `Signed (${input.meaning}) at ${outcome.signedAtText}. The version is now locked.`;
     }),
   );
 
-  router.get('/review/reports/:reportId/versions/:version/signed.pdf', requireRole(...READERS), async (req, res) => {
-    const { reportId, version } = reviewVersionParamSchema.parse(req.params);
-    const subject = await loadReviewVersion(db, req.user!.organisationId, reportId, version);
-    const output = await latestSignedOutput(db, subject.version.id);
-    if (!output) throw new HttpError(404, `${subject.report.reportNumber} version ${version} has not been signed yet.`);
-    const pdf = await storage.readPdf(output.pdfSha256).catch(() => null);
-    if (pdf && sha256Hex(pdf) !== output.pdfSha256) {
-      console.error(`[review] stored signed PDF ${output.pdfSha256} does not match its record`);
-      throw new HttpError(500, 'The stored signed PDF does not match its record; it has not been sent. Tell your administrator.');
-    }
-    if (!pdf) throw new HttpError(503, `The signed PDF of ${subject.report.reportNumber} version ${version} is not in the report store.`);
-    res
-      .set({
-        'content-type': 'application/pdf',
-        'content-disposition': `attachment; filename="${subject.report.reportNumber}-v${version}-signed.pdf"`,
-        etag: `"${output.pdfSha256}"`,
-        'cache-control': 'private, max-age=31536000, immutable',
-      })
-      .send(pdf);
-  });
+  router.get(
+    '/review/reports/:reportId/versions/:version/signed.pdf',
+    requireRole(...READERS),
+    async (req, res) => {
+      const { reportId, version } = reviewVersionParamSchema.parse(req.params);
+      const subject = await loadReviewVersion(db, req.user!.organisationId, reportId, version);
+      const output = await latestSignedOutput(db, subject.version.id);
+      if (!output)
+        throw new HttpError(
+          404,
+          `${subject.report.reportNumber} version ${version} has not been signed yet.`,
+        );
+      const pdf = await storage.readPdf(output.pdfSha256).catch(() => null);
+      if (pdf && sha256Hex(pdf) !== output.pdfSha256) {
+        console.error(`[review] stored signed PDF ${output.pdfSha256} does not match its record`);
+        throw new HttpError(
+          500,
+          'The stored signed PDF does not match its record; it has not been sent. Tell your administrator.',
+        );
+      }
+      if (!pdf)
+        throw new HttpError(
+          503,
+          `The signed PDF of ${subject.report.reportNumber} version ${version} is not in the report store.`,
+        );
+      res
+        .set({
+          'content-type': 'application/pdf',
+          'content-disposition': `attachment; filename="${subject.report.reportNumber}-v${version}-signed.pdf"`,
+          etag: `"${output.pdfSha256}"`,
+          'cache-control': 'private, max-age=31536000, immutable',
+        })
+        .send(pdf);
+    },
+  );
 
   return router;
 }

@@ -23,10 +23,25 @@ function receivePdf(): RequestHandler {
     parse(req, res, (error: unknown) => {
       if (!error) return next();
       if (error instanceof multer.MulterError && error.code === 'LIMIT_FILE_SIZE')
-        return next(new HttpError(413, `The file is larger than ${LIMIT_MB} MB; a Rateledger report is far smaller. Check that you chose the right file.`));
+        return next(
+          new HttpError(
+            413,
+            `The file is larger than ${LIMIT_MB} MB; a Rateledger report is far smaller. Check that you chose the right file.`,
+          ),
+        );
       if (error instanceof multer.MulterError)
-        return next(new HttpError(400, `The upload could not be read: ${error.message}. Send one PDF in the field "${VERIFY_UPLOAD_FIELD}".`));
-      next(new HttpError(400, 'The upload could not be read: the form data is incomplete or malformed. Try again.'));
+        return next(
+          new HttpError(
+            400,
+            `The upload could not be read: ${error.message}. Send one PDF in the field "${VERIFY_UPLOAD_FIELD}".`,
+          ),
+        );
+      next(
+        new HttpError(
+          400,
+          'The upload could not be read: the form data is incomplete or malformed. Try again.',
+        ),
+      );
     });
   };
 }
@@ -43,7 +58,13 @@ export function verificationRoutes(services: AppServices): Router {
     const parsed = verifyReportQuerySchema.safeParse(req.query);
     const typed = typeof req.query.report === 'string' ? req.query.report.slice(0, 64) : '';
     if (!parsed.success) {
-      return renderPage(req, res, 'verify', { title: 'Verify a PDF', typed, lookupError: parsed.error.issues[0]?.message, limitMb: LIMIT_MB }, 400);
+      return renderPage(
+        req,
+        res,
+        'verify',
+        { title: 'Verify a PDF', typed, lookupError: parsed.error.issues[0]?.message, limitMb: LIMIT_MB },
+        400,
+      );
     }
     const number = parsed.data.report;
     const lookup = number ? await signedRecordsOfReport(services.db, req.user!, number) : null;
@@ -58,10 +79,15 @@ export function verificationRoutes(services: AppServices): Router {
 
   router.post('/api/verify', signedIn(), receivePdf(), async (req, res) => {
     if (!req.file || req.file.size === 0)
-      throw new HttpError(400, `Choose a PDF file to check (form field "${VERIFY_UPLOAD_FIELD}"); the upload was empty.`);
+      throw new HttpError(
+        400,
+        `Choose a PDF file to check (form field "${VERIFY_UPLOAD_FIELD}"); the upload was empty.`,
+      );
     // Browsers send the name as UTF-8 bytes that busboy reads as Latin-1.
     const fileName = Buffer.from(req.file.originalname, 'latin1').toString('utf8').slice(0, 200);
-    res.set('cache-control', 'no-store').json(await verifyPdf(services.db, req.user!, { bytes: req.file.buffer, fileName }));
+    res
+      .set('cache-control', 'no-store')
+      .json(await verifyPdf(services.db, req.user!, { bytes: req.file.buffer, fileName }));
   });
 
   return router;

@@ -36,7 +36,11 @@ export function dashboardPanels(roles: readonly Role[]): DashboardPanel[] {
       heading: 'Administrator',
       summary: 'Keep the organisation’s people, roles, report templates and settings right.',
       links: [
-        { href: '/admin/people', label: 'People and roles' },
+        { href: '/admin/people', label: 'People and roles: invite, set roles, deactivate, unlock' },
+        {
+          href: '/admin/settings',
+          label: 'Settings: signature meanings, defaults, report numbers, passwords',
+        },
         { href: '/admin/outbox', label: 'Outbox: the mail Rateledger sent' },
         { href: '/admin/templates', label: 'Report templates: edit, preview, publish' },
         { href: '/audit', label: 'Audit trail: filter, export, check the chain' },

@@ -16,6 +16,7 @@ import {
 import { HttpError } from '../http/http-error.ts';
 import { commitThenMail, type MailMessage, sendMail } from '../mail/mail-transport.ts';
 import { reportSignedMail } from '../mail/messages.ts';
+import { isoDateTime } from '../reports/template-format.ts';
 import type { ReportStorage } from './report-storage.ts';
 import {
   type AuditContext,
@@ -28,7 +29,12 @@ import {
   signatureMeanings,
   signingLock,
 } from './review.ts';
-import { organisationSigningIdentity, printSignedPdf, type SignatureEntry, storeSignedPdf } from './signed-output.ts';
+import {
+  organisationSigningIdentity,
+  printSignedPdf,
+  type SignatureEntry,
+  storeSignedPdf,
+} from './signed-output.ts';
 
 /**
  * Electronic signing of a report version (21 CFR 11.50, 11.70, 11.200, 11.300(d); EU GMP
@@ -61,6 +67,8 @@ export interface SigningSession {
 export interface SignOutcome {
   signatureId: number;
   signedAt: Date;
+  /** The signing time as printed on the signatures page: ISO 8601 with offset, and the zone. */
+  signedAtText: string;
   signedPdfSha256: string;
   reviewedPdfSha256: string;
 }
@@ -157,7 +165,13 @@ async function alertAdministrators(db: Database, actor: SessionUser, minutes: nu
     .selectDistinct({ fullName: users.fullName, email: users.email })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
-    .where(and(eq(memberships.organisationId, actor.organisationId), eq(memberships.role, 'admin'), eq(users.active, true)));
+    .where(
+      and(
+        eq(memberships.organisationId, actor.organisationId),
+        eq(memberships.role, 'admin'),
+        eq(users.active, true),
+      ),
+    );
   if (admins.length === 0) return;
   const text = [
     'Hello,',
@@ -196,33 +210,79 @@ export async function signReportVersion(
   const subject = await loadReviewVersion(db, actor.organisationId, reportId, versionNumber);
   const { report, version, review } = subject;
   if (authorsOf(subject).has(actor.id)) {
-    await refuse(db, actor, 'signature.refused-own-report', subject, { attempted: 'sign' },
-      new HttpError(403, 'You cannot sign a report you authored: segregation of duties needs another person to review it.'), context);
+    await refuse(
+      db,
+      actor,
+      'signature.refused-own-report',
+      subject,
+      { attempted: 'sign' },
+      new HttpError(
+        403,
+        'You cannot sign a report you authored: segregation of duties needs another person to review it.',
+      ),
+      context,
+    );
   }
   if (version.renderStatus !== 'ready' || !version.pdfSha256)
-    throw new HttpError(409, `Version ${versionNumber} is ${version.renderStatus}; only a rendered version can be signed.`);
+    throw new HttpError(
+      409,
+      `Version ${versionNumber} is ${version.renderStatus}; only a rendered version can be signed.`,
+    );
   if (review.state === 'signed')
-    throw new HttpError(409, `${report.reportNumber} version ${versionNumber} is already signed and locked; a correction is a new version.`);
+    throw new HttpError(
+      409,
+      `${report.reportNumber} version ${versionNumber} is already signed and locked; a correction is a new version.`,
+    );
   if (review.state !== 'in_review')
-    throw new HttpError(409, `Version ${versionNumber} is ${review.state.replace('_', ' ')}, not in review; it cannot be signed now.`);
+    throw new HttpError(
+      409,
+      `Version ${versionNumber} is ${review.state.replace('_', ' ')}, not in review; it cannot be signed now.`,
+    );
   const assigned = await currentAssignments(db, version.id, review.round);
   if (!actor.roles.includes('reviewer') || !assigned.some((person) => person.id === actor.id)) {
-    await refuse(db, actor, 'signature.refused-not-assigned', subject, { attempted: 'sign' },
-      new HttpError(403, 'Only a reviewer assigned to this round may sign the report.'), context);
+    await refuse(
+      db,
+      actor,
+      'signature.refused-not-assigned',
+      subject,
+      { attempted: 'sign' },
+      new HttpError(403, 'Only a reviewer assigned to this round may sign the report.'),
+      context,
+    );
   }
   const lock = await signingLock(db, actor.id);
   if (lock.locked) {
-    await refuse(db, actor, 'signature.refused-locked', subject, { lockedUntil: lock.until },
-      new HttpError(423, `Signing is locked after repeated failed attempts until ${lock.until}. Try again then, or ask an administrator.`), context);
+    await refuse(
+      db,
+      actor,
+      'signature.refused-locked',
+      subject,
+      { lockedUntil: lock.until },
+      new HttpError(
+        423,
+        `Signing is locked after repeated failed attempts until ${lock.until}. Try again then, or ask an administrator.`,
+      ),
+      context,
+    );
   }
   const meanings = await signatureMeanings(db, actor.organisationId);
   if (!meanings.includes(input.meaning))
-    throw new HttpError(400, 'Some fields are not valid.', [{ field: 'meaning', message: `Choose one of: ${meanings.join(', ')}.` }]);
+    throw new HttpError(400, 'Some fields are not valid.', [
+      { field: 'meaning', message: `Choose one of: ${meanings.join(', ')}.` },
+    ]);
   if (input.reviewedSha256 !== version.pdfSha256)
-    throw new HttpError(409, 'The PDF shown on the form is not this version’s stored PDF. Reload the page and check it again.');
+    throw new HttpError(
+      409,
+      'The PDF shown on the form is not this version’s stored PDF. Reload the page and check it again.',
+    );
   const needsIdentity = session.firstSigningDone !== true;
   if (needsIdentity && !input.identity)
-    throw new HttpError(400, 'Some fields are not valid.', [{ field: 'identity', message: 'Enter your user ID (your e-mail address): the first signing of a session needs both.' }]);
+    throw new HttpError(400, 'Some fields are not valid.', [
+      {
+        field: 'identity',
+        message: 'Enter your user ID (your e-mail address): the first signing of a session needs both.',
+      },
+    ]);
 
   const [signer] = await db.select().from(users).where(eq(users.id, actor.id));
   const identityOk = !needsIdentity || input.identity!.toLowerCase() === signer!.email.toLowerCase();
@@ -239,27 +299,53 @@ export async function signReportVersion(
     .from(signatures)
     .where(eq(signatures.reportVersionId, version.id))
     .orderBy(asc(signatures.id));
-  const entry: SignatureEntry = { name: signer!.fullName, meaning: input.meaning, signedAt, timeZone: organisation.timeZone, comment: input.comment || null };
+  const entry: SignatureEntry = {
+    name: signer!.fullName,
+    meaning: input.meaning,
+    signedAt,
+    timeZone: organisation.timeZone,
+    comment: input.comment || null,
+  };
   const entries: SignatureEntry[] = [
-    ...earlier.map((row) => ({ name: row.signerPrintedName, meaning: row.meaning, signedAt: row.signedAt, timeZone: row.timeZone, comment: row.comment })),
+    ...earlier.map((row) => ({
+      name: row.signerPrintedName,
+      meaning: row.meaning,
+      signedAt: row.signedAt,
+      timeZone: row.timeZone,
+      comment: row.comment,
+    })),
     entry,
   ];
   let signedPdfSha256: string;
   let signedPdf: Buffer;
   try {
     const identity = await organisationSigningIdentity(organisation.name);
-    const printed = await printSignedPdf(db, version.id, entries, { meaning: input.meaning, signerName: signer!.fullName, signingTime: signedAt, identity });
+    const printed = await printSignedPdf(db, version.id, entries, {
+      meaning: input.meaning,
+      signerName: signer!.fullName,
+      signingTime: signedAt,
+      identity,
+    });
     signedPdf = printed.pdf;
     signedPdfSha256 = await storeSignedPdf(storage, printed.pdf);
   } catch (error) {
-    console.error(`[signing] the signed PDF of report ${report.id} version ${versionNumber} could not be produced:`, error);
-    throw new HttpError(503, 'The signed PDF could not be produced, so nothing was signed. Try again in a moment; if it keeps failing, tell your administrator.');
+    console.error(
+      `[signing] the signed PDF of report ${report.id} version ${versionNumber} could not be produced:`,
+      error,
+    );
+    throw new HttpError(
+      503,
+      'The signed PDF could not be produced, so nothing was signed. Try again in a moment; if it keeps failing, tell your administrator.',
+    );
   }
 
   const { result } = await commitThenMail(db, async (tx) => {
     const locked = await loadReviewVersion(tx, actor.organisationId, reportId, versionNumber, { lock: true });
     if (locked.review.state !== 'in_review' || locked.review.round !== review.round)
-      throw new HttpError(409, `${report.reportNumber} version ${versionNumber} changed while you signed (now ${locked.review.state.replace('_', ' ')}); nothing was signed.`);
+      throw new HttpError(
+        409,
+        `${report.reportNumber} version ${versionNumber} changed while you signed (now ${locked.review.state.replace('_', ' ')}); nothing was signed.`,
+      );
     const [signature] = await tx
       .insert(signatures)
       .values({
@@ -288,7 +374,10 @@ export async function signReportVersion(
     await tx
       .insert(signingLockouts)
       .values({ userId: actor.id, failedAttempts: 0 })
-      .onConflictDoUpdate({ target: signingLockouts.userId, set: { failedAttempts: 0, lockedUntil: null, updatedAt: sql`now()` } });
+      .onConflictDoUpdate({
+        target: signingLockouts.userId,
+        set: { failedAttempts: 0, lockedUntil: null, updatedAt: sql`now()` },
+      });
     await appendAuditEvent(tx, {
       organisationId: actor.organisationId,
       actorUserId: actor.id,
@@ -338,5 +427,11 @@ export async function signReportVersion(
       : [];
     return { result: { signatureId: signature!.id }, mail };
   });
-  return { signatureId: result.signatureId, signedAt, signedPdfSha256, reviewedPdfSha256: version.pdfSha256 };
+  return {
+    signatureId: result.signatureId,
+    signedAt,
+    signedAtText: `${isoDateTime(signedAt, organisation.timeZone)} (${organisation.timeZone})`,
+    signedPdfSha256,
+    reviewedPdfSha256: version.pdfSha256,
+  };
 }

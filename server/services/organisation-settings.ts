@@ -5,6 +5,7 @@ import {
   type SecuritySettingsInput,
 } from '../../shared/api/settings.ts';
 import { appendAuditEvent } from '../audit/audit-trail.ts';
+import { canonicalJson } from '../audit/canonical-json.ts';
 import type { SessionUser } from '../auth/roles.ts';
 import type { Database, Executor } from '../db/client.ts';
 import { type AcceptancePreset, organisationSettings, organisations } from '../db/schema/index.ts';
@@ -85,10 +86,10 @@ export async function passwordPolicyOf(executor: Executor, organisationId: numbe
 
 type SettingsPatch = Partial<OrganisationSettings>;
 
-/** The fields whose values differ, with both values (compared as JSON, so arrays compare by content). */
+/** The fields whose values differ, with both values (canonical JSON: jsonb does not keep key order). */
 function differences(before: OrganisationSettings, patch: SettingsPatch) {
   const changed = (Object.keys(patch) as (keyof OrganisationSettings)[]).filter(
-    (key) => JSON.stringify(before[key]) !== JSON.stringify(patch[key]),
+    (key) => canonicalJson(before[key]) !== canonicalJson(patch[key]),
   );
   const pick = (source: SettingsPatch) => Object.fromEntries(changed.map((key) => [key, source[key]]));
   return { changed, before: pick(before), after: pick(patch) };
@@ -150,13 +151,24 @@ async function applyPatch(
   });
 }
 
-/** Saves the organisation settings form; returns the names of the fields that changed. */
-export function saveOrganisationSettings(
+/**
+ * Saves the organisation settings form; returns the names of the fields that changed. The time
+ * zone must also be one PostgreSQL knows (report numbers take their year from the database clock
+ * in it): HttpError 400 with the field `timeZone` otherwise.
+ */
+export async function saveOrganisationSettings(
   db: Database,
   actor: SessionUser,
   input: OrganisationSettingsInput,
   context: AuditContext,
 ): Promise<{ changed: string[] }> {
+  const known = await db.execute<{ known: boolean }>(
+    sql`select exists(select 1 from pg_timezone_names where name = ${input.timeZone}) as known`,
+  );
+  if (!known.rows[0]?.known) {
+    const message = `The database does not know the time zone ${input.timeZone}; choose another spelling or a nearby zone.`;
+    throw new HttpError(400, message, [{ field: 'timeZone', message }]);
+  }
   return applyPatch(
     db,
     actor,

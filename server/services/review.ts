@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, ne, sql } from 'drizzle-orm';
 import {
   type ReturnForReworkRequest,
   returnForReworkSchema,
@@ -11,19 +11,19 @@ import type { Database, Executor } from '../db/client.ts';
 import {
   memberships,
   organisationSettings,
+  organisations,
   reportReviews,
   reports,
   reportVersions,
-  organisations,
   reviewAssignments,
   signatures,
   signedOutputs,
   users,
 } from '../db/schema/index.ts';
 import { HttpError } from '../http/http-error.ts';
-import { isoDateTime } from '../reports/template-format.ts';
 import { commitThenMail, type MailMessage } from '../mail/mail-transport.ts';
 import { reportReturnedMail, reviewRequestedMail } from '../mail/messages.ts';
+import { isoDateTime } from '../reports/template-format.ts';
 
 /**
  * The review workflow of a rendered report version (21 CFR 11.10(f), operational checks on the
@@ -88,7 +88,8 @@ export async function loadReviewVersion(
         eq(reportVersions.versionNumber, versionNumber),
       ),
     );
-  if (!row) throw new HttpError(404, `Report ${reportId} has no version ${versionNumber} in your organisation.`);
+  if (!row)
+    throw new HttpError(404, `Report ${reportId} has no version ${versionNumber} in your organisation.`);
   await db
     .insert(reportReviews)
     .values({ reportVersionId: row.version.id, organisationId })
@@ -168,7 +169,10 @@ const mailBase = (subject: ReviewVersion) => ({
 });
 
 async function personName(db: Executor, userId: number) {
-  const [row] = await db.select({ fullName: users.fullName, email: users.email }).from(users).where(eq(users.id, userId));
+  const [row] = await db
+    .select({ fullName: users.fullName, email: users.email })
+    .from(users)
+    .where(eq(users.id, userId));
   return row ?? { fullName: `user ${userId}`, email: '' };
 }
 
@@ -187,14 +191,22 @@ export async function submitForReview(
 ) {
   const input = submitForReviewSchema.parse(request);
   const { result } = await commitThenMail(db, async (tx) => {
-    const subject = await loadReviewVersion(tx, actor.organisationId, reportId, versionNumber, { lock: true });
+    const subject = await loadReviewVersion(tx, actor.organisationId, reportId, versionNumber, {
+      lock: true,
+    });
     const { report, version, review } = subject;
     if (report.authorId !== actor.id)
       throw new HttpError(403, `Only the report's author may submit ${report.reportNumber} for review.`);
     if (version.renderStatus !== 'ready')
-      throw new HttpError(409, `Version ${versionNumber} is ${version.renderStatus}; only a rendered version can be reviewed.`);
+      throw new HttpError(
+        409,
+        `Version ${versionNumber} is ${version.renderStatus}; only a rendered version can be reviewed.`,
+      );
     if (review.state !== 'draft' && review.state !== 'returned')
-      throw new HttpError(409, `Version ${versionNumber} is ${review.state.replace('_', ' ')}; it cannot be submitted again.`);
+      throw new HttpError(
+        409,
+        `Version ${versionNumber} is ${review.state.replace('_', ' ')}; it cannot be submitted again.`,
+      );
     const eligible = await reviewerCandidates(tx, actor.organisationId, authorsOf(subject));
     const chosen = [...new Set(input.reviewerIds)];
     const unknown = chosen.filter((id) => !eligible.some((person) => person.id === id));
@@ -212,9 +224,17 @@ export async function submitForReview(
     const round = review.round + 1;
     await tx
       .update(reportReviews)
-      .set({ state: 'in_review', round, submittedBy: actor.id, submittedAt: sql`now()`, updatedAt: sql`now()` })
+      .set({
+        state: 'in_review',
+        round,
+        submittedBy: actor.id,
+        submittedAt: sql`now()`,
+        updatedAt: sql`now()`,
+      })
       .where(eq(reportReviews.reportVersionId, version.id));
-    await tx.insert(reviewAssignments).values(chosen.map((reviewerId) => ({ reportVersionId: version.id, round, reviewerId })));
+    await tx
+      .insert(reviewAssignments)
+      .values(chosen.map((reviewerId) => ({ reportVersionId: version.id, round, reviewerId })));
     const reviewers = eligible.filter((person) => chosen.includes(person.id));
     await appendAuditEvent(tx, {
       organisationId: actor.organisationId,
@@ -271,14 +291,26 @@ export async function returnForRework(
     before.review.state === 'in_review' &&
     (!actor.roles.includes('reviewer') || !assigned.some((person) => person.id === actor.id))
   ) {
-    await refuse(db, actor, 'review.refused-not-assigned', before, { attempted: 'return' },
-      new HttpError(403, 'Only a reviewer assigned to this round may return the report.'), context);
+    await refuse(
+      db,
+      actor,
+      'review.refused-not-assigned',
+      before,
+      { attempted: 'return' },
+      new HttpError(403, 'Only a reviewer assigned to this round may return the report.'),
+      context,
+    );
   }
   const { result } = await commitThenMail(db, async (tx) => {
-    const subject = await loadReviewVersion(tx, actor.organisationId, reportId, versionNumber, { lock: true });
+    const subject = await loadReviewVersion(tx, actor.organisationId, reportId, versionNumber, {
+      lock: true,
+    });
     const { report, version, review } = subject;
     if (review.state !== 'in_review')
-      throw new HttpError(409, `Version ${versionNumber} is ${review.state.replace('_', ' ')}, not in review; it cannot be returned.`);
+      throw new HttpError(
+        409,
+        `Version ${versionNumber} is ${review.state.replace('_', ' ')}, not in review; it cannot be returned.`,
+      );
     const stillAssigned = await currentAssignments(tx, version.id, review.round);
     if (!stillAssigned.some((person) => person.id === actor.id))
       throw new HttpError(403, 'Only a reviewer assigned to this round may return the report.');
@@ -294,7 +326,13 @@ export async function returnForRework(
       recordType: 'report_version',
       recordId: version.id,
       before: { state: review.state, round: review.round },
-      after: { reportNumber: report.reportNumber, versionNumber, state: 'returned', round: review.round, comment: input.comment },
+      after: {
+        reportNumber: report.reportNumber,
+        versionNumber,
+        state: 'returned',
+        round: review.round,
+        comment: input.comment,
+      },
       context,
     });
     const author = await personName(tx, report.authorId);
@@ -303,7 +341,12 @@ export async function returnForRework(
         organisationId: actor.organisationId,
         kind: 'report-returned',
         to: { name: author.fullName, address: author.email },
-        ...reportReturnedMail({ ...mailBase(subject), authorName: author.fullName, reviewerName: actor.fullName, comment: input.comment }),
+        ...reportReturnedMail({
+          ...mailBase(subject),
+          authorName: author.fullName,
+          reviewerName: actor.fullName,
+          comment: input.comment,
+        }),
         record: { type: 'report_version', id: version.id },
       },
     ];
@@ -366,16 +409,6 @@ export async function returnedToMe(db: Executor, actor: SessionUser) {
     .limit(50);
 }
 
-/** Review states of the given versions (for lists); versions never looked at are drafts. */
-export async function reviewStates(db: Executor, versionIds: number[]) {
-  if (versionIds.length === 0) return new Map<number, string>();
-  const rows = await db
-    .select({ id: reportReviews.reportVersionId, state: reportReviews.state })
-    .from(reportReviews)
-    .where(inArray(reportReviews.reportVersionId, versionIds));
-  return new Map(rows.map((row) => [row.id, row.state as string]));
-}
-
 /** The signer's signing lock, judged by the database clock. */
 export async function signingLock(db: Executor, userId: number) {
   const result = await db.execute<{ locked: boolean; until: string | null }>(
@@ -387,7 +420,12 @@ export async function signingLock(db: Executor, userId: number) {
   return { locked: row?.locked === true, until: row?.until ?? null };
 }
 
-const STATE_WORDS = { draft: 'Draft', in_review: 'In review', returned: 'Returned', signed: 'Signed' } as const;
+const STATE_WORDS = {
+  draft: 'Draft',
+  in_review: 'In review',
+  returned: 'Returned',
+  signed: 'Signed',
+} as const;
 
 /** Everything the review page shows and offers to `actor` for one version. */
 export async function reviewPageModel(
@@ -399,7 +437,10 @@ export async function reviewPageModel(
 ) {
   const subject = await loadReviewVersion(db, actor.organisationId, reportId, versionNumber);
   const { report, version, review } = subject;
-  const [organisation] = await db.select().from(organisations).where(eq(organisations.id, actor.organisationId));
+  const [organisation] = await db
+    .select()
+    .from(organisations)
+    .where(eq(organisations.id, actor.organisationId));
   const timeZone = organisation?.timeZone ?? 'UTC';
   const authors = authorsOf(subject);
   const ready = version.renderStatus === 'ready' && version.pdfSha256 !== null;
@@ -412,9 +453,17 @@ export async function reviewPageModel(
     .where(eq(reviewAssignments.reportVersionId, version.id))
     .orderBy(asc(reviewAssignments.round), asc(users.fullName));
   const canSubmit =
-    ready && isAuthor && actor.roles.includes('analyst') && (review.state === 'draft' || review.state === 'returned');
+    ready &&
+    isAuthor &&
+    actor.roles.includes('analyst') &&
+    (review.state === 'draft' || review.state === 'returned');
   const isAssigned = assigned.some((person) => person.id === actor.id);
-  const canAct = ready && review.state === 'in_review' && isAssigned && !authors.has(actor.id) && actor.roles.includes('reviewer');
+  const canAct =
+    ready &&
+    review.state === 'in_review' &&
+    isAssigned &&
+    !authors.has(actor.id) &&
+    actor.roles.includes('reviewer');
   const signatureRows = await db
     .select()
     .from(signatures)
@@ -426,10 +475,18 @@ export async function reviewPageModel(
     .where(eq(signedOutputs.reportVersionId, version.id))
     .orderBy(desc(signedOutputs.signatureCount), desc(signedOutputs.id))
     .limit(1);
-  const [author] = await db.select({ fullName: users.fullName }).from(users).where(eq(users.id, report.authorId));
+  const [author] = await db
+    .select({ fullName: users.fullName })
+    .from(users)
+    .where(eq(users.id, report.authorId));
   const lock = canAct ? await signingLock(db, actor.id) : { locked: false, until: null };
   return {
-    report: { id: report.id, number: report.reportNumber, title: report.title, author: author?.fullName ?? '' },
+    report: {
+      id: report.id,
+      number: report.reportNumber,
+      title: report.title,
+      author: author?.fullName ?? '',
+    },
     version: {
       number: version.versionNumber,
       renderStatus: version.renderStatus,
@@ -450,7 +507,10 @@ export async function reviewPageModel(
     assigned: assigned.map((person) => ({ ...person, isMe: person.id === actor.id })),
     rounds: [...new Set(rounds.map((row) => row.round))].map((round) => ({
       round,
-      reviewers: rounds.filter((row) => row.round === round).map((row) => row.name).join(', '),
+      reviewers: rounds
+        .filter((row) => row.round === round)
+        .map((row) => row.name)
+        .join(', '),
     })),
     isAuthor,
     canSubmit,

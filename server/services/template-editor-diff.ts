@@ -1,5 +1,11 @@
 import { structuredPatch } from 'diff';
-import type { DiffLine, DiffPart } from '../../shared/api/templates.ts';
+import {
+  type DiffLine,
+  type DiffPart,
+  partialName,
+  partLabel,
+  templatePartOrder,
+} from '../../shared/api/templates.ts';
 import type { ReportTemplateSource } from '../reports/template-engine.ts';
 
 /**
@@ -15,29 +21,11 @@ import type { ReportTemplateSource } from '../reports/template-engine.ts';
 
 const CONTEXT_LINES = 3;
 
-/** The parts in the order the editor shows them: main, the usual partials, others, stylesheet. */
-export function templatePartOrder(partials: Iterable<string>): string[] {
-  const usual = ['letterhead', 'signatures', 'caution'];
-  const names = [...new Set(partials)];
-  const ordered = [
-    ...usual.filter((name) => names.includes(name)),
-    ...names.filter((name) => !usual.includes(name)).sort(),
-  ];
-  return ['body', ...ordered.map((name) => `partial "${name}"`), 'stylesheet'];
-}
-
-export function partLabel(part: string): string {
-  if (part === 'body') return 'Main template';
-  if (part === 'stylesheet') return 'Stylesheet (CSS)';
-  const name = /^partial "(.+)"$/.exec(part)?.[1] ?? part;
-  return `Partial: ${name}`;
-}
-
 function partText(source: ReportTemplateSource, part: string): string | undefined {
   if (part === 'body') return source.body;
   if (part === 'stylesheet') return source.stylesheet;
-  const name = /^partial "(.+)"$/.exec(part)?.[1];
-  return name !== undefined && Object.hasOwn(source.partials, name) ? source.partials[name] : undefined;
+  const name = partialName(part);
+  return name !== null && Object.hasOwn(source.partials, name) ? source.partials[name] : undefined;
 }
 
 /** jsdiff marks a missing final newline with a "\ No newline at end of file" line; it is not text. */

@@ -184,7 +184,7 @@ function onePass(html: string): string {
           ? ` ${attribute.name}`
           : ` ${attribute.name}="${escapeAttribute(attribute.value)}"`,
       );
-    const selfClosing = html[end - 2] === '/' ? ' /' : '';
+    const selfClosing = html[end - 2] === '/' ? '/' : '';
     out.push(`<${nameMatch[0]}${kept.join('')}${selfClosing}>`);
   }
   return out.join('');

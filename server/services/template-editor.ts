@@ -189,6 +189,7 @@ export async function saveTemplateVersion(
   templateId: number,
   request: SaveTemplateVersionRequest,
 ): Promise<TemplateVersionSummary> {
+  await templateRow(db, user.organisationId, templateId);
   const problems = templateProblems(request.source);
   if (problems.length > 0) throw refuse(problems, 'Not saved');
   const version = await createTemplateVersion(db, {

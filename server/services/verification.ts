@@ -49,7 +49,10 @@ export async function verifyPdf(
   file: { bytes: Buffer; fileName: string },
 ): Promise<PdfVerification> {
   const sha256 = sha256Hex(file.bytes);
-  const [organisation] = await db.select().from(organisations).where(eq(organisations.id, actor.organisationId));
+  const [organisation] = await db
+    .select()
+    .from(organisations)
+    .where(eq(organisations.id, actor.organisationId));
   const timeZone = organisation?.timeZone ?? 'UTC';
   const [signedMatch] = await db
     .select({ versionId: reportVersions.id, versionNumber: reportVersions.versionNumber, report: reports })
@@ -60,7 +63,11 @@ export async function verifyPdf(
   const [unsignedMatch] = signedMatch
     ? []
     : await db
-        .select({ versionId: reportVersions.id, versionNumber: reportVersions.versionNumber, report: reports })
+        .select({
+          versionId: reportVersions.id,
+          versionNumber: reportVersions.versionNumber,
+          report: reports,
+        })
         .from(reportVersions)
         .innerJoin(reports, eq(reports.id, reportVersions.reportId))
         .where(and(eq(reportVersions.pdfSha256, sha256), eq(reports.organisationId, actor.organisationId)));
@@ -90,12 +97,28 @@ export async function verifyPdf(
     };
   } catch (error) {
     console.error('[verify] the seal check could not run:', error);
-    seal = { signed: false, valid: false, trusted: false, signerSubject: null, signingTime: null, reason: 'The seal could not be checked on this server right now.' };
+    seal = {
+      signed: false,
+      valid: false,
+      trusted: false,
+      signerSubject: null,
+      signingTime: null,
+      reason: 'The seal could not be checked on this server right now.',
+    };
   }
 
   const kind = signedMatch ? 'signed-record' : unsignedMatch ? 'unsigned-version' : 'no-match';
   const { verdict, verdictKind } = judge(kind, seal, record);
-  return { fileName: file.fileName, byteSize: file.bytes.length, sha256, match: kind, record, seal, verdict, verdictKind };
+  return {
+    fileName: file.fileName,
+    byteSize: file.bytes.length,
+    sha256,
+    match: kind,
+    record,
+    seal,
+    verdict,
+    verdictKind,
+  };
 }
 
 function judge(
@@ -105,16 +128,35 @@ function judge(
 ): Pick<PdfVerification, 'verdict' | 'verdictKind'> {
   const name = record ? `${record.reportNumber} version ${record.versionNumber}` : '';
   if (kind === 'signed-record' && seal.valid && seal.trusted)
-    return { verdictKind: 'verified', verdict: `This file is the signed record of ${name}, unchanged, and its seal verifies.` };
+    return {
+      verdictKind: 'verified',
+      verdict: `This file is the signed record of ${name}, unchanged, and its seal verifies.`,
+    };
   if (kind === 'signed-record')
-    return { verdictKind: 'altered', verdict: `This file has the stored hash of ${name}, but its seal does not verify here: ${seal.reason}` };
+    return {
+      verdictKind: 'altered',
+      verdict: `This file has the stored hash of ${name}, but its seal does not verify here: ${seal.reason}`,
+    };
   if (kind === 'unsigned-version')
-    return { verdictKind: 'unknown', verdict: `This is the unsigned rendered PDF of ${name}; it carries no signature. Download the signed PDF from the review page.` };
+    return {
+      verdictKind: 'unknown',
+      verdict: `This is the unsigned rendered PDF of ${name}; it carries no signature. Download the signed PDF from the review page.`,
+    };
   if (seal.signed && !seal.valid)
-    return { verdictKind: 'altered', verdict: `The file was altered after it was signed: ${seal.reason} It does not match any signed record.` };
+    return {
+      verdictKind: 'altered',
+      verdict: `The file was altered after it was signed: ${seal.reason} It does not match any signed record.`,
+    };
   if (seal.signed && seal.valid)
-    return { verdictKind: 'altered', verdict: 'The file carries an intact seal but does not match any signed record of your organisation: it is not one of your records (or was re-saved and sealed elsewhere).' };
-  return { verdictKind: 'unknown', verdict: `This file does not match any signed record of your organisation. ${seal.reason}` };
+    return {
+      verdictKind: 'altered',
+      verdict:
+        'The file carries an intact seal but does not match any signed record of your organisation: it is not one of your records (or was re-saved and sealed elsewhere).',
+    };
+  return {
+    verdictKind: 'unknown',
+    verdict: `This file does not match any signed record of your organisation. ${seal.reason}`,
+  };
 }
 
 /** The signed outputs of a report, by its number (for the verification page's look-up). */
@@ -122,11 +164,23 @@ export async function signedRecordsOfReport(db: Executor, actor: SessionUser, re
   const [report] = await db
     .select()
     .from(reports)
-    .where(and(eq(reports.organisationId, actor.organisationId), sql`upper(${reports.reportNumber}) = upper(${reportNumber})`));
+    .where(
+      and(
+        eq(reports.organisationId, actor.organisationId),
+        sql`upper(${reports.reportNumber}) = upper(${reportNumber})`,
+      ),
+    );
   if (!report) return null;
-  const [organisation] = await db.select().from(organisations).where(eq(organisations.id, actor.organisationId));
+  const [organisation] = await db
+    .select()
+    .from(organisations)
+    .where(eq(organisations.id, actor.organisationId));
   const outputs = await db
-    .select({ output: signedOutputs, versionNumber: reportVersions.versionNumber, versionId: reportVersions.id })
+    .select({
+      output: signedOutputs,
+      versionNumber: reportVersions.versionNumber,
+      versionId: reportVersions.id,
+    })
     .from(signedOutputs)
     .innerJoin(reportVersions, eq(reportVersions.id, signedOutputs.reportVersionId))
     .where(eq(reportVersions.reportId, report.id))

@@ -53,7 +53,10 @@ export type ReturnForReworkRequest = z.input<typeof returnForReworkSchema>;
  * the hash of the PDF the form showed, so a signer never signs something other than what they saw.
  */
 export const signReportSchema = z.object({
-  meaning: z.string({ error: 'Choose the meaning of your signature.' }).trim().min(1, 'Choose the meaning of your signature.'),
+  meaning: z
+    .string({ error: 'Choose the meaning of your signature.' })
+    .trim()
+    .min(1, 'Choose the meaning of your signature.'),
   comment: z
     .string()
     .trim()

@@ -125,6 +125,24 @@ export function knownTimeZones(): string[] {
   return zones.includes('UTC') ? zones : ['UTC', ...zones];
 }
 
+/**
+ * Whether `zone` is an IANA time zone: one `Intl.supportedValuesOf('timeZone')` lists, or an
+ * Area/Location name the runtime resolves to one of those. The list holds the CLDR canonical
+ * names, which keep some older spellings (`Asia/Calcutta`, `Europe/Kiev`), so the current IANA
+ * names (`Asia/Kolkata`, `Europe/Kyiv`) are accepted through the resolution. Abbreviations such
+ * as `EST` are refused: they name no place and no rules for summer time.
+ */
+export function isKnownTimeZone(zone: string): boolean {
+  const zones = knownTimeZones();
+  if (zones.includes(zone)) return true;
+  if (!/^[A-Za-z]+(?:\/[A-Za-z0-9_+-]+)+$/.test(zone)) return false;
+  try {
+    return zones.includes(new Intl.DateTimeFormat('en', { timeZone: zone }).resolvedOptions().timeZone);
+  } catch {
+    return false;
+  }
+}
+
 // ---------------------------------------------------------------- form schemas
 
 const decimalText = /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/;
@@ -243,12 +261,9 @@ export const organisationSettingsFormSchema = z.object({
   defaultTimeUnit: z.enum(TIME_UNITS, { error: `Choose one of ${TIME_UNITS.join(', ')}.` }),
   defaultValueUnit: requiredText('The default value unit', 60),
   acceptancePresets: presetList,
-  timeZone: z
-    .string()
-    .trim()
-    .refine((zone) => knownTimeZones().includes(zone), {
-      message: 'Not an IANA time zone this server knows; write it like Europe/Berlin or America/Chicago.',
-    }),
+  timeZone: z.string().trim().refine(isKnownTimeZone, {
+    message: 'Not an IANA time zone this server knows; write it like Europe/Berlin or America/Chicago.',
+  }),
   reportNumberFormat: z
     .string()
     .trim()

@@ -180,3 +180,29 @@ export const templateDiffResponseSchema = z.object({
   parts: z.array(diffPartSchema),
 });
 export type TemplateDiffResponse = z.infer<typeof templateDiffResponseSchema>;
+
+const USUAL_PARTIALS = ['letterhead', 'signatures', 'caution'];
+
+/**
+ * The parts of a template in the order the editor and the diff show them: the main template, the
+ * usual partials (letterhead, signatures, caution), any other partials by name, the stylesheet.
+ */
+export function templatePartOrder(partials: Iterable<string>): string[] {
+  const names = [...new Set(partials)];
+  const ordered = [
+    ...USUAL_PARTIALS.filter((name) => names.includes(name)),
+    ...names.filter((name) => !USUAL_PARTIALS.includes(name)).sort(),
+  ];
+  return ['body', ...ordered.map((name) => `partial "${name}"`), 'stylesheet'];
+}
+
+/** The partial's name in a part key 'partial "name"', or null for 'body' and 'stylesheet'. */
+export function partialName(part: string): string | null {
+  return /^partial "(.+)"$/.exec(part)?.[1] ?? null;
+}
+
+export function partLabel(part: string): string {
+  if (part === 'body') return 'Main template';
+  if (part === 'stylesheet') return 'Stylesheet (CSS)';
+  return `Partial: ${partialName(part) ?? part}`;
+}

@@ -86,6 +86,6 @@ export interface PendingInvitationSummary {
 }
 
 export interface PeopleResponse {
-  members: MemberSummary[];
+  people: MemberSummary[];
   invitations: PendingInvitationSummary[];
 }

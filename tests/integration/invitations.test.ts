@@ -58,7 +58,11 @@ describe('inviting a new reviewer', () => {
   let link: string;
 
   it('the invitation is mailed through the app with a one-time link and recorded', async () => {
-    const response = await invite({ fullName: 'Nova Reviewer', email: email.toUpperCase(), roles: 'reviewer' });
+    const response = await invite({
+      fullName: 'Nova Reviewer',
+      email: email.toUpperCase(),
+      roles: 'reviewer',
+    });
     expect(response.status).toBe(303);
     expect(response.headers.location).toBe('/admin/people');
     const mail = await smtp.waitForMailTo(email);
@@ -198,7 +202,9 @@ describe('links that no longer work', () => {
   });
 
   it('an unknown or malformed link is a 404 page', async () => {
-    const unknown = await request(world.app).get(`/invitations/${newLinkToken().token}`).set('Accept', 'text/html');
+    const unknown = await request(world.app)
+      .get(`/invitations/${newLinkToken().token}`)
+      .set('Accept', 'text/html');
     expect(unknown.status).toBe(404);
     expect(unknown.text).toContain('not valid');
     expect((await request(world.app).get('/invitations/abc').set('Accept', 'text/html')).status).toBe(404);
@@ -256,7 +262,10 @@ describe('an address that already has an account elsewhere', () => {
     const { agent } = await signIn(world.app, person.email, person.password);
     const signedInPage = await agent.get(`/invitations/${link}`);
     expect(signedInPage.text).toContain('Join ');
-    const joined = await agent.post(`/invitations/${link}`).type('form').send({ _csrf: csrfFrom(signedInPage.text) });
+    const joined = await agent
+      .post(`/invitations/${link}`)
+      .type('form')
+      .send({ _csrf: csrfFrom(signedInPage.text) });
     expect(joined.status).toBe(200);
     expect(joined.text).toContain('You joined');
     const accounts = await world.database.db.select().from(users).where(eq(users.email, person.email));

@@ -1,5 +1,9 @@
 import { useMutation } from '@tanstack/react-query';
-import { type PdfVerification, pdfVerificationSchema, VERIFY_UPLOAD_FIELD } from '../../../../shared/api/review.ts';
+import {
+  type PdfVerification,
+  pdfVerificationSchema,
+  VERIFY_UPLOAD_FIELD,
+} from '../../../../shared/api/review.ts';
 import { fetchJson } from '../../../lib/http.ts';
 
 /** POST /api/verify: the file goes as multipart with the CSRF header; the answer is checked with the shared schema. */

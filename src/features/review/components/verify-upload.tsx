@@ -23,7 +23,8 @@ export default function VerifyUpload() {
   function submit(event: FormEvent) {
     event.preventDefault();
     if (!file) return setProblem('Choose a PDF file first.');
-    if (file.size > VERIFY_UPLOAD_LIMIT_BYTES) return setProblem(`The file is larger than ${LIMIT_MB} MB; a Rateledger report is far smaller.`);
+    if (file.size > VERIFY_UPLOAD_LIMIT_BYTES)
+      return setProblem(`The file is larger than ${LIMIT_MB} MB; a Rateledger report is far smaller.`);
     setProblem(null);
     check.mutate(file);
   }
@@ -44,7 +45,11 @@ export default function VerifyUpload() {
             onChange={(event) => setFile(event.target.files?.[0] ?? null)}
           />
         </div>
-        <button type="submit" disabled={check.isPending} className="rounded-sm bg-ledger px-4 py-2 text-white hover:opacity-90 disabled:opacity-50">
+        <button
+          type="submit"
+          disabled={check.isPending}
+          className="rounded-sm bg-ledger px-4 py-2 text-white hover:opacity-90 disabled:opacity-50"
+        >
           {check.isPending ? 'Checking…' : 'Check the file'}
         </button>
       </form>
@@ -55,7 +60,11 @@ export default function VerifyUpload() {
         </p>
       )}
       {result && (
-        <section aria-live="polite" data-verdict={result.verdictKind} className={`mt-4 rounded-md border-2 p-4 text-sm ${TONE[result.verdictKind]}`}>
+        <section
+          aria-live="polite"
+          data-verdict={result.verdictKind}
+          className={`mt-4 rounded-md border-2 p-4 text-sm ${TONE[result.verdictKind]}`}
+        >
           <h3 className="font-serif text-lg">{HEADLINE[result.verdictKind]}</h3>
           <p className="mt-1">{result.verdict}</p>
           <dl className="mt-3 grid grid-cols-[max-content_1fr] gap-x-4 gap-y-1 text-ink">
@@ -69,7 +78,8 @@ export default function VerifyUpload() {
             <dd>
               {result.record ? (
                 <a className="text-ledger underline" href={result.record.reviewUrl}>
-                  {result.record.reportNumber} version {result.record.versionNumber} — {result.record.reportTitle}
+                  {result.record.reportNumber} version {result.record.versionNumber} —{' '}
+                  {result.record.reportTitle}
                 </a>
               ) : (
                 'none matches this file'
@@ -78,7 +88,9 @@ export default function VerifyUpload() {
             <dt className="text-ink-muted">Digital seal</dt>
             <dd>
               {result.seal.signed ? (result.seal.valid ? 'intact' : 'broken') : 'none'}
-              {result.seal.signed && result.seal.valid && !result.seal.trusted ? ', certificate not trusted here' : ''}
+              {result.seal.signed && result.seal.valid && !result.seal.trusted
+                ? ', certificate not trusted here'
+                : ''}
               {' — '}
               {result.seal.reason}
             </dd>

@@ -1,0 +1,201 @@
+import { type Request, type Response, Router } from 'express';
+import type { ZodError } from 'zod';
+import { linkTokenSchema, newPasswordFormSchema, ROLE_DESCRIPTIONS } from '../../shared/api/user-admin.ts';
+import { publicRoute } from '../auth/route-policy.ts';
+import { HttpError } from '../http/http-error.ts';
+import type { AppServices } from '../services/app-services.ts';
+import {
+  acceptInvitation,
+  closedLinkMessage,
+  type InvitationView,
+  openInvitation,
+  PasswordPolicyError,
+} from '../services/invitations.ts';
+import { describePasswordPolicy } from '../services/password-policy.ts';
+import {
+  completePasswordReset,
+  openPasswordReset,
+  type PasswordResetView,
+} from '../services/password-reset.ts';
+import { renderPage } from '../web/render-page.ts';
+
+/**
+ * The public pages behind the links Rateledger mails: accepting an invitation and choosing a new
+ * password. They are reachable without signing in (the one-time token is the credential); a
+ * used, expired or unknown link gets a page that says so and what to do. The token never reaches
+ * a log or another site: these pages are not cached and send no referrer (helmet's default).
+ */
+
+function tokenOf(req: Request): string {
+  const parsed = linkTokenSchema.safeParse(req.params.token);
+  if (!parsed.success)
+    throw new HttpError(
+      404,
+      'This link is not valid. Check that the whole link was copied from the message.',
+    );
+  return parsed.data;
+}
+
+const noStore = (res: Response) => res.set('cache-control', 'no-store');
+
+/** Field → every message (the password field lists each rule it breaks). */
+function formErrors(error: ZodError): Record<string, string[]> {
+  const errors: Record<string, string[]> = {};
+  for (const issue of error.issues) {
+    const field = String(issue.path[0] ?? 'form');
+    errors[field] = [...(errors[field] ?? []), issue.message];
+  }
+  return errors;
+}
+
+function passwordErrors(error: unknown): Record<string, string[]> | null {
+  if (error instanceof PasswordPolicyError) return { password: error.problems };
+  return null;
+}
+
+function invitationLocals(req: Request, view: InvitationView, token: string) {
+  const signedInAsInvitee = req.user?.email === view.email;
+  return {
+    title: `Join ${view.organisationName}`,
+    invitation: view,
+    action: `/invitations/${token}`,
+    roles: view.roles.map((role) => ({ role, description: ROLE_DESCRIPTIONS[role] })),
+    policy: describePasswordPolicy(view.policy),
+    signedInAsInvitee,
+    signedInAsOther: Boolean(req.user) && !signedInAsInvitee,
+    signInPath: `/signin?next=${encodeURIComponent(`/invitations/${token}`)}`,
+  };
+}
+
+export function accountRoutes(services: AppServices): Router {
+  const router = Router();
+  const { db } = services;
+  const context = (req: Request) => ({ ip: req.ip, userAgent: req.get('user-agent') });
+
+  router.get('/invitations/:token', publicRoute(), async (req, res) => {
+    noStore(res);
+    const token = tokenOf(req);
+    const view = await openInvitation(db, token);
+    if (view.state !== 'open') {
+      return renderPage(
+        req,
+        res,
+        'invitation-closed',
+        { title: 'Invitation link not valid', message: closedLinkMessage(view.state, 'invitation') },
+        410,
+      );
+    }
+    renderPage(req, res, 'invitation', invitationLocals(req, view, token));
+  });
+
+  router.post('/invitations/:token', publicRoute(), async (req, res) => {
+    noStore(res);
+    const token = tokenOf(req);
+    const view = await openInvitation(db, token);
+    if (view.state !== 'open') {
+      return renderPage(
+        req,
+        res,
+        'invitation-closed',
+        { title: 'Invitation link not valid', message: closedLinkMessage(view.state, 'invitation') },
+        410,
+      );
+    }
+    let password: string | undefined;
+    if (!view.existingAccount) {
+      const form = newPasswordFormSchema.safeParse(req.body ?? {});
+      if (!form.success) {
+        const errors = formErrors(form.error);
+        return renderPage(req, res, 'invitation', { ...invitationLocals(req, view, token), errors }, 400);
+      }
+      password = form.data.password;
+    }
+    try {
+      const accepted = await acceptInvitation(db, token, { password, signedIn: req.user }, context(req));
+      renderPage(req, res, 'invitation-accepted', {
+        title: 'Welcome to Rateledger',
+        accepted,
+        roles: accepted.roles.join(', '),
+        signedInAsOther: Boolean(req.user) && req.user?.email !== accepted.email,
+      });
+    } catch (error) {
+      const errors = passwordErrors(error);
+      if (errors)
+        return renderPage(req, res, 'invitation', { ...invitationLocals(req, view, token), errors }, 400);
+      if (error instanceof HttpError && error.status === 410) {
+        return renderPage(
+          req,
+          res,
+          'invitation-closed',
+          { title: 'Invitation link not valid', message: error.message },
+          410,
+        );
+      }
+      throw error;
+    }
+  });
+
+  const resetLocals = (view: PasswordResetView, token: string) => ({
+    title: 'Choose a new password',
+    reset: view,
+    action: `/password-reset/${token}`,
+    policy: describePasswordPolicy(view.policy),
+  });
+
+  router.get('/password-reset/:token', publicRoute(), async (req, res) => {
+    noStore(res);
+    const token = tokenOf(req);
+    const view = await openPasswordReset(db, token);
+    if (view.state !== 'open') {
+      return renderPage(
+        req,
+        res,
+        'password-reset-closed',
+        { title: 'Password reset link not valid', message: closedLinkMessage(view.state, 'reset') },
+        410,
+      );
+    }
+    renderPage(req, res, 'password-reset', resetLocals(view, token));
+  });
+
+  router.post('/password-reset/:token', publicRoute(), async (req, res) => {
+    noStore(res);
+    const token = tokenOf(req);
+    const view = await openPasswordReset(db, token);
+    if (view.state !== 'open') {
+      return renderPage(
+        req,
+        res,
+        'password-reset-closed',
+        { title: 'Password reset link not valid', message: closedLinkMessage(view.state, 'reset') },
+        410,
+      );
+    }
+    const form = newPasswordFormSchema.safeParse(req.body ?? {});
+    if (!form.success) {
+      const errors = formErrors(form.error);
+      return renderPage(req, res, 'password-reset', { ...resetLocals(view, token), errors }, 400);
+    }
+    try {
+      const done = await completePasswordReset(db, token, form.data.password, context(req));
+      // The person's sessions were ended with the reset; this browser's too, if it was one.
+      if (req.user?.email === done.email) await new Promise<void>((resolve) => req.logout(() => resolve()));
+      renderPage(req, res, 'password-reset-done', { title: 'Password changed', email: done.email });
+    } catch (error) {
+      const errors = passwordErrors(error);
+      if (errors) return renderPage(req, res, 'password-reset', { ...resetLocals(view, token), errors }, 400);
+      if (error instanceof HttpError && error.status === 410) {
+        return renderPage(
+          req,
+          res,
+          'password-reset-closed',
+          { title: 'Password reset link not valid', message: error.message },
+          410,
+        );
+      }
+      throw error;
+    }
+  });
+
+  return router;
+}

@@ -1,0 +1,20 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { publishTemplateVersionResponseSchema } from '../../../../shared/api/templates.ts';
+import { templateRequest } from './request.ts';
+import { templateKeys } from './template-keys.ts';
+
+/** POST /api/admin/templates/:id/publish — an earlier version than the published one is a rollback. */
+export function publishTemplateVersion(templateId: number, versionId: number) {
+  return templateRequest(`/api/admin/templates/${templateId}/publish`, publishTemplateVersionResponseSchema, {
+    method: 'POST',
+    body: { versionId },
+  });
+}
+
+export function usePublishTemplateVersion(templateId: number) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (versionId: number) => publishTemplateVersion(templateId, versionId),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: templateKeys.editor(templateId) }),
+  });
+}

@@ -1,0 +1,23 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import {
+  type SaveTemplateVersionRequest,
+  saveTemplateVersionResponseSchema,
+} from '../../../../shared/api/templates.ts';
+import { templateRequest } from './request.ts';
+import { templateKeys } from './template-keys.ts';
+
+/** POST /api/admin/templates/:id/versions — refused (422, problems located) when the draft does not check. */
+export function saveTemplateVersion(templateId: number, request: SaveTemplateVersionRequest) {
+  return templateRequest(`/api/admin/templates/${templateId}/versions`, saveTemplateVersionResponseSchema, {
+    method: 'POST',
+    body: request,
+  });
+}
+
+export function useSaveTemplateVersion(templateId: number) {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: (request: SaveTemplateVersionRequest) => saveTemplateVersion(templateId, request),
+    onSuccess: () => queryClient.invalidateQueries({ queryKey: templateKeys.editor(templateId) }),
+  });
+}
