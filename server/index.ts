@@ -5,6 +5,7 @@ import { openDatabase } from './db/client.ts';
 import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
 import { startInProcessRenderWorker } from './jobs/in-process-worker.ts';
 import { startMail } from './mail/start-mail.ts';
+import { closeSigningBrowsers } from './services/signed-output.ts';
 
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
 const environment = parseEnvironment();
@@ -35,6 +36,7 @@ async function shutdown(signal: string) {
   console.log(`[rateledger] ${signal}: stopping`);
   server.close(async () => {
     await renderWorker.close();
+    await closeSigningBrowsers();
     await mail.close();
     await database.close();
     process.exit(0);

@@ -68,8 +68,10 @@ function formValues(settings: OrganisationSettings): Values {
 }
 
 function presetRows(values: Values, errors: Record<string, string>) {
-  const used = Object.keys(values)
-    .map((key) => /^preset-(\d+)-/.exec(key)?.[1])
+  // Rows with something typed in a text field (a direction alone is the blank row's default).
+  const used = Object.entries(values)
+    .filter(([key, value]) => !key.endsWith('-direction') && String(value ?? '').trim() !== '')
+    .map(([key]) => /^preset-(\d+)-/.exec(key)?.[1])
     .filter((row): row is string => row !== undefined)
     .map(Number);
   const count = (used.length === 0 ? 0 : Math.max(...used) + 1) + BLANK_PRESET_ROWS;
@@ -167,10 +169,12 @@ export function settingsRoutes(services: AppServices): Router {
     }
     const parsed = organisationSettingsFormSchema.safeParse(organisationSettingsFromForm(body));
     if (!parsed.success) {
+      const typed = String(body.reportNumberFormat ?? '').trim();
       return renderSettings(req, res, {
         values: posted,
         errors: settingsFieldErrors(parsed.error),
         status: 400,
+        ...(parseReportNumberFormat(typed).ok ? { previewFormat: typed } : {}),
       });
     }
     let changed: string[];
