@@ -2,10 +2,9 @@ import { desc, eq } from 'drizzle-orm';
 import { Router } from 'express';
 import { type ActivityResponse, activityQuerySchema } from '../../shared/api/activity.ts';
 import type { MeResponse } from '../../shared/api/session.ts';
-import { requireRole, signedIn } from '../auth/route-policy.ts';
+import { signedIn } from '../auth/route-policy.ts';
 import { auditEvents } from '../db/schema/index.ts';
 import type { AppServices } from '../services/app-services.ts';
-import { listPeople } from '../services/people.ts';
 
 export function apiRoutes(services: AppServices): Router {
   const router = Router();
@@ -34,10 +33,6 @@ export function apiRoutes(services: AppServices): Router {
       events: rows.map((row) => ({ ...row, occurredAt: row.occurredAt.toISOString() })),
     };
     res.json(body);
-  });
-
-  router.get('/api/admin/people', requireRole('admin'), async (req, res) => {
-    res.json({ people: await listPeople(services.db, req.user!.organisationId) });
   });
 
   return router;

@@ -4,7 +4,7 @@ import type { AppServices } from '../services/app-services.ts';
 import { dashboardPanels } from '../services/dashboard.ts';
 import { renderPage } from '../web/render-page.ts';
 
-export function pageRoutes(services: AppServices): Router {
+export function pageRoutes(_services: AppServices): Router {
   const router = Router();
 
   router.get('/', signedIn(), (req, res) => {

@@ -22,8 +22,9 @@ import { templateVersionForNewReports } from './report-templates.ts';
  *
  * Report numbers follow the organisation's format (settings; default `RL-{YYYY}-{NNNN}`, e.g.
  * `RL-2026-0001`): the year of the database clock in the organisation's time zone, the sequence
- * counting that organisation's reports of the year, as many digits as the format has N at least. Allocation takes an advisory lock per organisation, so two reports
- * created at once never get one number (the unique constraint would refuse it anyway).
+ * counting that organisation's reports of the year, as many digits as the format has N at least.
+ * Allocation takes an advisory lock per organisation, so two reports created at once never get
+ * one number (the unique constraint would refuse it anyway).
  *
  * Reading (the history list, one report, its outputs) is in `report-history.ts`.
  */

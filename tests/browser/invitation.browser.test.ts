@@ -170,7 +170,9 @@ describe('inviting a reviewer through the pages', () => {
     await expect.poll(() => page.locator('#report-number-preview').textContent()).toMatch(/QC-\d{2}-001/);
     await page.getByRole('button', { name: 'Save settings' }).click();
     await expect.poll(() => page.getByRole('status').first().textContent()).toContain('Saved:');
-    expect(await page.locator('#report-number-preview').textContent()).toMatch(/Next report number: QC-\d{2}-001/);
+    expect(await page.locator('#report-number-preview').textContent()).toMatch(
+      /Next report number: QC-\d{2}-001/,
+    );
     const [created] = await world.database.db.select().from(users).where(eq(users.email, inviteeEmail));
     expect(created?.active).toBe(true);
     await page.close();

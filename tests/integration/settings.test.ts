@@ -247,3 +247,12 @@ describe('the report number format', () => {
     expect(page.text).toContain(`QC.${clock!.yy}.00003`);
   });
 });
+
+describe('time zones', () => {
+  it('a current IANA name the runtime lists under an older spelling is accepted and saved as typed', async () => {
+    // IANA tzdata's current name is Asia/Kolkata; CLDR (Intl.supportedValuesOf) may list Asia/Calcutta.
+    expect((await save({ ...VALID, timeZone: 'Asia/Kolkata' })).status).toBe(303);
+    const settings = await loadOrganisationSettings(world.database.db, world.organisationId);
+    expect(settings.timeZone).toBe('Asia/Kolkata');
+  });
+});

@@ -20,7 +20,10 @@ export const organisationSettings = pgTable('organisation_settings', {
   organisationId: integer('organisation_id')
     .primaryKey()
     .references(() => organisations.id),
-  signatureMeanings: jsonb('signature_meanings').$type<string[]>().notNull().default(['Reviewed', 'Approved']),
+  signatureMeanings: jsonb('signature_meanings')
+    .$type<string[]>()
+    .notNull()
+    .default(['Reviewed', 'Approved']),
   defaultConfidenceLevel: doublePrecision('default_confidence_level').notNull().default(0.95),
   defaultTimeUnit: text('default_time_unit').notNull().default('month'),
   defaultValueUnit: text('default_value_unit').notNull().default('% of label claim'),
