@@ -60,6 +60,21 @@ export interface NonlinearFit {
   converged: boolean;
   /** Why the iteration stopped, in words. */
   reason: string;
+  /**
+   * 'limited-by-rounding' when the residuals are so small that rounding the model values to
+   * double already changes them by more than `ROUNDING_LIMITED_RESIDUAL_FRACTION` of their size:
+   * the parameters stand, but the standard errors (which scale with √RSS) carry fewer digits.
+   * Said rather than left silent (NIST StRD Lanczos1 is such a problem).
+   */
+  standardErrorPrecision: 'full' | 'limited-by-rounding';
+}
+
+/** Rounding of the model values may move the residuals by at most this fraction before we say so. */
+export const ROUNDING_LIMITED_RESIDUAL_FRACTION = 1e-4;
+
+/** Half a unit in the last place of a double: the largest error of rounding a value to double. */
+function halfUnitInLastPlace(value: number): number {
+  return value === 0 ? 0 : 2 ** (Math.floor(Math.log2(Math.abs(value))) - 53);
 }
 
 /** Defaults, chosen on the NIST StRD suite: tight enough for 6+ digits on every certified problem. */
@@ -144,6 +159,7 @@ export function levenbergMarquardt(problem: NonlinearProblem, options: LmOptions
     functionEvaluations: state.functionEvaluations,
     converged: state.converged,
     reason: state.reason,
+    standardErrorPrecision: 'full',
   };
   if (!Number.isFinite(state.residualSumOfSquares)) {
     return { ...result, residualSumOfSquares: 0, residualStandardDeviation: 0, converged: false };
@@ -152,7 +168,26 @@ export function levenbergMarquardt(problem: NonlinearProblem, options: LmOptions
   if (!covariance.ok) {
     return { ...result, converged: false, reason: `${state.reason}; ${covariance.reason}` };
   }
-  return { ...result, covariance: covariance.covariance, standardErrors: covariance.standardErrors };
+  let largestRounding = 0;
+  for (let i = 0; i < y.length; i++) {
+    largestRounding = Math.max(
+      largestRounding,
+      rootWeights[i]! * halfUnitInLastPlace(model(state.parameters, x[i]!, i)),
+    );
+  }
+  const rmsResidual = Math.sqrt(state.residualSumOfSquares / y.length);
+  const limited = largestRounding > ROUNDING_LIMITED_RESIDUAL_FRACTION * rmsResidual;
+  return {
+    ...result,
+    covariance: covariance.covariance,
+    standardErrors: covariance.standardErrors,
+    ...(limited
+      ? {
+          standardErrorPrecision: 'limited-by-rounding' as const,
+          reason: `${state.reason}; the residuals are within ${Math.round(rmsResidual / (2 * largestRounding))} units in the last place of the fitted values, so the standard errors carry only about ${Math.max(1, Math.floor(-Math.log10((2 * largestRounding) / rmsResidual)))} significant digits`,
+        }
+      : {}),
+  };
 }
 
 /**
