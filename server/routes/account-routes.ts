@@ -53,6 +53,22 @@ function passwordErrors(error: unknown): Record<string, string[]> | null {
   return null;
 }
 
+/** The 410 page for a used, expired or withdrawn link: the same page wherever it is refused. */
+const CLOSED_LINK_PAGES = {
+  invitation: { view: 'invitation-closed', title: 'Invitation link not valid' },
+  reset: { view: 'password-reset-closed', title: 'Password reset link not valid' },
+} as const;
+
+function renderClosedLink(
+  req: Request,
+  res: Response,
+  kind: keyof typeof CLOSED_LINK_PAGES,
+  message: string,
+) {
+  const page = CLOSED_LINK_PAGES[kind];
+  renderPage(req, res, page.view, { title: page.title, message }, 410);
+}
+
 function invitationLocals(req: Request, view: InvitationView, token: string) {
   const signedInAsInvitee = req.user?.email === view.email;
   return {
@@ -77,13 +93,7 @@ export function accountRoutes(services: AppServices): Router {
     const token = tokenOf(req);
     const view = await openInvitation(db, token);
     if (view.state !== 'open') {
-      return renderPage(
-        req,
-        res,
-        'invitation-closed',
-        { title: 'Invitation link not valid', message: closedLinkMessage(view.state, 'invitation') },
-        410,
-      );
+      return renderClosedLink(req, res, 'invitation', closedLinkMessage(view.state, 'invitation'));
     }
     renderPage(req, res, 'invitation', invitationLocals(req, view, token));
   });
@@ -93,13 +103,7 @@ export function accountRoutes(services: AppServices): Router {
     const token = tokenOf(req);
     const view = await openInvitation(db, token);
     if (view.state !== 'open') {
-      return renderPage(
-        req,
-        res,
-        'invitation-closed',
-        { title: 'Invitation link not valid', message: closedLinkMessage(view.state, 'invitation') },
-        410,
-      );
+      return renderClosedLink(req, res, 'invitation', closedLinkMessage(view.state, 'invitation'));
     }
     let password: string | undefined;
     if (!view.existingAccount) {
@@ -123,13 +127,7 @@ export function accountRoutes(services: AppServices): Router {
       if (errors)
         return renderPage(req, res, 'invitation', { ...invitationLocals(req, view, token), errors }, 400);
       if (error instanceof HttpError && error.status === 410) {
-        return renderPage(
-          req,
-          res,
-          'invitation-closed',
-          { title: 'Invitation link not valid', message: error.message },
-          410,
-        );
+        return renderClosedLink(req, res, 'invitation', error.message);
       }
       throw error;
     }
@@ -147,13 +145,7 @@ export function accountRoutes(services: AppServices): Router {
     const token = tokenOf(req);
     const view = await openPasswordReset(db, token);
     if (view.state !== 'open') {
-      return renderPage(
-        req,
-        res,
-        'password-reset-closed',
-        { title: 'Password reset link not valid', message: closedLinkMessage(view.state, 'reset') },
-        410,
-      );
+      return renderClosedLink(req, res, 'reset', closedLinkMessage(view.state, 'reset'));
     }
     renderPage(req, res, 'password-reset', resetLocals(view, token));
   });
@@ -163,13 +155,7 @@ export function accountRoutes(services: AppServices): Router {
     const token = tokenOf(req);
     const view = await openPasswordReset(db, token);
     if (view.state !== 'open') {
-      return renderPage(
-        req,
-        res,
-        'password-reset-closed',
-        { title: 'Password reset link not valid', message: closedLinkMessage(view.state, 'reset') },
-        410,
-      );
+      return renderClosedLink(req, res, 'reset', closedLinkMessage(view.state, 'reset'));
     }
     const form = newPasswordFormSchema.safeParse(req.body ?? {});
     if (!form.success) {
@@ -185,13 +171,7 @@ export function accountRoutes(services: AppServices): Router {
       const errors = passwordErrors(error);
       if (errors) return renderPage(req, res, 'password-reset', { ...resetLocals(view, token), errors }, 400);
       if (error instanceof HttpError && error.status === 410) {
-        return renderPage(
-          req,
-          res,
-          'password-reset-closed',
-          { title: 'Password reset link not valid', message: error.message },
-          410,
-        );
+        return renderClosedLink(req, res, 'reset', error.message);
       }
       throw error;
     }

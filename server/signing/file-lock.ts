@@ -16,7 +16,7 @@ import { setTimeout as sleep } from 'node:timers/promises';
  * Throws when the lock cannot be had within `timeoutMs`, and whatever `work` throws (the lock is
  * released either way).
  *
- * Example: await withFileLock('/tmp/x.lock', async () => 42) resolves to 42.
+ * Example: await withFileLock(path.join(signingDir, 'ca.lock'), async () => 42) resolves to 42.
  */
 
 export interface FileLockOptions {

@@ -5,7 +5,7 @@ import { parsePdfsigOutput } from './parse-pdfsig-output.ts';
  * The report format is poppler-utils 22.12 `pdfsig` as printed on this machine (Debian 12) for
  * a file sealed twice; the second signature shows the NSS quirk described in verify-pdf.ts.
  */
-const twoSignatures = `Digital Signature Info of: /tmp/sealed2.pdf
+const twoSignatures = `Digital Signature Info of: sealed2.pdf
 Signature #1:
   - Signature Field Name: Rateledger seal 1
   - Signer Certificate Common Name: Northwind Stability Lab
@@ -55,7 +55,7 @@ describe('parsePdfsigOutput', () => {
   });
 
   it('finds no signature in the "no signatures" message, in errors, or in nothing', () => {
-    expect(parsePdfsigOutput("File '/tmp/unsigned.pdf' does not contain any signatures\n")).toEqual([]);
+    expect(parsePdfsigOutput("File 'unsigned.pdf' does not contain any signatures\n")).toEqual([]);
     expect(parsePdfsigOutput("Syntax Error: Couldn't read xref table\n")).toEqual([]);
     expect(parsePdfsigOutput('')).toEqual([]);
   });

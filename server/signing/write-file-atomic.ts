@@ -12,7 +12,7 @@ import { closeSync, fsyncSync, openSync, renameSync, rmSync, writeSync } from 'n
  *
  * Throws the file system's error (the temporary file is removed).
  *
- * Example: writeFileAtomic('/tmp/a.txt', 'hi', 0o600) leaves /tmp/a.txt containing "hi", mode 0600.
+ * Example: writeFileAtomic(path.join(signingDir, 'a.txt'), 'hi', 0o600) leaves that file containing "hi", mode 0600.
  */
 export function writeFileAtomic(target: string, data: string | Uint8Array, mode = 0o600): void {
   const temporary = `${target}.tmp-${process.pid}-${randomBytes(6).toString('hex')}`;

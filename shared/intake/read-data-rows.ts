@@ -41,7 +41,6 @@ export interface DataRow {
   time: number | Date;
   value: number;
   valueCell: string;
-  timeCell: string;
   seriesLabel?: string;
   temperatureC?: number;
   replicateLabel?: string;
@@ -169,7 +168,6 @@ export function readDataRows(
       time: timeResult.value,
       value: valueResult.value,
       valueCell: reference(rowIndex, columns.value),
-      timeCell: reference(rowIndex, columns.time),
     };
     if (seriesLabel !== undefined) row.seriesLabel = seriesLabel;
     if (temperatureC !== undefined) row.temperatureC = temperatureC;
