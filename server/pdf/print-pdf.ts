@@ -1,6 +1,7 @@
 import { ParseSpeeds, PDFDocument } from 'pdf-lib';
 import type { Page } from 'puppeteer-core';
 import type { BrowserPool } from './browser-pool.ts';
+import { appendDocumentInfo } from './pdf-info-update.ts';
 import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.ts';
 
 /**
@@ -16,9 +17,9 @@ import { footerTemplate, headerTemplate, PAGE_MARGINS } from './running-header.t
  *
  * The PDF is A4 or US Letter with the running header (report number and version) and footer
  * ("Page X of Y"), tagged (structure tree for accessibility) with a document outline from the
- * headings. Chromium writes Title from `<title>`; pdf-lib then sets Title, Author, Subject,
- * Keywords, Creator "Rateledger", Producer and the dates in the document information
- * dictionary.
+ * headings. Chromium writes Title from `<title>`; `setPdfMetadata` then sets Title, Author,
+ * Subject, Keywords, Creator "Rateledger", Producer and the dates in a new document information
+ * dictionary, appended as an incremental update so Chromium's bytes stay as printed.
  *
  * Reference: Chrome DevTools Protocol `Page.printToPDF` and `Fetch` domains
  * (chromedevtools.github.io/devtools-protocol); ISO 32000-1 §14.3.3 (document information).
@@ -85,12 +86,30 @@ export async function sealedPage(page: Page, tally: RequestTally): Promise<void>
   });
 }
 
-/** Sets the document information dictionary; returns the new bytes and the page count. */
+/**
+ * Sets the document information dictionary; returns the new bytes and the page count. Chromium's
+ * output gets an incremental update (`appendDocumentInfo`: its bytes unchanged, one dictionary
+ * appended); any other PDF is loaded and saved whole by pdf-lib.
+ */
 export async function setPdfMetadata(
   bytes: Uint8Array,
   metadata: PrintPdfOptions['metadata'],
   producer = PRODUCER,
 ): Promise<{ pdf: Uint8Array; pageCount: number }> {
+  const when = metadata.createdAt ?? new Date();
+  const appended = appendDocumentInfo(
+    bytes,
+    {
+      Title: metadata.title,
+      Author: metadata.author,
+      Subject: metadata.subject,
+      Keywords: metadata.keywords.join(' '),
+      Creator: 'Rateledger',
+      Producer: producer,
+    },
+    { CreationDate: when, ModDate: when },
+  );
+  if (appended) return appended;
   // Fastest: parse and write in one go instead of yielding to the event loop every 100 objects.
   const document = await PDFDocument.load(bytes, { updateMetadata: false, parseSpeed: ParseSpeeds.Fastest });
   document.setTitle(metadata.title, { showInWindowTitleBar: true });
@@ -99,7 +118,6 @@ export async function setPdfMetadata(
   document.setKeywords(metadata.keywords);
   document.setCreator('Rateledger');
   document.setProducer(producer);
-  const when = metadata.createdAt ?? new Date();
   document.setCreationDate(when);
   document.setModificationDate(when);
   const pdf = await document.save({ useObjectStreams: false, objectsPerTick: Number.POSITIVE_INFINITY });
@@ -117,7 +135,6 @@ export async function printPdf(pool: BrowserPool, options: PrintPdfOptions): Pro
       page.setDefaultTimeout(timeout);
       await sealedPage(page, requests);
       await page.setContent(await html, { waitUntil: 'load', timeout });
-      await page.evaluate(() => document.fonts.ready.then(() => undefined));
       return await page.pdf({
         format: options.paper,
         printBackground: true,
@@ -128,6 +145,9 @@ export async function printPdf(pool: BrowserPool, options: PrintPdfOptions): Pro
         preferCSSPageSize: false,
         tagged: true,
         outline: true,
+        // puppeteer waits for document.fonts.ready (in an isolated world, so with page script off)
+        // before it prints; the embedded @font-face files are therefore loaded when printing starts.
+        waitForFonts: true,
         timeout,
       });
     } finally {

@@ -1,8 +1,8 @@
 /**
  * Benchmark of the report pipeline (issue 5): a warm render of the default report — five
  * figures drawn to SVG by vega on the server, the Handlebars template, Chromium printing in a
- * sealed page (JavaScript off, requests intercepted) and pdf-lib metadata — against Chromium
- * printing the same stored HTML directly (new page, setContent, page.pdf with the same print
+ * sealed page (JavaScript off, requests intercepted) and the document metadata (appended as an
+ * incremental update) — against Chromium printing the same stored HTML directly (new page, setContent, page.pdf with the same print
  * options, nothing else). Runs alternate between the two so machine load affects both alike.
  *
  * Targets: warm pipeline median under 1.5 s; pipeline / direct median ratio at most 1.3.

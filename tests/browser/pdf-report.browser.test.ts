@@ -1,5 +1,5 @@
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -69,6 +69,16 @@ describe('the default report as a PDF', () => {
     expect(meta.Tagged).toBe('yes');
     expect(meta.JavaScript).toBe('no');
     expect(meta.CreationDate).toMatch(/Dec {1,2}1 14:05:00 2026/);
+  });
+
+  it("keeps Chromium's printed bytes and adds the metadata as one incremental update (ISO 32000-1 §7.5.6)", () => {
+    const bytes = readFileSync(printed.A4.file).toString('latin1');
+    // Two revisions: Chromium's file, then the update with our information dictionary. The page
+    // count read on the fast path agrees with poppler's (checked above).
+    expect(bytes.match(/%%EOF/g)?.length).toBe(2);
+    const update = bytes.slice(bytes.indexOf('%%EOF') + 5);
+    expect(update).toMatch(/\/Prev \d+/);
+    expect(update).toContain('/Producer');
   });
 
   it('prints on A4 and on US Letter (pdfinfo "Page size")', () => {
