@@ -12,6 +12,7 @@ export type FileReadErrorCode =
   | 'password-protected'
   | 'legacy-workbook'
   | 'damaged-workbook'
+  | 'workbook-too-large'
   | 'malformed-csv';
 
 export class FileReadError extends Error {

@@ -20,8 +20,12 @@
  * is an .xlsx; an OLE compound file holding an "EncryptedPackage" is a password-protected
  * workbook; another OLE compound file is the old binary .xls format.
  *
+ * Archives that would unpack past `MAX_EXPANDED_BYTES` (a "ZIP bomb") or whose ZIP structure is
+ * damaged are refused before any reader unpacks them whole: the general reader is only handed
+ * archives whose every entry inflated within its declared size.
+ *
  * Throws `FileReadError` with code 'empty-file', 'password-protected', 'legacy-workbook',
- * 'not-a-workbook' or 'damaged-workbook' (truncated or corrupt ZIP/XML).
+ * 'not-a-workbook', 'damaged-workbook' (truncated or corrupt ZIP/XML) or 'workbook-too-large'.
  *
  * Example: a workbook with sheet "Long term" holding A1 = "Month", B1 = "Assay", A2 = 0,
  * B2 = 100.2 gives `[{ name: 'Long term', rows: [['Month', 'Assay'], [0, 100.2]], merges: [] }]`.
@@ -31,6 +35,7 @@ import { columnIndex } from '../../shared/intake/cell-reference.ts';
 import type { GridCell, MergedRange, SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { FileReadError } from './file-read-error.ts';
 import { xlsxSheetGrids } from './xlsx-sheet-grids.ts';
+import { assertBoundedExpansion, MAX_EXPANDED_BYTES, ZipDamaged, ZipTooLarge } from './xlsx-zip-entries.ts';
 
 const ZIP_SIGNATURE = [0x50, 0x4b, 0x03, 0x04];
 const OLE_SIGNATURE = [0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1];
@@ -115,12 +120,33 @@ function readSheet(worksheet: ExcelJS.Worksheet): SheetGrid {
   return { name: worksheet.name, rows, merges };
 }
 
+const MIB = 1024 * 1024;
+
+/** The analyst's message for an archive no reader should open; null for any other error. */
+function finalArchiveError(error: unknown): FileReadError | null {
+  if (error instanceof ZipTooLarge) {
+    return new FileReadError(
+      'workbook-too-large',
+      `The workbook would unpack to ${Math.ceil(error.expandedBytes / MIB)} MB; Rateledger opens workbooks that unpack to at most ${MAX_EXPANDED_BYTES / MIB} MB. Delete sheets, images or columns the study does not need and save again, or upload the data as CSV.`,
+    );
+  }
+  if (error instanceof ZipDamaged) {
+    return new FileReadError(
+      'damaged-workbook',
+      `The workbook could not be opened; it may be incomplete or damaged (${error.message}). Upload it again, or open and save it in a spreadsheet program.`,
+    );
+  }
+  return null;
+}
+
 export async function readWorkbook(content: Uint8Array): Promise<SheetGrid[]> {
   checkContainer(content);
   try {
     return xlsxSheetGrids(content);
-  } catch {
-    // Outside the fast reader's plain subset, or damaged: the general reader decides.
+  } catch (error) {
+    const final = finalArchiveError(error);
+    if (final) throw final;
+    // Outside the fast reader's plain subset: the general reader decides.
     return readWithObjectModel(content);
   }
 }
@@ -128,6 +154,11 @@ export async function readWorkbook(content: Uint8Array): Promise<SheetGrid[]> {
 /** The general reader: exceljs's full workbook model, slower and larger but complete. */
 export async function readWithObjectModel(content: Uint8Array): Promise<SheetGrid[]> {
   // Loaded on first use: most uploads never need it, and it is a large module.
+  try {
+    assertBoundedExpansion(content);
+  } catch (error) {
+    throw finalArchiveError(error) ?? error;
+  }
   const { default: ExcelJSModule } = await import('exceljs');
   const workbook = new ExcelJSModule.Workbook();
   try {

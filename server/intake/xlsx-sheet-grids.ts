@@ -15,9 +15,10 @@
  * text, a truth value as a boolean. Cells covered by a merged block, other than its top-left one,
  * read as empty, and a block reaching below the last row extends the sheet to its bottom row.
  *
- * Throws `ZipUnsupported` for anything outside that plain subset (a ZIP64 or encrypted archive,
- * prefixed element names, a shared string that does not exist, unknown entities...), for the
- * caller to hand the file to the general reader, which reads it or names the problem.
+ * Throws `ZipUnsupported` for anything outside that plain subset (an encrypted archive, prefixed
+ * element names, a shared string that does not exist, unknown entities...), for the caller to
+ * hand the file to the general reader, which reads it or names the problem; and its subclasses
+ * `ZipDamaged` and `ZipTooLarge` (see `xlsx-zip-entries.ts`) for archives no reader should open.
  *
  * Example: a workbook whose sheet "Long term" holds A1 = "Month", B1 = "Assay", A2 = 0,
  * B2 = 100.2 gives `[{ name: 'Long term', rows: [['Month', 'Assay'], [0, 100.2]], merges: [] }]`.

@@ -163,6 +163,21 @@ describe('upload', () => {
     );
   });
 
+  it('a workbook that would unpack past the limit (a crafted "ZIP bomb") → 422 naming the limit, nothing stored', async () => {
+    // The sheet's central-directory header (PKWARE APPNOTE 4.3.12: uncompressed size at +24) is
+    // made to declare 4 GB; the reader refuses it before inflating anything.
+    const bytes = Buffer.from(await goodWorkbook());
+    const name = Buffer.from('xl/worksheets/sheet1.xml');
+    let header = bytes.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]));
+    while (header >= 0 && !bytes.subarray(header + 46, header + 46 + name.length).equals(name))
+      header = bytes.indexOf(Buffer.from([0x50, 0x4b, 0x01, 0x02]), header + 4);
+    expect(header).toBeGreaterThan(0);
+    bytes.writeUInt32LE(0xfffffff0, header + 24);
+    const response = await expectRefused(bytes, 'huge.xlsx', 422, /unpack to at most 200 MB/);
+    expect(response.body.error.details).toEqual({ code: 'workbook-too-large' });
+    expect((await analyst.get('/healthz')).status).toBe(200);
+  });
+
   it('a password-protected workbook (an OLE compound file holding an EncryptedPackage) → 422 naming the password', async () => {
     const header = Buffer.from([0xd0, 0xcf, 0x11, 0xe0, 0xa1, 0xb1, 0x1a, 0xe1]);
     const bytes = Buffer.concat([
