@@ -57,7 +57,7 @@ export interface PrintPdfResult {
   requests: RequestTally;
 }
 
-export const PRODUCER = 'Rateledger report printer (Chromium, pdf-lib)';
+export const PRODUCER = 'Rateledger report printer (Chromium)';
 const DEFAULT_TIMEOUT_MS = 60_000;
 const MAX_URLS_KEPT = 50;
 
