@@ -182,4 +182,30 @@ describe('zipEntries', () => {
     expect(error.code).toBe('damaged-workbook');
     expect(error.message).toContain('xl/media/image1.png does not inflate to its declared 16 bytes');
   });
+
+  it('answers every corrupted directory with a FileReadError, never another exception (common practice: fuzzing)', async () => {
+    const archive = zipOf(workbookParts(ROWS), { zip64: true });
+    const directoryStart = archive.length - 400; // the central directory, ZIP64 records and end record
+    let seed = 20261202;
+    const random = () => {
+      seed = (seed * 1103515245 + 12345) % 2 ** 31; // a fixed linear congruential sequence
+      return seed / 2 ** 31;
+    };
+    const codes = new Set<string>();
+    for (let trial = 0; trial < 300; trial += 1) {
+      const damaged = new Uint8Array(archive);
+      for (let flips = 0; flips < 3; flips += 1) {
+        const at = directoryStart + Math.floor(random() * (archive.length - directoryStart));
+        damaged[at] = Math.floor(random() * 256);
+      }
+      try {
+        await readWorkbook(damaged);
+        codes.add('read');
+      } catch (error) {
+        expect(error, `trial ${trial}`).toBeInstanceOf(FileReadError);
+        codes.add((error as FileReadError).code);
+      }
+    }
+    expect(codes.has('damaged-workbook')).toBe(true);
+  });
 });

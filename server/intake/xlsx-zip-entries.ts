@@ -141,7 +141,8 @@ function applyZip64Extra(entry: DirectoryEntry, bytes: Buffer, start: number, le
     if (id === ZIP64_EXTRA_ID) {
       let field = at + 4;
       const next = (): number => {
-        if (field + 8 > at + 4 + size) throw new ZipDamaged('damaged ZIP64 extra field');
+        if (field + 8 > Math.min(at + 4 + size, start + length))
+          throw new ZipDamaged('damaged ZIP64 extra field');
         const value = readUInt64(bytes, field);
         field += 8;
         if (value === null) throw new ZipDamaged('damaged ZIP64 extra field');
@@ -156,7 +157,7 @@ function applyZip64Extra(entry: DirectoryEntry, bytes: Buffer, start: number, le
   }
 }
 
-export function zipEntries(content: Uint8Array): ZipEntries {
+function readEntries(content: Uint8Array): ZipEntries {
   const bytes = Buffer.from(content.buffer, content.byteOffset, content.byteLength);
   if (bytes.length < END_OF_DIRECTORY_SIZE) throw new ZipDamaged('too short for a ZIP archive');
   const end = findEndOfDirectory(bytes);
@@ -222,6 +223,21 @@ export function zipEntries(content: Uint8Array): ZipEntries {
     return data;
   };
   return { names: [...entries.keys()], read };
+}
+
+/** Any read past a crafted field's bounds (a RangeError) is a damaged archive, never a crash. */
+function damagedOnFailure<T>(step: () => T): T {
+  try {
+    return step();
+  } catch (error) {
+    if (error instanceof ZipUnsupported) throw error;
+    throw new ZipDamaged(`unreadable ZIP structure: ${(error as Error).message}`);
+  }
+}
+
+export function zipEntries(content: Uint8Array): ZipEntries {
+  const entries = damagedOnFailure(() => readEntries(content));
+  return { names: entries.names, read: (name) => damagedOnFailure(() => entries.read(name)) };
 }
 
 /**

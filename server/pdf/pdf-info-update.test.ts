@@ -4,7 +4,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { PDFDict, PDFDocument, PDFName } from 'pdf-lib';
 import { afterAll, describe, expect, it } from 'vitest';
-import { appendDocumentInfo, pdfDate, pdfTextString } from './pdf-info-update.ts';
+import { appendDocumentInfo } from './pdf-info-update.ts';
 
 /**
  * The incremental information update, read back by two independent PDF readers: poppler's
@@ -86,11 +86,5 @@ describe('appendDocumentInfo', () => {
     expect(appendDocumentInfo(new TextEncoder().encode('not a pdf at all'), text, {})).toBeNull();
     const truncated = (await classicPdf(1)).subarray(0, 300);
     expect(appendDocumentInfo(truncated, text, {})).toBeNull();
-  });
-
-  it('writes text strings as UTF-16BE with a byte-order mark and dates in UTC (§7.9.2.2, §7.9.4)', () => {
-    expect(pdfTextString('Aé')).toBe('<FEFF004100E9>');
-    expect(pdfTextString('𝛼')).toBe('<FEFFD835DEFC>'); // U+1D6FC as a surrogate pair
-    expect(pdfDate(new Date('2026-03-04T05:06:07.890Z'))).toBe('(D:20260304050607Z)');
   });
 });

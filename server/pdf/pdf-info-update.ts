@@ -21,7 +21,8 @@
  * rewrite.
  *
  * Text entries are written as UTF-16BE hex strings with a byte-order mark (§7.9.2.2), so any
- * name prints correctly; dates as `D:YYYYMMDDHHmmSSZ` in UTC (§7.9.4).
+ * name prints correctly; dates as `D:YYYYMMDDHHmmSSZ` in UTC (§7.9.4) — both serialised by
+ * pdf-lib's `PDFHexString.fromText` and `PDFString.fromDate`.
  *
  * Reference: ISO 32000-1:2008 §7.5.4 (cross-reference table), §7.5.5 (trailer), §7.5.6
  * (incremental updates), §12.2 table 150 (viewer preferences), §14.3.3 table 317 (document
@@ -31,6 +32,8 @@
  * { CreationDate: new Date('2026-12-01T14:05:00Z') }) → { pdf: chromiumPdf followed by one update
  * section, pageCount: 10 }.
  */
+
+import { PDFHexString, PDFString } from 'pdf-lib';
 
 export interface DocumentInfoText {
   Title?: string;
@@ -49,22 +52,6 @@ export interface DocumentInfoDates {
 const TAIL_BYTES = 2048;
 /** Enough for a catalog or page-tree dictionary; Skia's are a few hundred bytes. */
 const OBJECT_WINDOW_BYTES = 64 * 1024;
-
-/** UTF-16BE hex string with a byte-order mark: `<FEFF…>`. */
-export function pdfTextString(text: string): string {
-  let hex = 'FEFF';
-  for (let index = 0; index < text.length; index += 1) {
-    hex += text.charCodeAt(index).toString(16).toUpperCase().padStart(4, '0');
-  }
-  return `<${hex}>`;
-}
-
-/** A PDF date in UTC: `(D:20261201140500Z)`. */
-export function pdfDate(when: Date): string {
-  const iso = when.toISOString(); // 2026-12-01T14:05:00.000Z
-  const digits = iso.slice(0, 19).replace(/[-T:]/g, '');
-  return `(D:${digits}Z)`;
-}
 
 interface Trailer {
   size: number;
@@ -179,10 +166,11 @@ export function appendDocumentInfo(
   const infoNumber = table.trailer.size;
   const entries: string[] = [];
   for (const [key, value] of Object.entries(text)) {
-    if (typeof value === 'string') entries.push(`/${key} ${pdfTextString(value)}`);
+    if (typeof value === 'string') entries.push(`/${key} ${PDFHexString.fromText(value).toString()}`);
   }
   for (const [key, value] of Object.entries(dates)) {
-    if (value instanceof Date && !Number.isNaN(value.getTime())) entries.push(`/${key} ${pdfDate(value)}`);
+    if (value instanceof Date && !Number.isNaN(value.getTime()))
+      entries.push(`/${key} ${PDFString.fromDate(value).toString()}`);
   }
   // A new line first: Chromium's file ends "%%EOF" without one, and the update must start on its own line.
   const separator = pdf[pdf.length - 1] === 0x0a ? '' : '\n';
