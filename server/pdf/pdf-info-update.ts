@@ -126,7 +126,7 @@ function objectText(pdf: Buffer, offset: number | undefined, num: number, gen: n
 }
 
 function pageCountOf(catalog: string, pdf: Buffer, offsets: Map<number, number>): number | null {
-  const pages = catalog && /\/Pages\s+(\d+)\s+(\d+)\s+R/.exec(catalog);
+  const pages = /\/Pages\s+(\d+)\s+(\d+)\s+R/.exec(catalog);
   if (!pages) return null;
   const pagesNum = Number(pages[1]);
   const tree = objectText(pdf, offsets.get(pagesNum), pagesNum, Number(pages[2]));
