@@ -5,7 +5,7 @@ import type { Config } from 'tailwindcss';
  * brick red kept for alerts. Loaded from src/styles.css with `@config`.
  */
 export default {
-  content: ['./server/views/**/*.hbs', './src/**/*.{ts,tsx}'],
+  content: ['./server/**/*.hbs', './src/**/*.{ts,tsx}'],
   theme: {
     extend: {
       colors: {

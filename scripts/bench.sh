@@ -16,5 +16,5 @@ if [ -z "${DATABASE_URL:-}" ]; then
   export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/rateledger_bench"
   trap 'stop_cluster "$PG_DIR"; rm -rf "$PG_DIR"' EXIT
 fi
-npx tsx server/db/migrate.ts
+npx tsx server/platform/db/migrate.ts
 npx tsx tests/bench/index.ts "$@"

@@ -31,8 +31,8 @@ if [ -z "${SESSION_SECRET:-}" ]; then
   export SESSION_SECRET
 fi
 
-npx tsx server/db/migrate.ts
-npx tsx server/db/seed.ts
+npx tsx server/platform/db/migrate.ts
+npx tsx server/demo/seed.ts
 log "building the client"
 npx vite build --logLevel warn
 

@@ -2,30 +2,27 @@ import connectPgSimple from 'connect-pg-simple';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
-import { csrfProtection } from './auth/csrf.ts';
-import { createAuthenticator } from './auth/passport-setup.ts';
-import type { DatabaseHandle } from './db/client.ts';
-import { errorHandler, notFound } from './http/error-handler.ts';
-import { requireJsonBody } from './http/require-json.ts';
-import { accountRoutes } from './routes/account-routes.ts';
-import { analysisRoutes } from './routes/analysis-routes.ts';
-import { apiRoutes } from './routes/api-routes.ts';
-import { auditRoutes } from './routes/audit-routes.ts';
-import { authRoutes } from './routes/auth-routes.ts';
-import { healthRoutes } from './routes/health-routes.ts';
-import { outboxRoutes } from './routes/outbox-routes.ts';
-import { pageRoutes } from './routes/page-routes.ts';
-import { reportRoutes } from './routes/report-routes.ts';
-import { reviewRoutes } from './routes/review-routes.ts';
-import { settingsRoutes } from './routes/settings-routes.ts';
-import { studyRoutes } from './routes/study-routes.ts';
-import { templateAdminRoutes } from './routes/template-admin-routes.ts';
-import { uploadRoutes } from './routes/upload-routes.ts';
-import { userAdminRoutes } from './routes/user-admin-routes.ts';
-import { verificationRoutes } from './routes/verification-routes.ts';
-import type { AppOptions, AppServices } from './services/app-services.ts';
-import { CLIENT_DIST, readClientAssets } from './web/assets.ts';
-import { createViewEngine, VIEWS_DIR } from './web/view-engine.ts';
+import { analysisRoutes } from './features/analysis/index.ts';
+import { auditRoutes } from './features/audit-viewer/index.ts';
+import { apiRoutes, pageRoutes } from './features/dashboard/index.ts';
+import { uploadRoutes } from './features/intake/index.ts';
+import { outboxRoutes } from './features/outbox/index.ts';
+import { accountRoutes, authRoutes, userAdminRoutes } from './features/people/index.ts';
+import { reportRoutes } from './features/reports/index.ts';
+import { reviewRoutes } from './features/review/index.ts';
+import { settingsRoutes } from './features/settings/index.ts';
+import { studyRoutes } from './features/studies/index.ts';
+import { templateAdminRoutes } from './features/templates/index.ts';
+import { verificationRoutes } from './features/verification/index.ts';
+import type { AppOptions, AppServices } from './platform/app-services.ts';
+import { csrfProtection } from './platform/auth/csrf.ts';
+import { createAuthenticator } from './platform/auth/passport-setup.ts';
+import type { DatabaseHandle } from './platform/db/client.ts';
+import { errorHandler, notFound } from './platform/http/error-handler.ts';
+import { healthRoutes } from './platform/http/health-routes.ts';
+import { requireJsonBody } from './platform/http/require-json.ts';
+import { CLIENT_DIST, readClientAssets } from './platform/web/assets.ts';
+import { createViewEngine, viewFolders } from './platform/web/view-engine.ts';
 
 export const DEFAULT_OPTIONS: Omit<AppOptions, 'sessionSecret'> = {
   cookieSecure: false,
@@ -48,9 +45,10 @@ export function createApp(
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
-  app.engine('hbs', createViewEngine());
+  const views = viewFolders();
+  app.engine('hbs', createViewEngine(views));
   app.set('view engine', 'hbs');
-  app.set('views', VIEWS_DIR);
+  app.set('views', views);
   app.locals.assets = readClientAssets();
 
   app.use(

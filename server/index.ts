@@ -1,11 +1,11 @@
 import type { Server } from 'node:http';
 import { createApp } from './app.ts';
-import { parseEnvironment } from './config/env.ts';
-import { openDatabase } from './db/client.ts';
-import { DEMO_PASSWORDS_NOTE } from './db/demo-accounts.ts';
-import { startInProcessRenderWorker } from './jobs/in-process-worker.ts';
-import { startMail } from './mail/start-mail.ts';
-import { closeSigningBrowsers } from './services/signed-output.ts';
+import { DEMO_PASSWORDS_NOTE } from './demo/demo-accounts.ts';
+import { startInProcessRenderWorker } from './features/reports/index.ts';
+import { closeSigningBrowsers } from './features/signing/index.ts';
+import { parseEnvironment } from './platform/config/env.ts';
+import { openDatabase } from './platform/db/client.ts';
+import { startMail } from './platform/mail/start-mail.ts';
 
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
 const environment = parseEnvironment();

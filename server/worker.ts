@@ -1,10 +1,12 @@
 import { z } from 'zod';
-import { openDatabase } from './db/client.ts';
-import { parseRenderConfig } from './jobs/render-config.ts';
-import { createRenderPipeline } from './jobs/render-pipeline.ts';
-import { openRenderQueue } from './jobs/render-queue.ts';
-import { startRenderWorker } from './jobs/render-worker.ts';
-import { reportStorage } from './services/report-storage.ts';
+import {
+  createRenderPipeline,
+  openRenderQueue,
+  parseRenderConfig,
+  reportStorage,
+  startRenderWorker,
+} from './features/reports/index.ts';
+import { openDatabase } from './platform/db/client.ts';
 
 /**
  * A render worker on its own (`npm run worker`): renders report versions from the shared queue,

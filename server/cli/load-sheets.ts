@@ -12,8 +12,7 @@
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
-import { readCsv } from '../intake/read-csv.ts';
-import { readWorkbook } from '../intake/read-workbook.ts';
+import { readCsv, readWorkbook } from '../features/intake/index.ts';
 
 const CONTAINER_SIGNATURES = [
   [0x50, 0x4b, 0x03, 0x04],

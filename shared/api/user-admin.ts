@@ -2,14 +2,14 @@
  * People and roles: the forms an administrator posts on `/admin/people` (invite, set roles) and
  * the forms an invitee or a person resetting their password posts on the public token pages. The
  * password rules themselves (length, character classes, common passwords) depend on the
- * organisation's policy and are checked on the server (`server/services/password-policy.ts`).
+ * organisation's policy and are checked on the server (`server/features/settings/password-policy.ts`).
  *
  * Example: `inviteFormSchema.parse({ fullName: 'Rhea Reviewer', email: 'Rhea@Lab.example',
  * roles: 'reviewer' })` → `{ fullName: 'Rhea Reviewer', email: 'rhea@lab.example', roles: ['reviewer'] }`.
  */
 import { z } from 'zod';
 
-/** The duties of the product, as the server's `Role` (server/auth/roles.ts). */
+/** The duties of the product, as the server's `Role` (server/platform/auth/roles.ts). */
 export const MEMBER_ROLES = ['analyst', 'reviewer', 'admin'] as const;
 export type MemberRole = (typeof MEMBER_ROLES)[number];
 

@@ -8,7 +8,7 @@
  * real service functions the routes call — `storeUpload` (format check, full read with
  * `readWorkbook`, SHA-256, insert of the original and its audit event), `importUpload` (mapping
  * with `seriesFromGrid`, canonical hash, insert of the dataset and its audit event) and, when
- * `server/services/analysis-runs.ts` exports `runAnalysis`, the analysis run and its record.
+ * `server/features/analysis/analysis-runs.ts` exports `runAnalysis`, the analysis run and its record.
  * Fresh processes keep one repetition's garbage from inflating the next one's memory figure.
  * Without DATABASE_URL only reading and mapping are timed and the database part is skipped.
  *
@@ -26,13 +26,13 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { resourceUsage } from 'node:process';
 import ExcelJS from 'exceljs';
-import type { SessionUser } from '../../server/auth/roles.ts';
-import { openDatabase } from '../../server/db/client.ts';
-import { applyMigrations } from '../../server/db/migrate.ts';
-import { memberships, organisations, studies, users } from '../../server/db/schema/index.ts';
-import { readWorkbook } from '../../server/intake/read-workbook.ts';
-import { importUpload } from '../../server/services/datasets.ts';
-import { storeUpload } from '../../server/services/uploads.ts';
+import { importUpload } from '../../server/features/intake/datasets.ts';
+import { readWorkbook } from '../../server/features/intake/readers/read-workbook.ts';
+import { storeUpload } from '../../server/features/intake/uploads.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { openDatabase } from '../../server/platform/db/client.ts';
+import { applyMigrations } from '../../server/platform/db/migrate.ts';
+import { memberships, organisations, studies, users } from '../../server/platform/db/schema/index.ts';
 import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
 import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
 
@@ -171,7 +171,9 @@ async function pipeline(
         createdBy: user!.id,
       })
       .returning();
-    const analysisModule = (await import('../../server/services/analysis-runs.ts').catch(() => null)) as {
+    const analysisModule = (await import('../../server/features/analysis/analysis-runs.ts').catch(
+      () => null,
+    )) as {
       runAnalysis?: (db: unknown, input: unknown) => Promise<{ runId: number }>;
     } | null;
     const runAnalysis = analysisModule?.runAnalysis;
@@ -295,7 +297,7 @@ try {
     if (analysed) console.log(`run and store analysis:                   median ${phase('analyse')}`);
     else
       console.log(
-        'server/services/analysis-runs.ts exports no runAnalysis: timed upload → stored dataset only.',
+        'server/features/analysis/analysis-runs.ts exports no runAnalysis: timed upload → stored dataset only.',
       );
     const total = median(runs.map((m) => m.total));
     const verdict = total < TARGET_SECONDS ? 'PASS' : 'FAIL';

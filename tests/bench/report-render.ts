@@ -9,11 +9,15 @@
  * Exits 1 when a target is missed. Usage: `npx tsx tests/bench/report-render.ts [runs]`.
  */
 import { performance } from 'node:perf_hooks';
-import { BrowserPool } from '../../server/pdf/browser-pool.ts';
-import { footerTemplate, headerTemplate, PAGE_MARGINS } from '../../server/pdf/running-header.ts';
-import { reportFixture } from '../../server/reports/render-fixture.ts';
-import { renderReportPdf } from '../../server/reports/render-report.ts';
-import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
+import {
+  footerTemplate,
+  headerTemplate,
+  PAGE_MARGINS,
+} from '../../server/features/reports/pdf/running-header.ts';
+import { reportFixture } from '../../server/features/reports/render/render-fixture.ts';
+import { renderReportPdf } from '../../server/features/reports/render/render-report.ts';
+import { loadDefaultTemplate } from '../../server/features/reports/render/template-default.ts';
 
 const RUNS = Number(process.argv[2] ?? 9);
 const WARM_UPS = 2;

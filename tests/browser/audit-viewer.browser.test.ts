@@ -2,8 +2,8 @@ import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { appendAuditEvent } from '../../server/audit/audit-trail.ts';
-import { organisations } from '../../server/db/schema/index.ts';
+import { appendAuditEvent } from '../../server/platform/audit/audit-trail.ts';
+import { organisations } from '../../server/platform/db/schema/index.ts';
 import { launchChromium, SCREENSHOT_DIR, serve } from '../support/browser.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
 

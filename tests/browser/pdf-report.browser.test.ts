@@ -3,11 +3,14 @@ import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSyn
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BrowserPool } from '../../server/pdf/browser-pool.ts';
-import { reportFixture } from '../../server/reports/render-fixture.ts';
-import { renderReportPdf } from '../../server/reports/render-report.ts';
-import { REPORT_CAUTION, SIGNATURES_PLACEHOLDER } from '../../server/reports/report-context.ts';
-import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
+import { reportFixture } from '../../server/features/reports/render/render-fixture.ts';
+import { renderReportPdf } from '../../server/features/reports/render/render-report.ts';
+import {
+  REPORT_CAUTION,
+  SIGNATURES_PLACEHOLDER,
+} from '../../server/features/reports/render/report-context.ts';
+import { loadDefaultTemplate } from '../../server/features/reports/render/template-default.ts';
 import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { SCREENSHOT_DIR } from '../support/browser.ts';
 

@@ -1,18 +1,23 @@
 import { rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BrowserPool } from '../../server/pdf/browser-pool.ts';
-import { reportFixture } from '../../server/reports/render-fixture.ts';
-import { renderReportPdf } from '../../server/reports/render-report.ts';
-import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
+import { reportFixture } from '../../server/features/reports/render/render-fixture.ts';
+import { renderReportPdf } from '../../server/features/reports/render/render-report.ts';
+import { loadDefaultTemplate } from '../../server/features/reports/render/template-default.ts';
 import {
   loadSigningIdentity,
   type SigningIdentity,
-} from '../../server/signing/local-certificate-authority.ts';
-import { nssTrustStore } from '../../server/signing/nss-trust-store.ts';
-import { sealPdf } from '../../server/signing/seal-pdf.ts';
-import { flipByte, lastContents, scratchDir, tool } from '../../server/signing/signing-test-support.ts';
-import { verifyPdfSeal } from '../../server/signing/verify-pdf.ts';
+} from '../../server/features/signing/local-certificate-authority.ts';
+import { nssTrustStore } from '../../server/features/signing/nss-trust-store.ts';
+import { sealPdf } from '../../server/features/signing/seal-pdf.ts';
+import {
+  flipByte,
+  lastContents,
+  scratchDir,
+  tool,
+} from '../../server/features/signing/signing-test-support.ts';
+import { verifyPdfSeal } from '../../server/features/signing/verify-pdf.ts';
 
 /**
  * The default report printed by Chromium (the render pipeline's own printer) and sealed with a

@@ -5,9 +5,12 @@ import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BrowserPool } from '../../server/pdf/browser-pool.ts';
-import { type PrintPdfResult, printPdf } from '../../server/pdf/print-pdf.ts';
-import { compileReportTemplate, TemplateError } from '../../server/reports/template-engine.ts';
+import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
+import { type PrintPdfResult, printPdf } from '../../server/features/reports/pdf/print-pdf.ts';
+import {
+  compileReportTemplate,
+  TemplateError,
+} from '../../server/features/reports/render/template-engine.ts';
 
 /**
  * A hostile template, printed through the real pipeline: a script that would change the visible

@@ -2,7 +2,7 @@ import { parse } from 'csv-parse/sync';
 import ExcelJS from 'exceljs';
 import type { Response } from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createDemoDataset } from '../../server/db/demo-study.ts';
+import { createDemoDataset } from '../../server/demo/demo-study.ts';
 import { formatSignificant } from '../../shared/figures/significant-figures.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 

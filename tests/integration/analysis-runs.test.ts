@@ -1,9 +1,9 @@
 import { createHash } from 'node:crypto';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { canonicalJson } from '../../server/audit/canonical-json.ts';
-import { createDemoDataset } from '../../server/db/demo-study.ts';
-import { analysisRuns, auditEvents, datasets } from '../../server/db/schema/index.ts';
+import { createDemoDataset } from '../../server/demo/demo-study.ts';
+import { canonicalJson } from '../../server/platform/audit/canonical-json.ts';
+import { analysisRuns, auditEvents, datasets } from '../../server/platform/db/schema/index.ts';
 import type { StoredAnalysisResult } from '../../shared/figures/stored-result.ts';
 import { ENGINE_VERSION } from '../../shared/kinetics/version.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { appendAuditEvent, verifyAuditChain } from '../../server/audit/audit-trail.ts';
+import { appendAuditEvent, verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;

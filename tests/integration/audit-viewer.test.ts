@@ -1,11 +1,11 @@
 import { parse } from 'csv-parse/sync';
 import { asc, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEventHash } from '../../server/audit/audit-hash.ts';
-import { appendAuditEvent, verifyAuditChain } from '../../server/audit/audit-trail.ts';
-import type { SessionUser } from '../../server/auth/roles.ts';
-import { auditEvents, organisations } from '../../server/db/schema/index.ts';
-import { checkAuditChain } from '../../server/services/audit-viewer.ts';
+import { checkAuditChain } from '../../server/features/audit-viewer/audit-viewer.ts';
+import { auditEventHash } from '../../server/platform/audit/audit-hash.ts';
+import { appendAuditEvent, verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { auditEvents, organisations } from '../../server/platform/db/schema/index.ts';
 import { routeInventory } from '../support/route-inventory.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 

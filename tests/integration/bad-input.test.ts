@@ -1,7 +1,7 @@
 import express from 'express';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { errorHandler } from '../../server/http/error-handler.ts';
+import { errorHandler } from '../../server/platform/http/error-handler.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;

@@ -3,17 +3,17 @@ import os from 'node:os';
 import { and, desc, eq, sql } from 'drizzle-orm';
 import nodemailer from 'nodemailer';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
-import { appendAuditEvent } from '../../server/audit/audit-trail.ts';
-import { auditEvents, outgoingMail, receivedMail } from '../../server/db/schema/index.ts';
-import { startLocalSmtpServer } from '../../server/mail/local-smtp-server.ts';
-import { mailConfig } from '../../server/mail/mail-config.ts';
+import { appendAuditEvent } from '../../server/platform/audit/audit-trail.ts';
+import { auditEvents, outgoingMail, receivedMail } from '../../server/platform/db/schema/index.ts';
+import { startLocalSmtpServer } from '../../server/platform/mail/local-smtp-server.ts';
+import { mailConfig } from '../../server/platform/mail/mail-config.ts';
 import {
   commitThenMail,
   configureMailTransport,
   type MailMessage,
   sendMail,
-} from '../../server/mail/mail-transport.ts';
-import { reviewRequestedMail } from '../../server/mail/messages.ts';
+} from '../../server/platform/mail/mail-transport.ts';
+import { reviewRequestedMail } from '../../server/platform/mail/messages.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 

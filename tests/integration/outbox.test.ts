@@ -1,10 +1,10 @@
 import { count, eq, isNull, or } from 'drizzle-orm';
 import type request from 'supertest';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { receivedMail } from '../../server/db/schema/index.ts';
-import { mailConfig } from '../../server/mail/mail-config.ts';
-import { configureMailTransport, sendMail } from '../../server/mail/mail-transport.ts';
-import { OUTBOX_PAGE_SIZE } from '../../server/services/outbox.ts';
+import { OUTBOX_PAGE_SIZE } from '../../server/features/outbox/outbox.ts';
+import { receivedMail } from '../../server/platform/db/schema/index.ts';
+import { mailConfig } from '../../server/platform/mail/mail-config.ts';
+import { configureMailTransport, sendMail } from '../../server/platform/mail/mail-transport.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
 

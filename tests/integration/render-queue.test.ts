@@ -3,19 +3,22 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SessionUser } from '../../server/auth/roles.ts';
-import { auditEvents, reportVersions } from '../../server/db/schema/index.ts';
-import { parseRenderConfig } from '../../server/jobs/render-config.ts';
+import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import {
   openRenderQueue,
   RENDER_DEAD_LETTER_QUEUE,
   RENDER_QUEUE,
   type RenderQueue,
-} from '../../server/jobs/render-queue.ts';
-import { failAbandonedVersion, renderReportVersion } from '../../server/jobs/render-report-job.ts';
-import { RenderFailure } from '../../server/jobs/report-renderer.ts';
-import { reportStorage } from '../../server/services/report-storage.ts';
-import { createReport } from '../../server/services/reports.ts';
+} from '../../server/features/reports/queue/render-queue.ts';
+import {
+  failAbandonedVersion,
+  renderReportVersion,
+} from '../../server/features/reports/queue/render-report-job.ts';
+import { RenderFailure } from '../../server/features/reports/queue/report-renderer.ts';
+import { reportStorage } from '../../server/features/reports/report-storage.ts';
+import { createReport } from '../../server/features/reports/reports.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { auditEvents, reportVersions } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

@@ -1,10 +1,10 @@
-import type { Database } from '../../server/db/client.ts';
-import { createDemoDataset } from '../../server/db/demo-study.ts';
-import { runAnalysis } from '../../server/services/analysis-runs.ts';
+import { createDemoDataset } from '../../server/demo/demo-study.ts';
+import { runAnalysis } from '../../server/features/analysis/analysis-runs.ts';
+import type { Database } from '../../server/platform/db/client.ts';
 
 /**
  * An analysis run to make reports from, built the way the product builds one: the invented demo
- * study (fictional "Quillatrine 40 mg", server/db/demo-study.ts) with its workbook stored as an
+ * study (fictional "Quillatrine 40 mg", server/demo/demo-study.ts) with its workbook stored as an
  * upload and imported as a dataset, then a run of the real engine through `runAnalysis`.
  */
 export async function makeAnalysisRun(

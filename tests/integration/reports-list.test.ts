@@ -1,10 +1,10 @@
 import { inArray, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SessionUser } from '../../server/auth/roles.ts';
-import { reportVersions } from '../../server/db/schema/index.ts';
-import { parseRenderConfig } from '../../server/jobs/render-config.ts';
-import { openRenderQueue, type RenderQueue } from '../../server/jobs/render-queue.ts';
-import { createReport, createReportVersion } from '../../server/services/reports.ts';
+import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
+import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
+import { createReport, createReportVersion } from '../../server/features/reports/reports.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { reportVersions } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

@@ -1,15 +1,19 @@
 import { createHash } from 'node:crypto';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, reportTemplates, reportTemplateVersions } from '../../server/db/schema/index.ts';
-import { HttpError } from '../../server/http/http-error.ts';
-import { loadDefaultTemplate } from '../../server/reports/template-default.ts';
+import { loadDefaultTemplate } from '../../server/features/reports/render/template-default.ts';
 import {
   createTemplateVersion,
   publishTemplateVersion,
   templateSourceSha256,
   templateVersionForNewReports,
-} from '../../server/services/report-templates.ts';
+} from '../../server/features/reports/report-templates.ts';
+import {
+  auditEvents,
+  reportTemplates,
+  reportTemplateVersions,
+} from '../../server/platform/db/schema/index.ts';
+import { HttpError } from '../../server/platform/http/http-error.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 
 /** Template storage: the shipped default on first use, immutable numbered versions, publishing. */

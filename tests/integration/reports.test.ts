@@ -4,13 +4,17 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, reportTemplateVersions, reportVersions } from '../../server/db/schema/index.ts';
-import { parseRenderConfig } from '../../server/jobs/render-config.ts';
-import { createRenderPipeline } from '../../server/jobs/render-pipeline.ts';
-import { openRenderQueue, type RenderQueue } from '../../server/jobs/render-queue.ts';
-import { renderReportVersion, sweepIncoming } from '../../server/jobs/render-report-job.ts';
-import { type RenderWorker, startRenderWorker } from '../../server/jobs/render-worker.ts';
-import { reportStorage, sha256Hex } from '../../server/services/report-storage.ts';
+import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
+import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
+import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
+import { renderReportVersion, sweepIncoming } from '../../server/features/reports/queue/render-report-job.ts';
+import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
+import { reportStorage, sha256Hex } from '../../server/features/reports/report-storage.ts';
+import {
+  auditEvents,
+  reportTemplateVersions,
+  reportVersions,
+} from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
@@ -288,7 +292,7 @@ describe('creating and rendering a report', () => {
       .from(reportTemplateVersions)
       .where(eq(reportTemplateVersions.id, (await versionRow(reportId, 1)).templateVersionId));
     const { createTemplateVersion, publishTemplateVersion } = await import(
-      '../../server/services/report-templates.ts'
+      '../../server/features/reports/report-templates.ts'
     );
     const actor = { userId: world.users.analyst!.id, label: 'test' };
     const broken = await createTemplateVersion(world.database.db, {
@@ -332,7 +336,7 @@ describe('creating and rendering a report', () => {
 
 describe('report numbers', () => {
   it('are allocated in the transaction: concurrent reports get distinct, consecutive numbers', async () => {
-    const { createReport } = await import('../../server/services/reports.ts');
+    const { createReport } = await import('../../server/features/reports/reports.ts');
     const me = (await analyst.get('/api/me')).body;
     const numbers = await Promise.all(
       Array.from({ length: 5 }, () => createReport(world.database.db, noJobs(), me, runId, {}, {})),

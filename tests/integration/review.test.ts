@@ -5,22 +5,22 @@ import { parse } from 'csv-parse/sync';
 import { and, eq, sql } from 'drizzle-orm';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { verifyAuditChain } from '../../server/audit/audit-trail.ts';
-import type { SessionUser } from '../../server/auth/roles.ts';
+import { checkAuditChain } from '../../server/features/audit-viewer/audit-viewer.ts';
+import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
+import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
+import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
+import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
+import { reportStorage } from '../../server/features/reports/report-storage.ts';
+import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
+import { verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
 import {
   auditEvents,
   reportReviews,
   reportVersions,
   reviewAssignments,
-} from '../../server/db/schema/index.ts';
-import { parseRenderConfig } from '../../server/jobs/render-config.ts';
-import { createRenderPipeline } from '../../server/jobs/render-pipeline.ts';
-import { openRenderQueue } from '../../server/jobs/render-queue.ts';
-import { type RenderWorker, startRenderWorker } from '../../server/jobs/render-worker.ts';
-import { mailConfig } from '../../server/mail/mail-config.ts';
-import { checkAuditChain } from '../../server/services/audit-viewer.ts';
-import { reportStorage } from '../../server/services/report-storage.ts';
-import { closeSigningBrowsers } from '../../server/services/signed-output.ts';
+} from '../../server/platform/db/schema/index.ts';
+import { mailConfig } from '../../server/platform/mail/mail-config.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';

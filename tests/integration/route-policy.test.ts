@@ -1,6 +1,6 @@
 import express from 'express';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { requireRole } from '../../server/auth/route-policy.ts';
+import { requireRole } from '../../server/platform/auth/route-policy.ts';
 import { routeInventory } from '../support/route-inventory.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 

@@ -1,7 +1,7 @@
 import { and, desc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, organisationSettings, organisations } from '../../server/db/schema/index.ts';
-import { loadOrganisationSettings } from '../../server/services/organisation-settings.ts';
+import { loadOrganisationSettings } from '../../server/features/settings/organisation-settings.ts';
+import { auditEvents, organisationSettings, organisations } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

@@ -1,7 +1,7 @@
 import { and, desc, eq, inArray } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, users } from '../../server/db/schema/index.ts';
+import { auditEvents, users } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, csrfFrom, sessionCookie, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;

@@ -1,6 +1,6 @@
 import { and, asc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, studies } from '../../server/db/schema/index.ts';
+import { auditEvents, studies } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;

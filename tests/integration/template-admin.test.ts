@@ -1,17 +1,17 @@
 import { createHash } from 'node:crypto';
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { SessionUser } from '../../server/auth/roles.ts';
-import { DEMO_PRODUCT } from '../../server/db/demo-study.ts';
+import { DEMO_PRODUCT } from '../../server/demo/demo-study.ts';
+import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
+import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
+import { createReport } from '../../server/features/reports/reports.ts';
+import type { SessionUser } from '../../server/platform/auth/roles.ts';
 import {
   auditEvents,
   reportTemplates,
   reportTemplateVersions,
   reportVersions,
-} from '../../server/db/schema/index.ts';
-import { parseRenderConfig } from '../../server/jobs/render-config.ts';
-import { openRenderQueue, type RenderQueue } from '../../server/jobs/render-queue.ts';
-import { createReport } from '../../server/services/reports.ts';
+} from '../../server/platform/db/schema/index.ts';
 import type { TemplateSourceInput } from '../../shared/api/templates.ts';
 import { routeInventory } from '../support/route-inventory.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';

@@ -3,7 +3,7 @@ import { and, eq } from 'drizzle-orm';
 import ExcelJS from 'exceljs';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEvents, studies, uploads } from '../../server/db/schema/index.ts';
+import { auditEvents, studies, uploads } from '../../server/platform/db/schema/index.ts';
 import { UPLOAD_SIZE_LIMIT_BYTES } from '../../shared/api/uploads.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 

@@ -1,8 +1,8 @@
 import { and, desc, eq } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { hashPassword } from '../../server/auth/passwords.ts';
-import { auditEvents, memberships, users } from '../../server/db/schema/index.ts';
+import { hashPassword } from '../../server/platform/auth/passwords.ts';
+import { auditEvents, memberships, users } from '../../server/platform/db/schema/index.ts';
 import { routeInventory } from '../support/route-inventory.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';

@@ -1,4 +1,4 @@
-import { applyMigrations } from '../../server/db/migrate.ts';
+import { applyMigrations } from '../../server/platform/db/migrate.ts';
 
 /**
  * Runs once before the integration and browser projects: the throwaway database that

@@ -1,5 +1,5 @@
 import type { Express } from 'express';
-import { POLICY_MARK, type RoutePolicy } from '../../server/auth/route-policy.ts';
+import { POLICY_MARK, type RoutePolicy } from '../../server/platform/auth/route-policy.ts';
 
 interface Layer {
   route?: { path: string | string[]; methods: Record<string, boolean>; stack: { handle: unknown }[] };

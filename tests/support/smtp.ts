@@ -1,9 +1,9 @@
 import { and, asc, desc, eq, gt, sql } from 'drizzle-orm';
-import type { Database } from '../../server/db/client.ts';
-import { receivedMail } from '../../server/db/schema/index.ts';
-import { type LocalSmtpServer, startLocalSmtpServer } from '../../server/mail/local-smtp-server.ts';
-import { mailConfig } from '../../server/mail/mail-config.ts';
-import { closeMailTransport, configureMailTransport } from '../../server/mail/mail-transport.ts';
+import type { Database } from '../../server/platform/db/client.ts';
+import { receivedMail } from '../../server/platform/db/schema/index.ts';
+import { type LocalSmtpServer, startLocalSmtpServer } from '../../server/platform/mail/local-smtp-server.ts';
+import { mailConfig } from '../../server/platform/mail/mail-config.ts';
+import { closeMailTransport, configureMailTransport } from '../../server/platform/mail/mail-transport.ts';
 
 export type ReceivedMail = typeof receivedMail.$inferSelect;
 

@@ -2,11 +2,11 @@ import { randomBytes } from 'node:crypto';
 import type { Express } from 'express';
 import request from 'supertest';
 import { createApp } from '../../server/app.ts';
-import { hashPassword } from '../../server/auth/passwords.ts';
-import type { Role } from '../../server/auth/roles.ts';
-import { type DatabaseHandle, openDatabase } from '../../server/db/client.ts';
-import { memberships, organisations, users } from '../../server/db/schema/index.ts';
-import type { AppOptions } from '../../server/services/app-services.ts';
+import type { AppOptions } from '../../server/platform/app-services.ts';
+import { hashPassword } from '../../server/platform/auth/passwords.ts';
+import type { Role } from '../../server/platform/auth/roles.ts';
+import { type DatabaseHandle, openDatabase } from '../../server/platform/db/client.ts';
+import { memberships, organisations, users } from '../../server/platform/db/schema/index.ts';
 
 export interface TestUser {
   id: number;

@@ -1,0 +1,283 @@
+import { and, eq } from 'drizzle-orm';
+import {
+  type AnalysisOptions,
+  analysisOptionsSchema,
+  type ExcludePointRequest,
+  type Exclusion,
+} from '../../../shared/api/analyses.ts';
+import { confidenceBands, type StoredAnalysisResult } from '../../../shared/figures/stored-result.ts';
+import { analyseDataset, type DatasetOptions } from '../../../shared/kinetics/analyse-dataset.ts';
+import { KineticsError } from '../../../shared/kinetics/numeric/kinetics-error.ts';
+import type { Series } from '../../../shared/kinetics/types.ts';
+import { ENGINE_VERSION } from '../../../shared/kinetics/version.ts';
+import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
+import type { Executor } from '../../platform/db/client.ts';
+import { analysisRuns, datasets, studies, users } from '../../platform/db/schema/index.ts';
+import { HttpError } from '../../platform/http/http-error.ts';
+import { applyExclusions, type ResolvedExclusion } from './analysis-exclusions.ts';
+
+/** Who asked: attributable to a person, or to the system for the demo seed. */
+export interface AnalysisActor {
+  userId: number;
+  label: string;
+}
+
+export interface RunAnalysisInput {
+  organisationId: number;
+  datasetId: number;
+  options?: Partial<AnalysisOptions>;
+  exclusions?: Exclusion[];
+  supersedesRunId?: number;
+  actor: AnalysisActor;
+  /** Audit action; a run made to exclude a point is recorded as such by `excludePoint`. */
+  auditAction?: string;
+  auditContext?: Record<string, unknown>;
+}
+
+type Study = typeof studies.$inferSelect;
+
+/** The engine options of a run: the analyst's choices plus what the study fixes. */
+export function engineOptions(options: AnalysisOptions, study: Study): DatasetOptions {
+  return {
+    confidenceLevel: options.confidenceLevel,
+    errorModel: options.errorModel,
+    ...(options.order === undefined ? {} : { order: options.order }),
+    ...(study.lowerLimit === null ? {} : { lowerLimit: study.lowerLimit }),
+    ...(study.upperLimit === null ? {} : { upperLimit: study.upperLimit }),
+    ...(study.storageTemperatureC === null ? {} : { storageTemperatureC: study.storageTemperatureC }),
+    direction: study.direction,
+  };
+}
+
+/**
+ * Runs the kinetics engine on a stored dataset and records the run, immutable, with everything
+ * needed to trace it: dataset id and SHA-256, options (the analyst's and the study's), resolved
+ * exclusions with reasons, engine version, the full result and the method statement — and an audit
+ * event, all in one transaction. The engine runs before the transaction opens, so a slow analysis
+ * holds no locks; the run row and its audit event commit together or not at all.
+ *
+ * Throws HttpError 404 (dataset not in the organisation), 400 (exclusions that name no point,
+ * engine option errors), 409 (superseding a run that a newer run already supersedes).
+ */
+export async function runAnalysis(
+  db: Executor,
+  input: RunAnalysisInput,
+): Promise<{ runId: number; supersedesRunId: number | null }> {
+  const options = analysisOptionsSchema.parse(input.options ?? {});
+  const [found] = await db
+    .select({ dataset: datasets, study: studies })
+    .from(datasets)
+    .innerJoin(studies, eq(studies.id, datasets.studyId))
+    .where(and(eq(datasets.id, input.datasetId), eq(datasets.organisationId, input.organisationId)));
+  if (!found) throw new HttpError(404, `There is no dataset ${input.datasetId} in your organisation.`);
+  const { dataset, study } = found;
+  const { series, resolved } = applyExclusions(dataset.series, input.exclusions ?? []);
+  const settings = engineOptions(options, study);
+  let result: StoredAnalysisResult;
+  try {
+    const analysis = analyseDataset(series, settings);
+    result = { analysis, confidenceBands: confidenceBands(analysis, series, settings) };
+  } catch (error) {
+    if (error instanceof KineticsError)
+      throw new HttpError(400, error.message, [{ field: 'options', message: error.message }]);
+    throw error;
+  }
+  const storedOptions = { analyst: options, engine: settings };
+  return db.transaction(async (tx) => {
+    if (input.supersedesRunId !== undefined)
+      await assertLatest(tx, input.organisationId, input.supersedesRunId);
+    const [run] = await tx
+      .insert(analysisRuns)
+      .values({
+        organisationId: input.organisationId,
+        studyId: study.id,
+        datasetId: dataset.id,
+        datasetSha256: dataset.sha256,
+        options: storedOptions,
+        exclusions: resolved,
+        engineVersion: ENGINE_VERSION,
+        result,
+        methodStatement: result.analysis.methodStatement.text,
+        supersedesRunId: input.supersedesRunId ?? null,
+        runBy: input.actor.userId,
+      })
+      .returning({ id: analysisRuns.id });
+    await appendAuditEvent(tx, {
+      organisationId: input.organisationId,
+      actorUserId: input.actor.userId,
+      actorLabel: input.actor.label,
+      action: input.auditAction ?? 'analysis.run',
+      recordType: 'analysis_run',
+      recordId: run!.id,
+      after: {
+        studyId: study.id,
+        datasetId: dataset.id,
+        datasetSha256: dataset.sha256,
+        engineVersion: ENGINE_VERSION,
+        options: storedOptions,
+        exclusions: resolved,
+        supersedesRunId: input.supersedesRunId ?? null,
+      },
+      context: input.auditContext ?? null,
+    });
+    return { runId: run!.id, supersedesRunId: input.supersedesRunId ?? null };
+  });
+}
+
+/** A run may be superseded once; a second exclusion builds on the newest run. */
+async function assertLatest(tx: Executor, organisationId: number, runId: number): Promise<void> {
+  const [earlier] = await tx
+    .select({ id: analysisRuns.id })
+    .from(analysisRuns)
+    .where(and(eq(analysisRuns.id, runId), eq(analysisRuns.organisationId, organisationId)))
+    .for('update');
+  if (!earlier) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
+  const newer = await supersedingRun(tx, runId);
+  if (newer !== null) {
+    throw new HttpError(
+      409,
+      `Analysis ${runId} is already superseded by analysis ${newer}; exclude points from that one.`,
+      {
+        supersededBy: newer,
+      },
+    );
+  }
+}
+
+/** Excludes one more point: a new run with the earlier run's options and exclusions plus this one. */
+export async function excludePoint(
+  db: Executor,
+  input: { organisationId: number; runId: number; request: ExcludePointRequest; actor: AnalysisActor },
+): Promise<{ runId: number; supersedesRunId: number | null }> {
+  const earlier = await getAnalysisRun(db, input.organisationId, input.runId);
+  const previous = earlier.exclusions.map(({ seriesId, observationIndex, reason }) => ({
+    seriesId,
+    observationIndex,
+    reason,
+  }));
+  const point = {
+    seriesId: input.request.seriesId,
+    observationIndex: input.request.observationIndex,
+    reason: input.request.reason,
+  };
+  const series = earlier.series.find((candidate) => candidate.id === point.seriesId);
+  const observation = series?.observations[point.observationIndex];
+  if (!series || !observation) {
+    const field = series ? 'observationIndex' : 'seriesId';
+    throw new HttpError(400, 'Choose a point of this analysis to exclude.', [
+      {
+        field,
+        message: series
+          ? `Series ${series.id} has no point ${point.observationIndex + 1}.`
+          : `There is no series "${point.seriesId}".`,
+      },
+    ]);
+  }
+  return runAnalysis(db, {
+    organisationId: input.organisationId,
+    datasetId: earlier.datasetId,
+    options: earlier.options.analyst,
+    exclusions: [...previous, point],
+    supersedesRunId: earlier.id,
+    actor: input.actor,
+    auditAction: 'analysis.point-excluded',
+    auditContext: {
+      supersedesRunId: earlier.id,
+      point: {
+        seriesId: series.id,
+        observationIndex: point.observationIndex,
+        time: observation.time,
+        value: observation.value,
+        cell: observation.source?.cell ?? null,
+      },
+      reason: point.reason,
+    },
+  });
+}
+
+export interface AnalysisRunRecord {
+  id: number;
+  organisationId: number;
+  studyId: number;
+  studyTitle: string;
+  study: Study;
+  datasetId: number;
+  datasetSha256: string;
+  options: { analyst: AnalysisOptions; engine: DatasetOptions };
+  exclusions: ResolvedExclusion[];
+  engineVersion: string;
+  result: StoredAnalysisResult;
+  methodStatement: string;
+  supersedesRunId: number | null;
+  supersededByRunId: number | null;
+  runBy: { id: number; fullName: string };
+  runAt: Date;
+  /** The dataset's series with this run's exclusions marked, as the engine saw them. */
+  series: Series[];
+}
+
+/** One run, readable by every member of its organisation; 404 for any other. */
+export async function getAnalysisRun(
+  db: Executor,
+  organisationId: number,
+  runId: number,
+): Promise<AnalysisRunRecord> {
+  const [row] = await db
+    .select({
+      run: analysisRuns,
+      study: studies,
+      dataset: datasets,
+      runBy: { id: users.id, fullName: users.fullName },
+    })
+    .from(analysisRuns)
+    .innerJoin(studies, eq(studies.id, analysisRuns.studyId))
+    .innerJoin(datasets, eq(datasets.id, analysisRuns.datasetId))
+    .innerJoin(users, eq(users.id, analysisRuns.runBy))
+    .where(and(eq(analysisRuns.id, runId), eq(analysisRuns.organisationId, organisationId)));
+  if (!row) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
+  const exclusions = row.run.exclusions as ResolvedExclusion[];
+  const { series } = applyExclusions(row.dataset.series, exclusions);
+  return {
+    id: row.run.id,
+    organisationId: row.run.organisationId,
+    studyId: row.study.id,
+    studyTitle: row.study.title,
+    study: row.study,
+    datasetId: row.run.datasetId,
+    datasetSha256: row.run.datasetSha256,
+    options: row.run.options as AnalysisRunRecord['options'],
+    exclusions,
+    engineVersion: row.run.engineVersion,
+    result: row.run.result as StoredAnalysisResult,
+    methodStatement: row.run.methodStatement,
+    supersedesRunId: row.run.supersedesRunId,
+    supersededByRunId: await supersedingRun(db, row.run.id),
+    runBy: row.runBy,
+    runAt: row.run.runAt,
+    series,
+  };
+}
+
+async function supersedingRun(db: Executor, runId: number): Promise<number | null> {
+  const [newer] = await db
+    .select({ id: analysisRuns.id })
+    .from(analysisRuns)
+    .where(eq(analysisRuns.supersedesRunId, runId))
+    .limit(1);
+  return newer?.id ?? null;
+}
+
+/** Runs of a study, newest first, for the study page and the demo. */
+export async function listStudyRuns(db: Executor, organisationId: number, studyId: number) {
+  return db
+    .select({
+      id: analysisRuns.id,
+      datasetId: analysisRuns.datasetId,
+      engineVersion: analysisRuns.engineVersion,
+      supersedesRunId: analysisRuns.supersedesRunId,
+      runAt: analysisRuns.runAt,
+    })
+    .from(analysisRuns)
+    .where(and(eq(analysisRuns.organisationId, organisationId), eq(analysisRuns.studyId, studyId)))
+    .orderBy(analysisRuns.id);
+}

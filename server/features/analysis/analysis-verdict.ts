@@ -1,0 +1,109 @@
+import { MODEL_NAMES } from '../../../shared/figures/results-table.ts';
+import { formatSignificant } from '../../../shared/figures/significant-figures.ts';
+import type { DatasetAnalysis } from '../../../shared/kinetics/analyse-dataset.ts';
+import type { IntegerOrder } from '../../../shared/kinetics/types.ts';
+import type { NumberCell } from './number-cell.ts';
+
+/**
+ * The words of the analysis page: the verdict summary at the top, warnings grouped by kind, and
+ * engine messages with their long decimals rounded for reading.
+ */
+
+/** Long decimals inside engine messages ("27.949325675939914") written with 4 significant figures. */
+export function readableNumbers(text: string): string {
+  return text.replace(/-?\d+\.\d{5,}(?:e[-+]?\d+)?/gi, (number) => formatSignificant(Number(number), 4));
+}
+
+const WARNING_TITLES: Record<string, string> = {
+  'low-fraction-reacted': 'Little of the initial value has reacted',
+  'order-not-identified': 'Reaction order not identified',
+  'analyst-order-disfavoured': 'The data disfavour the analyst’s order',
+  'possible-outliers': 'Possible outliers',
+  'systematic-misfit': 'Systematic misfit',
+  'not-converged': 'A fit did not converge',
+  extrapolation: 'Extrapolation beyond the observed time',
+  'series-not-analysed': 'Series not analysed',
+  'order-disagreement': 'Series disagree on the order',
+  'arrhenius-extrapolation': 'Arrhenius extrapolation',
+  'non-finite-replaced': 'Numbers not estimable',
+};
+
+interface ShelfLifeEntry {
+  condition: string;
+  scale: string;
+  model: string;
+  reason: string;
+  beyondData: boolean;
+  limiting: string | null;
+  accelerated: boolean;
+  cell: NumberCell;
+}
+
+interface ArrheniusEntry {
+  order: string | undefined;
+  rows: { label: string; cell: NumberCell }[];
+}
+
+/** One sentence per headline result: the Q1E shelf life, the Arrhenius result, how the order was chosen. */
+export function verdictSummary(
+  analysis: DatasetAnalysis,
+  shelfLife: readonly ShelfLifeEntry[],
+  arrheniusModel: ArrheniusEntry | null,
+  fixedOrder: IntegerOrder | undefined,
+): string[] {
+  const summary: string[] = [];
+  for (const entry of shelfLife) {
+    if (entry.accelerated || !entry.cell.value) continue;
+    summary.push(
+      `Shelf life at ${entry.condition} (ICH Q1E, ${entry.scale}, ${entry.model}): ${entry.cell.text} ${entry.cell.unit}${entry.limiting ? `, limited by ${entry.limiting}` : ''}${entry.beyondData ? ', beyond the observed data' : ''}.`,
+    );
+  }
+  for (const entry of shelfLife) {
+    if (!entry.accelerated && !entry.cell.value)
+      summary.push(`No Q1E shelf life at ${entry.condition}: ${entry.reason}`);
+  }
+  const ea = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|activation-energy'));
+  const predicted = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|predicted-k'));
+  if (ea?.cell.value) {
+    summary.push(
+      `Arrhenius (${arrheniusModel!.order}): Ea = ${ea.cell.text} ${ea.cell.unit}${ea.cell.hasInterval ? ` (95 % CI ${ea.cell.interval})` : ''}${predicted?.cell.value ? `; ${predicted.label} ${predicted.cell.text} ${predicted.cell.unit}` : ''}.`,
+    );
+  }
+  const analysed = analysis.series.filter((result) => result.analysis);
+  const named = analysed.filter(
+    (result) => result.analysis!.orderSource === 'data' && result.analysis!.selectedOrder !== null,
+  );
+  const fixed = fixedOrder !== undefined;
+  summary.push(
+    fixed
+      ? `Reaction order fixed by the analyst at ${MODEL_NAMES[String(fixedOrder)]} for all ${analysed.length} series; each series’ section says what its data alone show.`
+      : `Reaction order from the data: named for ${named.length} of ${analysed.length} series${named.length < analysed.length ? ' (the others cannot tell the orders apart; see each series)' : ''}.`,
+  );
+  if (analysed.length < analysis.series.length)
+    summary.push(`${analysis.series.length - analysed.length} series could not be analysed; see Warnings.`);
+
+  return summary;
+}
+
+/** Warnings of the dataset and of every series, grouped by kind (collapsed when there are many). */
+export function groupedWarnings(analysis: DatasetAnalysis) {
+  const allWarnings = [
+    ...analysis.warnings.map((warning) => ({
+      where: 'dataset',
+      code: warning.code,
+      message: readableNumbers(warning.message),
+    })),
+    ...analysis.series.flatMap((result) =>
+      (result.analysis?.warnings ?? []).map((warning) => ({
+        where: result.id,
+        code: warning.code,
+        message: readableNumbers(warning.message),
+      })),
+    ),
+  ];
+  const warningGroups = [...new Set(allWarnings.map((warning) => warning.code))].map((code) => {
+    const items = allWarnings.filter((warning) => warning.code === code);
+    return { code, title: WARNING_TITLES[code] ?? code, count: items.length, items, open: items.length <= 3 };
+  });
+  return warningGroups;
+}

@@ -1,0 +1,20 @@
+import { Router } from 'express';
+import type { AppServices } from '../../platform/app-services.ts';
+import { signedIn } from '../../platform/auth/route-policy.ts';
+import { renderPage } from '../../platform/web/render-page.ts';
+import { dashboardPanels } from './dashboard.ts';
+
+export function pageRoutes(_services: AppServices): Router {
+  const router = Router();
+
+  router.get('/', signedIn(), (req, res) => {
+    renderPage(req, res, 'dashboard', { title: 'Dashboard', panels: dashboardPanels(req.user!.roles) });
+  });
+
+  // The client section: React Router takes over below /app.
+  router.get(['/app', '/app/{*rest}'], signedIn(), (req, res) => {
+    renderPage(req, res, 'client-app', { title: 'Rateledger' });
+  });
+
+  return router;
+}

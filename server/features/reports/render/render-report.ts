@@ -1,0 +1,122 @@
+import { performance } from 'node:perf_hooks';
+import type { TopLevelSpec } from 'vega-lite';
+import type { FigureSpec } from '../../../../shared/figures/analysis-figures.ts';
+import { renderSvg } from '../figures/render-svg.ts';
+import type { BrowserPool } from '../pdf/browser-pool.ts';
+import { type PdfPaper, type PrintPdfResult, printPdf } from '../pdf/print-pdf.ts';
+import type { ReportContext } from './report-context.ts';
+import { compileReportTemplate, type ReportTemplateSource } from './template-engine.ts';
+import type { FigureMarkup } from './template-helpers.ts';
+
+/**
+ * The report pipeline, from a built context to a stored-ready PDF: the figures' Vega-Lite specs
+ * (the analysis screen's own, from `shared/figures/analysis-figures.ts`) are drawn to SVG on the
+ * server, the organisation's template is rendered with the context into one self-contained HTML
+ * document (fonts inlined, no external references), and Chromium prints it (`printPdf`).
+ *
+ * The HTML is returned with the PDF because a report version stores both: the exact HTML is
+ * what was printed, and printing it again shows the same page.
+ *
+ * Which figures a report carries: `reportFigures` keeps the dataset figures (Q1E shelf-life
+ * plots, Arrhenius plot) and each series' data with fitted curves; the straight-line and
+ * residual plots stay on the analysis screen and in the export.
+ *
+ * Throws `TemplateError` (template problems with line and column), `FigureRenderError`, and
+ * whatever printing throws (see `printPdf`).
+ *
+ * Example: renderReportPdf(pool, { template: loadDefaultTemplate(), context, figures, paper: 'A4' })
+ * resolves to { html, pdf, pageCount, requests, timings }.
+ */
+
+export interface RenderReportInput {
+  template: ReportTemplateSource;
+  /** Built by `buildReportContext` with the same `figures` (their ids, titles and numbers). */
+  context: ReportContext;
+  figures: readonly Pick<FigureSpec, 'id' | 'title' | 'description' | 'spec'>[];
+  paper: PdfPaper;
+}
+
+export interface RenderTimings {
+  figuresMs: number;
+  templateMs: number;
+  /** Wall time of the whole call minus figures and template: printing, metadata, and waiting for the browser. */
+  printMs: number;
+}
+
+const REPORT_FIGURE_PATTERN = /^(q1e-|arrhenius$|series-\d+-curves$)/;
+
+/** The figures of the default report, dataset figures first. */
+export function reportFigures<T extends Pick<FigureSpec, 'id'>>(figures: readonly T[]): T[] {
+  const chosen = figures.filter((figure) => REPORT_FIGURE_PATTERN.test(figure.id));
+  const datasetFirst = (figure: T) => (figure.id.startsWith('series-') ? 1 : 0);
+  return [...chosen].sort((a, b) => datasetFirst(a) - datasetFirst(b));
+}
+
+/** Draws each figure to SVG, in order, numbered from 1. */
+export async function renderFigureMarkup(
+  figures: RenderReportInput['figures'],
+): Promise<Map<string, FigureMarkup>> {
+  const markup = new Map<string, FigureMarkup>();
+  let number = 0;
+  for (const figure of figures) {
+    number += 1;
+    const svg = await renderSvg(figure.spec as unknown as TopLevelSpec, {
+      idPrefix: `figure-${number}`,
+      title: figure.title,
+      description: figure.description,
+    });
+    markup.set(figure.id, { number, title: figure.title, description: figure.description, svg });
+  }
+  return markup;
+}
+
+/** Renders the report HTML: figures to SVG, then the template. */
+export async function renderReportHtml(
+  input: RenderReportInput,
+): Promise<{ html: string; figuresMs: number; templateMs: number }> {
+  const started = performance.now();
+  const figures = await renderFigureMarkup(input.figures);
+  const drawn = performance.now();
+  const html = compileReportTemplate(input.template).render({
+    context: input.context,
+    figures,
+    paper: input.paper,
+  });
+  return { html, figuresMs: drawn - started, templateMs: performance.now() - drawn };
+}
+
+export async function renderReportPdf(
+  pool: BrowserPool,
+  input: RenderReportInput,
+): Promise<PrintPdfResult & { html: string; timings: RenderTimings }> {
+  const started = performance.now();
+  // The browser page is prepared while the figures are drawn; printing starts when the HTML is ready.
+  const rendering = renderReportHtml(input);
+  const { context } = input;
+  const printed = await printPdf(pool, {
+    html: rendering.then((rendered) => rendered.html),
+    paper: input.paper,
+    header: {
+      reportNumber: context.report.number,
+      version: context.report.version,
+      organisation: context.organisation.name,
+    },
+    metadata: {
+      title: `${context.report.title} (${context.report.number} v${context.report.version})`,
+      author: context.report.author,
+      subject: `${context.study.product}: ${context.study.attribute}, study ${context.study.title}`,
+      keywords: [
+        'Rateledger',
+        'stability',
+        'kinetics',
+        context.report.number,
+        context.study.product,
+        ...context.study.batches,
+      ],
+      createdAt: context.report.createdAt,
+    },
+  });
+  const { html, figuresMs, templateMs } = await rendering;
+  const printMs = performance.now() - started - figuresMs - templateMs;
+  return { ...printed, html, timings: { figuresMs, templateMs, printMs } };
+}

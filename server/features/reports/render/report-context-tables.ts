@@ -1,0 +1,160 @@
+import { MODEL_NAMES, type ResultRow, resultRows } from '../../../../shared/figures/results-table.ts';
+import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
+import type { Series } from '../../../../shared/kinetics/types.ts';
+import { interval, NOT_ESTIMABLE_TEXT, significant } from './template-format.ts';
+import type { ReportTable } from './template-helpers.ts';
+
+/**
+ * The tables of a report, as `ReportTable` objects of pre-formatted text (the `table` helper
+ * escapes and prints them): the results, one per section of `resultRows` — the same rows, with
+ * the same significant figures, as the analysis screen and the exported workbook — and the
+ * measured data of each series with every exclusion and its reason.
+ *
+ * Throws nothing.
+ *
+ * Example: a first-order series with k = 6.213e-4 1/s gives, in the "Rate laws" table, a row
+ * whose Estimate cell is "6.213 × 10⁻⁴ 1/s".
+ */
+
+const where = (row: ResultRow) =>
+  row.seriesId ?? (row.temperatureC === null ? 'All series' : `${row.temperatureC} °C`);
+
+function modelName(row: ResultRow): string {
+  if (row.model === null) return '';
+  return MODEL_NAMES[row.model] ?? row.model;
+}
+
+const intervalLabel = (analysis: DatasetAnalysis) =>
+  `${Math.round(analysis.confidenceLevel * 100)} % interval`;
+
+/** Engine prose quotes some numbers at full double precision; a report shows them at 4 significant figures. */
+const LONG_DECIMAL = /-?\d+\.\d{6,}/g;
+export const tidyNote = (note: string) =>
+  note.replace(LONG_DECIMAL, (match) => significant(Number(match), 4));
+
+/** A table with one row per result row (Q1E, Arrhenius, derived times). */
+function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string): ReportTable {
+  const hasInterval = rows.some((row) => row.lower !== null);
+  return {
+    caption,
+    columns: [
+      { key: 'where', label: 'Series / condition' },
+      { key: 'quantity', label: 'Quantity' },
+      { key: 'estimate', label: 'Estimate', align: 'right' },
+      ...(hasInterval ? [{ key: 'interval', label: intervalLabel(analysis), align: 'right' as const }] : []),
+      { key: 'note', label: 'Note' },
+    ],
+    rows: rows.map((row) => ({
+      where: where(row),
+      quantity: row.label,
+      estimate: significant(row.estimate, row.digits, row.unit),
+      interval:
+        row.lower === null || row.upper === null
+          ? ''
+          : interval([row.lower, row.upper], row.digits, row.unit),
+      note: tidyNote(row.note),
+    })),
+  };
+}
+
+/** One row per series and rate law: k with its interval, C0, AICc and Akaike weight. */
+function modelTable(analysis: DatasetAnalysis, rows: ResultRow[]): ReportTable {
+  const groups = new Map<string, Map<string, ResultRow>>();
+  for (const row of rows) {
+    const key = `${row.seriesId}|${row.model}`;
+    const group = groups.get(key) ?? new Map<string, ResultRow>();
+    group.set(row.quantity, row);
+    groups.set(key, group);
+  }
+  const text = (row: ResultRow | undefined) => (row ? significant(row.estimate, row.digits, row.unit) : '');
+  return {
+    caption: 'Rate-law fits compared (AICc: lower is better; weights sum to 1 per series)',
+    columns: [
+      { key: 'where', label: 'Series' },
+      { key: 'model', label: 'Law' },
+      { key: 'k', label: 'Rate constant k', align: 'right' },
+      { key: 'interval', label: intervalLabel(analysis), align: 'right' },
+      { key: 'aicc', label: 'AICc', align: 'right' },
+      { key: 'weight', label: 'Weight', align: 'right' },
+      { key: 'note', label: 'Note' },
+    ],
+    rows: [...groups.values()].map((group) => {
+      const k = group.get('k') as ResultRow;
+      return {
+        where: where(k),
+        model: modelName(k) + (group.has('n') ? ` (n = ${text(group.get('n'))})` : ''),
+        k: text(k),
+        interval: k.lower === null || k.upper === null ? '' : interval([k.lower, k.upper], k.digits),
+        aicc: text(group.get('aicc')),
+        weight: text(group.get('weight')),
+        note: k.note,
+      };
+    }),
+  };
+}
+
+/** One row per series: R² of the three straight-line plots. */
+function linearisedTable(rows: ResultRow[]): ReportTable {
+  const bySeries = new Map<string, Record<string, string>>();
+  for (const row of rows) {
+    const entry = bySeries.get(where(row)) ?? { where: where(row) };
+    entry[row.model ?? ''] = significant(row.estimate, row.digits);
+    bySeries.set(where(row), entry);
+  }
+  return {
+    caption: 'Straight-line plots: R² against time (for reference only; they do not decide the order)',
+    columns: [
+      { key: 'where', label: 'Series' },
+      { key: 'value', label: 'value', align: 'right' },
+      { key: 'ln(value)', label: 'ln(value)', align: 'right' },
+      { key: '1/value', label: '1/value', align: 'right' },
+    ],
+    rows: [...bySeries.values()],
+  };
+}
+
+/** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
+export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
+  const rows = resultRows(analysis);
+  const of = (section: ResultRow['section']) => rows.filter((row) => row.section === section);
+  const tables: ReportTable[] = [];
+  if (of('shelf-life').length > 0)
+    tables.push(listTable(analysis, of('shelf-life'), 'ICH Q1E shelf life per condition'));
+  if (of('arrhenius').length > 0)
+    tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
+  if (of('derived').length > 0) {
+    tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
+  }
+  if (of('rate-law').length > 0) tables.push(modelTable(analysis, of('rate-law')));
+  if (of('linearised').length > 0) tables.push(linearisedTable(of('linearised')));
+  return tables;
+}
+
+/** The measured points of each series, in time order, marking excluded ones with their reason. */
+export function dataTables(seriesList: readonly Series[]): ReportTable[] {
+  return seriesList.map((series) => {
+    const observations = [...series.observations].sort((a, b) => a.time - b.time);
+    const conditions = [
+      series.batch ? `batch ${series.batch}` : '',
+      series.temperatureC === undefined ? '' : `${series.temperatureC} °C`,
+    ].filter(Boolean);
+    return {
+      caption: `Measured data: ${series.id}${conditions.length > 0 ? ` (${conditions.join(', ')})` : ''}`,
+      columns: [
+        { key: 'time', label: `Time (${series.timeUnit})`, align: 'right' as const },
+        { key: 'value', label: `Value (${series.valueUnit})`, align: 'right' as const },
+        { key: 'source', label: 'Source cell' },
+        { key: 'status', label: 'Used' },
+      ],
+      rows: observations.map((observation) => ({
+        time: String(observation.time),
+        value: String(observation.value),
+        source:
+          observation.source?.cell ??
+          (observation.source?.row === undefined ? '' : `row ${observation.source.row}`),
+        status: observation.excluded ? `Excluded: ${observation.excluded.reason}` : 'yes',
+      })),
+      empty: NOT_ESTIMABLE_TEXT,
+    };
+  });
+}

@@ -1,0 +1,172 @@
+import { Router } from 'express';
+import {
+  type CreateReportResponse,
+  createReportRequestSchema,
+  createReportVersionRequestSchema,
+  reportIdParamSchema,
+  reportListQuerySchema,
+  reportVersionParamSchema,
+  runIdParamSchema,
+} from '../../../shared/api/reports.ts';
+import type { AppServices } from '../../platform/app-services.ts';
+import { requireRole } from '../../platform/auth/route-policy.ts';
+import { HttpError } from '../../platform/http/http-error.ts';
+import { parseRenderConfig } from './queue/render-config.ts';
+import { openRenderQueue } from './queue/render-queue.ts';
+import { getReportDetail, getVersionOutput, listReports, reportFilterOptions } from './report-history.ts';
+import { reportStorage } from './report-storage.ts';
+import { type CreatedReport, createReport, createReportVersion } from './reports.ts';
+
+const READERS = ['analyst', 'reviewer', 'admin'] as const;
+
+/**
+ * The report preview is the stored HTML exactly as printed. It is served with a policy of its own:
+ * no script of any kind, nothing loaded from anywhere but inline `data:` fonts and images, and a
+ * sandbox, so even a template that smuggled markup in could not act in the user's session.
+ */
+const PREVIEW_CSP = [
+  "default-src 'none'",
+  "script-src 'none'",
+  "style-src 'unsafe-inline'",
+  'img-src data:',
+  'font-src data:',
+  "base-uri 'none'",
+  "form-action 'none'",
+  "frame-ancestors 'self'",
+  'sandbox',
+].join('; ');
+
+const auditContext = (ip: string | undefined, userAgent: string | undefined) => ({
+  ip: ip ?? null,
+  userAgent: userAgent ?? null,
+});
+
+const created = (report: CreatedReport): CreateReportResponse => ({
+  reportId: report.reportId,
+  reportNumber: report.reportNumber,
+  versionNumber: report.versionNumber,
+  renderStatus: 'queued',
+});
+
+export function reportRoutes(services: AppServices): Router {
+  const router = Router();
+  const config = parseRenderConfig();
+  // The web process only sends jobs, through the app's own pool and its transactions.
+  const queue = openRenderQueue({ config, pool: services.pool, supervise: false });
+  const storage = reportStorage(config.reportsDir);
+
+  router.post('/api/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
+    const { runId } = runIdParamSchema.parse(req.params);
+    const request = createReportRequestSchema.parse(req.body ?? {});
+    const report = await createReport(
+      services.db,
+      queue,
+      req.user!,
+      runId,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
+    res.status(201).location(`/app/reports/${report.reportId}`).json(created(report));
+  });
+
+  // The "Create report" form on the analysis page (works without JavaScript).
+  router.post('/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
+    const { runId } = runIdParamSchema.parse(req.params);
+    const request = createReportRequestSchema.parse(req.body ?? {});
+    const report = await createReport(
+      services.db,
+      queue,
+      req.user!,
+      runId,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
+    res.redirect(303, `/app/reports/${report.reportId}`);
+  });
+
+  router.post('/api/reports/:id/versions', requireRole('analyst'), async (req, res) => {
+    const { id } = reportIdParamSchema.parse(req.params);
+    const request = createReportVersionRequestSchema.parse(req.body ?? {});
+    const report = await createReportVersion(
+      services.db,
+      queue,
+      req.user!,
+      id,
+      request,
+      auditContext(req.ip, req.get('user-agent')),
+    );
+    res.status(201).json(created(report));
+  });
+
+  router.get('/api/reports', requireRole(...READERS), async (req, res) => {
+    const query = reportListQuerySchema.parse(req.query);
+    res.json(await listReports(services.db, req.user!.organisationId, query));
+  });
+
+  router.get('/api/reports/filter-options', requireRole(...READERS), async (req, res) => {
+    res.json(await reportFilterOptions(services.db, req.user!.organisationId));
+  });
+
+  router.get('/api/reports/:id', requireRole(...READERS), async (req, res) => {
+    const { id } = reportIdParamSchema.parse(req.params);
+    res
+      .set('cache-control', 'no-store')
+      .json(await getReportDetail(services.db, req.user!.organisationId, id));
+  });
+
+  router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), async (req, res) => {
+    const { id, version } = reportVersionParamSchema.parse(req.params);
+    const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
+    if (output.renderStatus !== 'ready' || !output.pdfSha256)
+      throw notReady(output.reportNumber, version, output.renderStatus);
+    const pdf = await storage.readVersionPdf(output.versionId, output.pdfSha256);
+    if (!pdf) {
+      if (await storage.hasPdf(output.pdfSha256)) {
+        console.error(
+          `[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`,
+        );
+        throw new HttpError(
+          500,
+          'The stored PDF does not match its record; it has not been sent. Tell your administrator.',
+        );
+      }
+      throw new HttpError(
+        503,
+        `The PDF of ${output.reportNumber} version ${version} is not in the report store.`,
+      );
+    }
+    res
+      .set({
+        'content-type': 'application/pdf',
+        'content-disposition': `attachment; filename="${output.reportNumber}-v${version}.pdf"`,
+        etag: `"${output.pdfSha256}"`,
+        'cache-control': 'private, max-age=31536000, immutable',
+      })
+      .send(pdf);
+  });
+
+  router.get('/api/reports/:id/versions/:version/html', requireRole(...READERS), async (req, res) => {
+    const { id, version } = reportVersionParamSchema.parse(req.params);
+    const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
+    if (output.renderStatus !== 'ready' || output.html === null)
+      throw notReady(output.reportNumber, version, output.renderStatus);
+    res
+      .set({
+        'content-type': 'text/html; charset=utf-8',
+        'content-security-policy': PREVIEW_CSP,
+        'content-disposition': `inline; filename="${output.reportNumber}-v${version}.html"`,
+        'cache-control': 'private, no-cache',
+      })
+      .send(output.html);
+  });
+
+  return router;
+}
+
+function notReady(reportNumber: string, version: number, status: string) {
+  const what =
+    status === 'failed'
+      ? 'failed to render, so it has no output; render a new version'
+      : `is ${status}; its output is available once it is ready`;
+  return new HttpError(409, `${reportNumber} version ${version} ${what}.`);
+}

@@ -1,0 +1,224 @@
+import { type Request, type Response, Router } from 'express';
+import {
+  returnForReworkSchema,
+  reviewVersionParamSchema,
+  signReportSchema,
+  submitForReviewSchema,
+} from '../../../shared/api/review.ts';
+import type { AppServices } from '../../platform/app-services.ts';
+import { requireRole } from '../../platform/auth/route-policy.ts';
+import { HttpError } from '../../platform/http/http-error.ts';
+import { renderPage } from '../../platform/web/render-page.ts';
+import { parseRenderConfig, reportStorage, sha256Hex } from '../reports/index.ts';
+import { latestSignedOutput } from '../signing/index.ts';
+import { signReportVersion } from './e-signature.ts';
+import {
+  loadReviewVersion,
+  returnedToMe,
+  returnForRework,
+  reviewPageModel,
+  reviewPath,
+  reviewQueue,
+  submitForReview,
+} from './review.ts';
+
+declare module 'express-session' {
+  interface SessionData {
+    /**
+     * Set after the first successful signing of this session: later signings need the password
+     * only (21 CFR 11.200(a)(1)(i)). Signing in again starts a new session without it.
+     */
+    firstSigningDone?: boolean;
+    /** What the last review form did, shown once on the next page (post/redirect/get). */
+    reviewNotice?: string;
+  }
+}
+
+const READERS = ['analyst', 'reviewer', 'admin'] as const;
+
+const auditContext = (req: Request) => ({ ip: req.ip ?? null, userAgent: req.get('user-agent') ?? null });
+
+/** Field errors of a refused form, by field name, for the page to show beside the fields. */
+function fieldErrors(error: HttpError): Record<string, string> {
+  const details = Array.isArray(error.details)
+    ? (error.details as { field?: string; message?: string }[])
+    : [];
+  return Object.fromEntries(details.map((detail) => [detail.field ?? 'form', detail.message ?? '']));
+}
+
+/**
+ * Review and signing, server-rendered: the reviewer's queue, one version's review page with the
+ * submit, return and sign forms, and the signed PDF. A refused form is shown again with its
+ * message and the status it earned (401 wrong password, 403 not allowed, 409 wrong state, 423
+ * locked); nothing typed is lost except the password.
+ */
+export function reviewRoutes(services: AppServices): Router {
+  const router = Router();
+  const storage = reportStorage(parseRenderConfig().reportsDir);
+  const { db } = services;
+
+  async function showPage(
+    req: Request,
+    res: Response,
+    params: { reportId: number; version: number },
+    extra: Record<string, unknown> = {},
+    status = 200,
+  ) {
+    const model = await reviewPageModel(db, req.user!, params.reportId, params.version, req.session);
+    renderPage(
+      req,
+      res,
+      'review-version',
+      { title: `Review ${model.report.number} v${model.version.number}`, ...model, ...extra },
+      status,
+    );
+  }
+
+  /** Runs a form's action; on an HttpError shows the page again with the message and status. */
+  async function formAction(
+    req: Request,
+    res: Response,
+    form: 'submit' | 'return' | 'sign',
+    action: (params: { reportId: number; version: number }) => Promise<string>,
+  ) {
+    const params = reviewVersionParamSchema.parse(req.params);
+    try {
+      req.session.reviewNotice = await action(params);
+      res.redirect(303, reviewPath(params.reportId, params.version));
+    } catch (error) {
+      const known = error instanceof HttpError ? error : null;
+      const zod =
+        (error as { name?: string }).name === 'ZodError'
+          ? (error as { issues: { path: PropertyKey[]; message: string }[] })
+          : null;
+      if (!known && !zod) throw error;
+      const errors = known
+        ? fieldErrors(known)
+        : Object.fromEntries(zod!.issues.map((issue) => [String(issue.path[0] ?? 'form'), issue.message]));
+      const body = (req.body ?? {}) as Record<string, unknown>;
+      await showPage(
+        req,
+        res,
+        params,
+        {
+          formError: { [form]: known ? known.message : 'Some fields are not valid.' },
+          errors: { [form]: errors },
+          typed: {
+            [form]: {
+              note: body.note,
+              comment: body.comment,
+              meaning: body.meaning,
+              identity: body.identity,
+            },
+          },
+        },
+        known?.status ?? 400,
+      );
+    }
+  }
+
+  router.get('/review', requireRole('reviewer', 'analyst'), async (req, res) => {
+    const [queue, returned] = await Promise.all([reviewQueue(db, req.user!), returnedToMe(db, req.user!)]);
+    renderPage(req, res, 'review-queue', {
+      title: 'Review',
+      isReviewer: req.user!.roles.includes('reviewer'),
+      queue: queue.map((item) => ({ ...item, href: reviewPath(item.reportId, item.versionNumber) })),
+      returned: returned.map((item) => ({ ...item, href: reviewPath(item.reportId, item.versionNumber) })),
+    });
+  });
+
+  router.get('/review/reports/:reportId/versions/:version', requireRole(...READERS), async (req, res) => {
+    const params = reviewVersionParamSchema.parse(req.params);
+    const notice = req.session.reviewNotice ?? null;
+    delete req.session.reviewNotice;
+    await showPage(req, res, params, { notice });
+  });
+
+  router.post('/review/reports/:reportId/versions/:version/submit', requireRole('analyst'), (req, res) =>
+    formAction(req, res, 'submit', async ({ reportId, version }) => {
+      const outcome = await submitForReview(
+        db,
+        req.user!,
+        reportId,
+        version,
+        submitForReviewSchema.parse(req.body ?? {}),
+        auditContext(req),
+      );
+      return `Submitted for review (round ${outcome.round}) to ${outcome.reviewers.map((person) => person.fullName).join(', ')}.`;
+    }),
+  );
+
+  router.post('/review/reports/:reportId/versions/:version/return', requireRole('reviewer'), (req, res) =>
+    formAction(req, res, 'return', async ({ reportId, version }) => {
+      await returnForRework(
+        db,
+        req.user!,
+        reportId,
+        version,
+        returnForReworkSchema.parse(req.body ?? {}),
+        auditContext(req),
+      );
+      return 'Returned to the author with your comment.';
+    }),
+  );
+
+  // Open to every member so that an author's attempt to sign is refused by the service and recorded.
+  router.post('/review/reports/:reportId/versions/:version/sign', requireRole(...READERS), (req, res) =>
+    formAction(req, res, 'sign', async ({ reportId, version }) => {
+      const input = signReportSchema.parse(req.body ?? {});
+      const outcome = await signReportVersion(
+        db,
+        storage,
+        req.user!,
+        req.session,
+        reportId,
+        version,
+        input,
+        auditContext(req),
+      );
+      req.session.firstSigningDone = true;
+      await new Promise<void>((resolve, reject) =>
+        req.session.save((error) => (error ? reject(error) : resolve())),
+      );
+      return `Signed (${input.meaning}) at ${outcome.signedAtText}. The version is now locked.`;
+    }),
+  );
+
+  router.get(
+    '/review/reports/:reportId/versions/:version/signed.pdf',
+    requireRole(...READERS),
+    async (req, res) => {
+      const { reportId, version } = reviewVersionParamSchema.parse(req.params);
+      const subject = await loadReviewVersion(db, req.user!.organisationId, reportId, version);
+      const output = await latestSignedOutput(db, subject.version.id);
+      if (!output)
+        throw new HttpError(
+          404,
+          `${subject.report.reportNumber} version ${version} has not been signed yet.`,
+        );
+      const pdf = await storage.readPdf(output.pdfSha256).catch(() => null);
+      if (pdf && sha256Hex(pdf) !== output.pdfSha256) {
+        console.error(`[review] stored signed PDF ${output.pdfSha256} does not match its record`);
+        throw new HttpError(
+          500,
+          'The stored signed PDF does not match its record; it has not been sent. Tell your administrator.',
+        );
+      }
+      if (!pdf)
+        throw new HttpError(
+          503,
+          `The signed PDF of ${subject.report.reportNumber} version ${version} is not in the report store.`,
+        );
+      res
+        .set({
+          'content-type': 'application/pdf',
+          'content-disposition': `attachment; filename="${subject.report.reportNumber}-v${version}-signed.pdf"`,
+          etag: `"${output.pdfSha256}"`,
+          'cache-control': 'private, max-age=31536000, immutable',
+        })
+        .send(pdf);
+    },
+  );
+
+  return router;
+}

@@ -1,0 +1,4 @@
+/** What other features and the app may use from the settings feature. */
+export * from './organisation-settings.ts';
+export * from './password-policy.ts';
+export * from './settings-routes.ts';

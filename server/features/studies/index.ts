@@ -1,0 +1,3 @@
+/** What other features and the app may use from the studies feature. */
+export * from './studies.ts';
+export * from './study-routes.ts';
