@@ -21,6 +21,7 @@ import type { DatabaseHandle } from './platform/db/client.ts';
 import { errorHandler, notFound } from './platform/http/error-handler.ts';
 import { healthRoutes } from './platform/http/health-routes.ts';
 import { requireJsonBody } from './platform/http/require-json.ts';
+import { requestLog } from './platform/logging/request-log.ts';
 import { CLIENT_DIST, readClientAssets } from './platform/web/assets.ts';
 import { createViewEngine, viewFolders } from './platform/web/view-engine.ts';
 
@@ -76,6 +77,7 @@ export function createApp(
     express.static(`${CLIENT_DIST}/assets`, { immutable: true, maxAge: '365d', fallthrough: false }),
   );
   app.use(healthRoutes(services));
+  app.use(requestLog);
 
   const PgStore = connectPgSimple(session);
   app.use(

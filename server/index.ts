@@ -5,6 +5,7 @@ import { startInProcessRenderWorker } from './features/reports/index.ts';
 import { closeSigningBrowsers } from './features/signing/index.ts';
 import { parseEnvironment } from './platform/config/env.ts';
 import { openDatabase } from './platform/db/client.ts';
+import { logger } from './platform/logging/logger.ts';
 import { startMail } from './platform/mail/start-mail.ts';
 
 /** Starts the server; SIGINT/SIGTERM close the listener, then the pool. */
@@ -33,7 +34,7 @@ let stopping = false;
 async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
-  console.log(`[rateledger] ${signal}: stopping`);
+  logger.info({ signal }, 'stopping');
   server.close(async () => {
     await renderWorker.close();
     await closeSigningBrowsers();

@@ -7,6 +7,7 @@ import {
   startRenderWorker,
 } from './features/reports/index.ts';
 import { openDatabase } from './platform/db/client.ts';
+import { logger } from './platform/logging/logger.ts';
 
 /**
  * A render worker on its own (`npm run worker`): renders report versions from the shared queue,
@@ -16,7 +17,7 @@ import { openDatabase } from './platform/db/client.ts';
  */
 const url = z.url({ message: 'DATABASE_URL must be a postgres:// URL' }).safeParse(process.env.DATABASE_URL);
 if (!url.success) {
-  console.error('Rateledger render worker cannot start: DATABASE_URL must be a postgres:// URL.');
+  logger.fatal('render worker cannot start: DATABASE_URL must be a postgres:// URL');
   process.exit(1);
 }
 const config = parseRenderConfig();
@@ -28,13 +29,13 @@ const worker = await startRenderWorker({
   storage: reportStorage(config.reportsDir),
   renderer: createRenderPipeline(),
 });
-console.log(`[render-worker] pid ${process.pid} rendering into ${config.reportsDir}`);
+logger.info({ reportsDir: config.reportsDir }, 'render worker started');
 
 let stopping = false;
 async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
-  console.log(`[render-worker] ${signal}: stopping after the render in flight`);
+  logger.info({ signal }, 'render worker stopping after the render in flight');
   setTimeout(() => process.exit(1), 30_000).unref();
   await worker.close();
   await database.close();

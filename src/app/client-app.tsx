@@ -1,9 +1,23 @@
-import { BrowserRouter, NavLink, Route, Routes } from 'react-router-dom';
+import type { ReactNode } from 'react';
+import { BrowserRouter, NavLink, Route, Routes, useLocation } from 'react-router';
+import { ErrorBoundary } from '../components/error-boundary.tsx';
 import { ActivityList } from '../features/activity/components/activity-list.tsx';
 import { ReportDetail } from '../features/reports/components/report-detail.tsx';
 import { ReportHistory } from '../features/reports/components/report-history.tsx';
 
-/** The client section under /app (React Router). Later features add their routes here. */
+/**
+ * The routes of the section; each is shown in its own error boundary, so a page that fails names
+ * itself in the fallback while the navigation keeps working. Later features add their routes here.
+ */
+const ROUTES: { path: string; what: string; page: ReactNode }[] = [
+  { path: '/', what: 'Your activity', page: <ActivityPage /> },
+  { path: '/activity', what: 'Your activity', page: <ActivityPage /> },
+  { path: '/reports', what: 'The reports', page: <ReportHistory /> },
+  { path: '/reports/:reportId', what: 'The report', page: <ReportDetail /> },
+  { path: '*', what: 'This page', page: <p>There is no page here. Choose one on the left.</p> },
+];
+
+/** The client section under /app (React Router). */
 export default function ClientApp() {
   return (
     <BrowserRouter basename="/app">
@@ -24,15 +38,23 @@ export default function ClientApp() {
         </nav>
         <div className="flex-1">
           <Routes>
-            <Route path="/" element={<ActivityPage />} />
-            <Route path="/activity" element={<ActivityPage />} />
-            <Route path="/reports" element={<ReportHistory />} />
-            <Route path="/reports/:reportId" element={<ReportDetail />} />
-            <Route path="*" element={<p>There is no page here. Choose one on the left.</p>} />
+            {ROUTES.map(({ path, what, page }) => (
+              <Route key={path} path={path} element={<RouteBoundary what={what}>{page}</RouteBoundary>} />
+            ))}
           </Routes>
         </div>
       </div>
     </BrowserRouter>
+  );
+}
+
+/** Starts the boundary afresh on every address, so opening another report clears a failure. */
+function RouteBoundary({ what, children }: { what: string; children: ReactNode }) {
+  const { pathname } = useLocation();
+  return (
+    <ErrorBoundary key={pathname} what={what}>
+      {children}
+    </ErrorBoundary>
   );
 }
 

@@ -10,6 +10,7 @@ import {
 } from '../../../shared/api/audit.ts';
 import { recordIdSchema } from '../../../shared/api/studies.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { appendAuditEvent, type ChainCheck } from '../../platform/audit/audit-trail.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
@@ -106,7 +107,7 @@ export function auditRoutes(services: AppServices): Router {
       actorLabel: req.user!.email,
       action: AUDIT_EXPORTED_ACTION,
       after: { filter: withoutPage(filter), upToEventId, format: 'csv' },
-      context: { ip: req.ip },
+      context: auditContext(req),
     });
     const day = new Date().toISOString().slice(0, 10);
     res.status(200);
@@ -161,7 +162,7 @@ export function auditRoutes(services: AppServices): Router {
   });
 
   router.post('/audit/chain', requireRole(...AUDITORS), async (req, res) => {
-    const outcome = await checkAuditChain(db, req.user!, { ip: req.ip });
+    const outcome = await checkAuditChain(db, req.user!, auditContext(req));
     res.redirect(303, `/audit/chain?check=${outcome.eventId}`);
   });
 

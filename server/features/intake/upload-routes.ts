@@ -12,6 +12,7 @@ import {
 } from '../../../shared/api/uploads.ts';
 import { columnMappingSchema } from '../../../shared/intake/column-mapping.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
@@ -71,7 +72,6 @@ function mappingFromQuery(raw: unknown) {
 
 export function uploadRoutes(services: AppServices): Router {
   const router = Router();
-  const context = (req: { ip?: string | undefined }) => ({ ip: req.ip });
 
   router.post('/api/studies/:studyId/uploads', requireRole('analyst'), receiveOneFile(), async (req, res) => {
     const studyId = recordIdSchema.parse(req.params.studyId);
@@ -84,7 +84,7 @@ export function uploadRoutes(services: AppServices): Router {
       req.user!,
       studyId,
       { fileName, mediaType: req.file.mimetype, bytes: req.file.buffer },
-      context(req),
+      auditContext(req),
     );
     const body: UploadResponse = {
       uploadId: upload.id,
@@ -146,7 +146,7 @@ export function uploadRoutes(services: AppServices): Router {
       uploadId,
       request.mapping,
       request.saveMappingAs,
-      context(req),
+      auditContext(req),
     );
     res.status(201).json(body);
   });

@@ -2,6 +2,7 @@ import { type Request, type Response, Router } from 'express';
 import type { ZodError } from 'zod';
 import { linkTokenSchema, newPasswordFormSchema, ROLE_DESCRIPTIONS } from '../../../shared/api/user-admin.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { publicRoute } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
@@ -82,7 +83,6 @@ function invitationLocals(req: Request, view: InvitationView, token: string) {
 export function accountRoutes(services: AppServices): Router {
   const router = Router();
   const { db } = services;
-  const context = (req: Request) => ({ ip: req.ip, userAgent: req.get('user-agent') });
 
   router.get('/invitations/:token', publicRoute(), async (req, res) => {
     noStore(res);
@@ -111,7 +111,7 @@ export function accountRoutes(services: AppServices): Router {
       password = form.data.password;
     }
     try {
-      const accepted = await acceptInvitation(db, token, { password, signedIn: req.user }, context(req));
+      const accepted = await acceptInvitation(db, token, { password, signedIn: req.user }, auditContext(req));
       renderPage(req, res, 'invitation-accepted', {
         title: 'Welcome to Rateledger',
         accepted,
@@ -159,7 +159,7 @@ export function accountRoutes(services: AppServices): Router {
       return renderPage(req, res, 'password-reset', { ...resetLocals(view, token), errors }, 400);
     }
     try {
-      const done = await completePasswordReset(db, token, form.data.password, context(req));
+      const done = await completePasswordReset(db, token, form.data.password, auditContext(req));
       // The person's sessions were ended with the reset; this browser's too, if it was one.
       if (req.user?.email === done.email) await new Promise<void>((resolve) => req.logout(() => resolve()));
       renderPage(req, res, 'password-reset-done', { title: 'Password changed', email: done.email });

@@ -2,6 +2,7 @@ import { type RequestHandler, Router } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import { z } from 'zod';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import { attemptSignIn } from '../../platform/auth/accounts.ts';
 import { csrfToken } from '../../platform/auth/csrf.ts';
@@ -79,7 +80,7 @@ export function authRoutes(services: AppServices): Router {
       actorUserId: user.id,
       actorLabel: user.email,
       action: 'sign-out',
-      context: { ip: req.ip },
+      context: auditContext(req),
     });
     req.logout((error) => {
       if (error) return next(error);

@@ -9,6 +9,7 @@ import {
   rolesFormSchema,
 } from '../../../shared/api/user-admin.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { noticeAndBack, takeNotice } from '../../platform/web/admin-notice.ts';
@@ -26,7 +27,6 @@ import {
   unlockMember,
 } from './user-admin.ts';
 
-const context = (req: Request) => ({ ip: req.ip, userAgent: req.get('user-agent') });
 const fromBody = (req: Request) => (req.body ?? {}) as Record<string, unknown>;
 
 const deliveryNote = (delivery: { status: string; reason: string | null } | null) =>
@@ -86,7 +86,7 @@ export function userAdminRoutes(services: AppServices): Router {
       return renderPage(req, res, 'admin-people-invite', inviteLocals(fromBody(req), errors), 400);
     }
     try {
-      const invited = await inviteMember(db, req.user!, parsed.data, context(req));
+      const invited = await inviteMember(db, req.user!, parsed.data, auditContext(req));
       const who = `${parsed.data.fullName} <${parsed.data.email}>`;
       const joining = invited.existingAccount
         ? ' This address already has a Rateledger account: the person signs in with it to join.'
@@ -110,7 +110,7 @@ export function userAdminRoutes(services: AppServices): Router {
 
   router.post('/admin/invitations/:invitationId/revoke', requireRole('admin'), async (req, res) => {
     const invitationId = recordIdSchema.parse(req.params.invitationId);
-    await revokeInvitation(db, req.user!, invitationId, context(req));
+    await revokeInvitation(db, req.user!, invitationId, auditContext(req));
     noticeAndBack(
       req,
       res,
@@ -174,7 +174,7 @@ export function userAdminRoutes(services: AppServices): Router {
     requireRole('admin'),
     personAction(async (req, userId) => {
       const { roles } = rolesFormSchema.parse(fromBody(req));
-      const changed = await setMemberRoles(db, req.user!, userId, roles, context(req));
+      const changed = await setMemberRoles(db, req.user!, userId, roles, auditContext(req));
       return changed ? `Roles saved: ${roles.join(', ')}.` : 'The roles were already these; nothing changed.';
     }),
   );
@@ -183,7 +183,7 @@ export function userAdminRoutes(services: AppServices): Router {
     '/admin/people/:userId/deactivate',
     requireRole('admin'),
     personAction(async (req, userId) =>
-      (await deactivateMember(db, req.user!, userId, context(req)))
+      (await deactivateMember(db, req.user!, userId, auditContext(req)))
         ? 'The account is deactivated: it cannot sign in, and its open sessions have stopped working. Its records and signatures stay.'
         : 'The account was already deactivated.',
     ),
@@ -193,7 +193,7 @@ export function userAdminRoutes(services: AppServices): Router {
     '/admin/people/:userId/reactivate',
     requireRole('admin'),
     personAction(async (req, userId) =>
-      (await reactivateMember(db, req.user!, userId, context(req)))
+      (await reactivateMember(db, req.user!, userId, auditContext(req)))
         ? 'The account is active again, with the roles shown.'
         : 'The account was already active.',
     ),
@@ -203,7 +203,7 @@ export function userAdminRoutes(services: AppServices): Router {
     '/admin/people/:userId/unlock',
     requireRole('admin'),
     personAction(async (req, userId) =>
-      (await unlockMember(db, req.user!, userId, context(req)))
+      (await unlockMember(db, req.user!, userId, auditContext(req)))
         ? 'The account is unlocked; the count of failed sign-ins starts again from zero.'
         : 'The account was not locked.',
     ),
@@ -213,7 +213,7 @@ export function userAdminRoutes(services: AppServices): Router {
     '/admin/people/:userId/password-reset',
     requireRole('admin'),
     personAction(async (req, userId) => {
-      const reset = await requestPasswordReset(db, req.user!, userId, context(req));
+      const reset = await requestPasswordReset(db, req.user!, userId, auditContext(req));
       if (reset.delivery?.status !== 'sent') throw new HttpError(409, deliveryNote(reset.delivery));
       return `A password reset link was sent; it works once, until ${reset.expiresAt.toISOString().replace('T', ' ').slice(0, 16)} UTC. ${deliveryNote(reset.delivery)}`;
     }),

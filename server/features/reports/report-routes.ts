@@ -11,6 +11,7 @@ import {
 import type { AppServices } from '../../platform/app-services.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { logger } from '../../platform/logging/logger.ts';
 import { parseRenderConfig } from './queue/render-config.ts';
 import { openRenderQueue } from './queue/render-queue.ts';
 import { getReportDetail, getVersionOutput, listReports, reportFilterOptions } from './report-history.ts';
@@ -122,8 +123,9 @@ export function reportRoutes(services: AppServices): Router {
     const pdf = await storage.readVersionPdf(output.versionId, output.pdfSha256);
     if (!pdf) {
       if (await storage.hasPdf(output.pdfSha256)) {
-        console.error(
-          `[reports] stored PDF ${output.pdfSha256} does not match report ${id} version ${version}`,
+        logger.error(
+          { reqId: req.id, pdfSha256: output.pdfSha256, reportId: id, version },
+          'stored PDF does not match its record',
         );
         throw new HttpError(
           500,

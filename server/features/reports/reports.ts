@@ -40,7 +40,9 @@ import { templateVersionForNewReports } from './report-templates.ts';
 
 const REPORT_NUMBER_LOCK = 7_305_021;
 
-export type AuditContext = Record<string, unknown>;
+import type { AuditContext } from '../../platform/audit/audit-context.ts';
+
+export type { AuditContext };
 
 export interface CreatedReport {
   reportId: number;

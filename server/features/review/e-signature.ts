@@ -14,6 +14,7 @@ import {
   users,
 } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { logger } from '../../platform/logging/logger.ts';
 import { commitThenMail, type MailMessage, sendMail } from '../../platform/mail/mail-transport.ts';
 import { reportSignedMail } from '../../platform/mail/messages.ts';
 import type { ReportStorage } from '../reports/index.ts';
@@ -329,9 +330,9 @@ export async function signReportVersion(
     signedPdf = printed.pdf;
     signedPdfSha256 = await storeSignedPdf(storage, printed.pdf);
   } catch (error) {
-    console.error(
-      `[signing] the signed PDF of report ${report.id} version ${versionNumber} could not be produced:`,
-      error,
+    logger.error(
+      { err: error, reportId: report.id, version: versionNumber },
+      'signed PDF could not be produced',
     );
     throw new HttpError(
       503,

@@ -6,8 +6,10 @@ import {
   submitForReviewSchema,
 } from '../../../shared/api/review.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { logger } from '../../platform/logging/logger.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { parseRenderConfig, reportStorage, sha256Hex } from '../reports/index.ts';
 import { latestSignedOutput } from '../signing/index.ts';
@@ -35,8 +37,6 @@ declare module 'express-session' {
 }
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
-
-const auditContext = (req: Request) => ({ ip: req.ip ?? null, userAgent: req.get('user-agent') ?? null });
 
 /** Field errors of a refused form, by field name, for the page to show beside the fields. */
 function fieldErrors(error: HttpError): Record<string, string> {
@@ -198,7 +198,10 @@ export function reviewRoutes(services: AppServices): Router {
         );
       const pdf = await storage.readPdf(output.pdfSha256).catch(() => null);
       if (pdf && sha256Hex(pdf) !== output.pdfSha256) {
-        console.error(`[review] stored signed PDF ${output.pdfSha256} does not match its record`);
+        logger.error(
+          { reqId: req.id, pdfSha256: output.pdfSha256 },
+          'stored signed PDF does not match its record',
+        );
         throw new HttpError(
           500,
           'The stored signed PDF does not match its record; it has not been sent. Tell your administrator.',

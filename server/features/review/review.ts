@@ -43,7 +43,9 @@ import { isoDateTime } from '../reports/index.ts';
  * Signing is in `e-signature.ts`; the first valid signature completes the review.
  */
 
-export type AuditContext = Record<string, unknown>;
+import type { AuditContext } from '../../platform/audit/audit-context.ts';
+
+export type { AuditContext };
 export const DEFAULT_SIGNATURE_MEANINGS = ['Reviewed', 'Approved'];
 
 export const reviewPath = (reportId: number, versionNumber: number) =>

@@ -52,7 +52,9 @@ export const DEFAULT_ORGANISATION_SETTINGS = {
 /** A serialisation lock per organisation for settings and membership changes. */
 export const ORGANISATION_ADMIN_LOCK = 7_305_071;
 
-export type AuditContext = Record<string, unknown>;
+import type { AuditContext } from '../../platform/audit/audit-context.ts';
+
+export type { AuditContext };
 
 export async function loadOrganisationSettings(
   executor: Executor,

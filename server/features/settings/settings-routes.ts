@@ -13,6 +13,7 @@ import {
 } from '../../../shared/api/settings.ts';
 import { TIME_UNITS } from '../../../shared/kinetics/units.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { takeNotice } from '../../platform/web/admin-notice.ts';
@@ -99,7 +100,6 @@ function presetRows(values: Values, errors: Record<string, string>) {
 export function settingsRoutes(services: AppServices): Router {
   const router = Router();
   const { db } = services;
-  const context = (req: Request) => ({ ip: req.ip, userAgent: req.get('user-agent') });
 
   async function renderSettings(
     req: Request,
@@ -179,7 +179,7 @@ export function settingsRoutes(services: AppServices): Router {
     }
     let changed: string[];
     try {
-      ({ changed } = await saveOrganisationSettings(db, req.user!, parsed.data, context(req)));
+      ({ changed } = await saveOrganisationSettings(db, req.user!, parsed.data, auditContext(req)));
     } catch (error) {
       if (!(error instanceof HttpError && error.status === 400 && Array.isArray(error.details))) throw error;
       const details = error.details as { field: string; message: string }[];
@@ -207,7 +207,7 @@ export function settingsRoutes(services: AppServices): Router {
         status: 400,
       });
     }
-    const { changed } = await saveSecuritySettings(db, req.user!, parsed.data, context(req));
+    const { changed } = await saveSecuritySettings(db, req.user!, parsed.data, auditContext(req));
     req.session.adminNotice = {
       kind: 'done',
       text:

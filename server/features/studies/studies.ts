@@ -15,7 +15,10 @@ import { analysisRuns, datasets, studies, uploads, users } from '../../platform/
 import { HttpError } from '../../platform/http/http-error.ts';
 
 export type Study = typeof studies.$inferSelect;
-export type AuditContext = Record<string, unknown>;
+
+import type { AuditContext } from '../../platform/audit/audit-context.ts';
+
+export type { AuditContext };
 
 function auditedFields(study: StudyInput | Study): Record<string, unknown> {
   return Object.fromEntries(STUDY_FIELDS.map((field) => [field, study[field]]));

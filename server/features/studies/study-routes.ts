@@ -7,6 +7,7 @@ import {
 } from '../../../shared/api/studies.ts';
 import { formatBytes, UPLOAD_SIZE_LIMIT_BYTES } from '../../../shared/api/uploads.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { createStudy, findStudy, listStudies, type Study, studyOverview, updateStudy } from './studies.ts';
@@ -110,7 +111,6 @@ const condition = (temperature: number | null, humidity: number | null) =>
 
 export function studyRoutes(services: AppServices): Router {
   const router = Router();
-  const context = (req: Request) => ({ ip: req.ip });
 
   router.get('/studies', requireRole(...READERS), async (req, res) => {
     const rows = await listStudies(services.db, req.user!.organisationId);
@@ -146,7 +146,7 @@ export function studyRoutes(services: AppServices): Router {
         400,
       );
     }
-    const study = await createStudy(services.db, req.user!, parsed.data, context(req));
+    const study = await createStudy(services.db, req.user!, parsed.data, auditContext(req));
     res.redirect(303, `/studies/${study.id}?saved=created`);
   });
 
@@ -192,7 +192,7 @@ export function studyRoutes(services: AppServices): Router {
       const locals = formLocals(postedValues(req), fieldErrors(parsed.error), `/studies/${studyId}`, current);
       return renderPage(req, res, 'study-form', locals, 400);
     }
-    const { changed } = await updateStudy(services.db, req.user!, studyId, parsed.data, context(req));
+    const { changed } = await updateStudy(services.db, req.user!, studyId, parsed.data, auditContext(req));
     res.redirect(303, `/studies/${studyId}?saved=${changed.length > 0 ? 'updated' : 'unchanged'}`);
   });
 

@@ -9,6 +9,7 @@ import {
   signatures,
   signedOutputs,
 } from '../../platform/db/schema/index.ts';
+import { logger } from '../../platform/logging/logger.ts';
 import { isoDateTime, sha256Hex } from '../reports/index.ts';
 import { reviewPath } from '../review/index.ts';
 import { organisationSigningIdentity, verifyPdfSeal } from '../signing/index.ts';
@@ -100,7 +101,7 @@ export async function verifyPdf(
       reason: checked.reason,
     };
   } catch (error) {
-    console.error('[verify] the seal check could not run:', error);
+    logger.error({ err: error }, 'seal check could not run');
     seal = {
       signed: false,
       valid: false,

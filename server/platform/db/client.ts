@@ -1,5 +1,6 @@
 import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres';
 import pg from 'pg';
+import { logger } from '../logging/logger.ts';
 import * as schema from './schema/index.ts';
 
 export type Database = NodePgDatabase<typeof schema>;
@@ -17,7 +18,7 @@ export interface DatabaseHandle {
 export function openDatabase(connectionString: string): DatabaseHandle {
   const pool = new pg.Pool({ connectionString, max: 10 });
   // An idle client that loses its connection must not crash the process.
-  pool.on('error', (error) => console.error('[db] idle client error:', error.message));
+  pool.on('error', (error) => logger.error({ err: error }, 'idle database client error'));
   const db = drizzle(pool, { schema, casing: 'snake_case' });
   return { pool, db, close: () => pool.end() };
 }

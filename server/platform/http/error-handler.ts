@@ -1,5 +1,6 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
+import { logger } from '../logging/logger.ts';
 import { renderPage } from '../web/render-page.ts';
 import { HttpError } from './http-error.ts';
 
@@ -64,7 +65,11 @@ export const errorHandler: ErrorRequestHandler = (error, req, res, _next) => {
   const message =
     known?.message ??
     'An unexpected error stopped this request. It has been logged; nothing was saved half-way.';
-  if (!known) console.error(`[http] ${req.method} ${req.originalUrl} failed:`, error);
+  if (!known)
+    logger.error(
+      { err: error, reqId: req.id, method: req.method, route: req.route?.path ?? null },
+      'request failed',
+    );
   if (res.headersSent) return;
   if (req.originalUrl.startsWith('/api/') || req.originalUrl.startsWith('/healthz') || !req.accepts('html')) {
     res

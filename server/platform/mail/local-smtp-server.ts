@@ -3,6 +3,7 @@ import { type AddressObject, type EmailAddress, simpleParser } from 'mailparser'
 import { SMTPServer, type SMTPServerDataStream, type SMTPServerSession } from 'smtp-server';
 import type { Database } from '../db/client.ts';
 import { type ReceivedHeaderLine, receivedMail } from '../db/schema/index.ts';
+import { logger } from '../logging/logger.ts';
 
 /**
  * The app's own SMTP server for the demo and the tests, in place of a hosted mail service: it
@@ -113,7 +114,7 @@ export function startLocalSmtpServer(db: Database, options: LocalSmtpOptions): P
           () => callback(),
           (error: unknown) => {
             if (error instanceof SmtpReplyError) return callback(error);
-            console.error('[mail] the local SMTP server could not store a message:', error);
+            logger.error({ err: error }, 'local SMTP server could not store a message');
             callback(new SmtpReplyError(451, 'Could not store the message; try again later'));
           },
         );
@@ -133,7 +134,7 @@ export function startLocalSmtpServer(db: Database, options: LocalSmtpOptions): P
     server.once('error', onStartError);
     server.listen(options.port, LOCAL_SMTP_HOST, () => {
       server.off('error', onStartError);
-      server.on('error', (error) => console.error('[mail] local SMTP server:', error.message));
+      server.on('error', (error) => logger.error({ err: error }, 'local SMTP server error'));
       const { address, port } = server.server.address() as AddressInfo;
       resolve({
         host: address,

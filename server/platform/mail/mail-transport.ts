@@ -4,6 +4,7 @@ import type SMTPTransport from 'nodemailer/lib/smtp-transport/index.js';
 import { z } from 'zod';
 import type { Database, Transaction } from '../db/client.ts';
 import { outgoingMail } from '../db/schema/index.ts';
+import { logger } from '../logging/logger.ts';
 import { describeSmtpUrl, mailConfig } from './mail-config.ts';
 
 /**
@@ -164,8 +165,9 @@ export async function sendMail(db: Database, message: MailMessage): Promise<Mail
   const durationMs = Math.round(performance.now() - started);
   const transport = describeSmtpUrl(settings.url);
   if (outcome.status === 'failed') {
-    console.error(
-      `[mail] NOT delivered (${message.kind} to ${recipients.join(', ')} via ${transport}): ${outcome.reason}`,
+    logger.error(
+      { kind: message.kind, recipients: recipients.length, transport, reason: outcome.reason },
+      'mail not delivered',
     );
   }
   let deliveryId: number | null = null;
@@ -189,7 +191,7 @@ export async function sendMail(db: Database, message: MailMessage): Promise<Mail
       .returning({ id: outgoingMail.id });
     deliveryId = row?.id ?? null;
   } catch (error) {
-    console.error(`[mail] could not record the ${outcome.status} ${message.kind} message:`, error);
+    logger.error({ err: error, kind: message.kind, status: outcome.status }, 'mail delivery not recorded');
   }
   return { status: outcome.status, deliveryId, messageId: outcome.messageId, reason: outcome.reason };
 }

@@ -1,6 +1,7 @@
 import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { projectPath } from '../config/project-root.ts';
+import { logger } from '../logging/logger.ts';
 
 /** Where `vite build` writes the client (see vite.config.ts). */
 export const CLIENT_DIST = projectPath('dist', 'client');
@@ -23,9 +24,7 @@ interface ManifestEntry {
 export function readClientAssets(distDir = CLIENT_DIST): ClientAssets {
   const manifestPath = path.join(distDir, '.vite', 'manifest.json');
   if (!existsSync(manifestPath)) {
-    console.warn(
-      `[web] no client build at ${manifestPath}: run \`npx vite build\`; pages render without islands`,
-    );
+    logger.warn({ manifestPath }, 'no client build (run `npx vite build`): pages render without islands');
     return { scripts: [], styles: [] };
   }
   const manifest = JSON.parse(readFileSync(manifestPath, 'utf8')) as Record<string, ManifestEntry>;

@@ -1,4 +1,5 @@
 import type { DatabaseHandle } from '../../../platform/db/client.ts';
+import { logger } from '../../../platform/logging/logger.ts';
 import { reportStorage } from '../report-storage.ts';
 import { parseRenderConfig } from './render-config.ts';
 import { createRenderPipeline } from './render-pipeline.ts';
@@ -20,11 +21,11 @@ export function startInProcessRenderWorker(database: DatabaseHandle, connectionS
     renderer: createRenderPipeline(),
   }).then(
     (worker) => {
-      console.log(`[render-worker] rendering reports in this process into ${config.reportsDir}`);
+      logger.info({ reportsDir: config.reportsDir }, 'render worker started in this process');
       return worker;
     },
     (error: Error) => {
-      console.error(`[render-worker] could not start: ${error.message}`);
+      logger.error({ err: error }, 'render worker could not start');
       return null;
     },
   );

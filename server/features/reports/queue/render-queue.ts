@@ -2,6 +2,7 @@ import { type SQL, sql } from 'drizzle-orm';
 import type pg from 'pg';
 import PgBoss from 'pg-boss';
 import type { Executor } from '../../../platform/db/client.ts';
+import { logger } from '../../../platform/logging/logger.ts';
 import type { RenderConfig } from './render-config.ts';
 
 /**
@@ -59,7 +60,7 @@ export function openRenderQueue(options: RenderQueueOptions): RenderQueue {
     schedule: false,
     maintenanceIntervalSeconds: config.maintenanceIntervalSeconds,
   });
-  boss.on('error', (error) => console.error('[render-queue]', error.message));
+  boss.on('error', (error) => logger.error({ err: error }, 'render queue error'));
 
   let starting: Promise<void> | null = null;
   let closed = false;

@@ -1,5 +1,6 @@
 import type PgBoss from 'pg-boss';
 import type { Database } from '../../../platform/db/client.ts';
+import { logger } from '../../../platform/logging/logger.ts';
 import type { ReportStorage } from '../report-storage.ts';
 import {
   RENDER_DEAD_LETTER_QUEUE,
@@ -36,7 +37,7 @@ type Job = PgBoss.JobWithMetadata<RenderJobData>;
 
 export async function startRenderWorker(options: RenderWorkerOptions): Promise<RenderWorker> {
   const { db, queue, storage, renderer } = options;
-  const log = options.log ?? ((message: string) => console.log(`[render-worker] ${message}`));
+  const log = options.log ?? ((message: string) => logger.info({ component: 'render-worker' }, message));
   await queue.ready();
   const swept = await sweepIncoming(db, storage);
   if (Object.keys(swept).length > 0) log(`cleared .incoming: ${JSON.stringify(swept)}`);

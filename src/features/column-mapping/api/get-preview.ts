@@ -2,6 +2,7 @@ import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query'
 import { previewResponseSchema } from '../../../../shared/api/uploads.ts';
 import type { ColumnMapping } from '../../../../shared/intake/column-mapping.ts';
 import { fetchJson } from '../../../lib/http.ts';
+import { uploadKeys } from './upload-keys.ts';
 
 /** GET /api/uploads/:id/preview — sheets, saved mappings that fit, and a dry run of `mapping`. */
 export function getPreview(uploadId: string, mapping: ColumnMapping | null) {
@@ -9,10 +10,9 @@ export function getPreview(uploadId: string, mapping: ColumnMapping | null) {
   return fetchJson(`/api/uploads/${encodeURIComponent(uploadId)}/preview${query}`, previewResponseSchema);
 }
 
-/** Owns the query key of an upload's preview (with or without a mapping to check). */
 export const previewQueryOptions = (uploadId: string, mapping: ColumnMapping | null) =>
   queryOptions({
-    queryKey: ['upload-preview', uploadId, mapping],
+    queryKey: uploadKeys.preview(uploadId, mapping),
     queryFn: () => getPreview(uploadId, mapping),
     placeholderData: keepPreviousData,
     staleTime: Number.POSITIVE_INFINITY,

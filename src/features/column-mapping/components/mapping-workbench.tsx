@@ -1,7 +1,8 @@
 import { useEffect, useMemo, useState } from 'react';
 import type { SavedMapping } from '../../../../shared/api/uploads.ts';
+import { ApiError } from '../../../lib/http.ts';
 import { usePreview } from '../api/get-preview.ts';
-import { ImportRefused, useImportUpload } from '../api/import-upload.ts';
+import { importProblems, useImportUpload } from '../api/import-upload.ts';
 import {
   checkDraft,
   columnOptions,
@@ -106,10 +107,11 @@ export function MappingWorkbench({
     mapping !== null && checked?.ok && JSON.stringify(mapping) === JSON.stringify(checked.mapping);
   const check = current && !preview.isPlaceholderData ? data.check : null;
   const replicateRows = new Set(check?.replicateRows ?? []);
-  const refused = importer.error instanceof ImportRefused ? importer.error : null;
+  const refused = importer.error instanceof ApiError ? importer.error : null;
+  const refusedProblems = refused ? importProblems(refused) : [];
   const offers = dismissedOffer ? [] : data.savedMappings;
   const problemCells = new Map<string, string>();
-  for (const problem of [...(check?.problems ?? []), ...(refused?.problems ?? [])]) {
+  for (const problem of [...(check?.problems ?? []), ...refusedProblems]) {
     const address = /^(?:'((?:[^']|'')+)'|([^!]+))!([A-Z]+\d+)$/.exec(problem.where ?? '');
     const sheetName = address?.[1]?.replaceAll("''", "'") ?? address?.[2];
     if (address?.[3] && sheetName === sheet.name) problemCells.set(address[3], problem.message);
@@ -211,7 +213,7 @@ export function MappingWorkbench({
             className="flex-1 rounded-sm border border-rule px-2 py-1"
           />
         </label>
-        {refused && <ProblemList heading={refused.message} problems={refused.problems} />}
+        {refused && <ProblemList heading={refused.message} problems={refusedProblems} />}
         {importer.isError && !refused && (
           <p role="alert" className="text-sm text-alert">
             {importer.error.message}

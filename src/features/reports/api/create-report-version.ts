@@ -12,8 +12,7 @@ export function createReportVersion(reportId: number, request: CreateReportVersi
   const body = createReportVersionRequestSchema.parse(request);
   return fetchJson(`/api/reports/${reportId}/versions`, createReportResponseSchema, {
     method: 'POST',
-    headers: { 'content-type': 'application/json' },
-    body: JSON.stringify(body),
+    json: body,
   });
 }
 

@@ -1,4 +1,4 @@
-import { queryOptions, useQuery } from '@tanstack/react-query';
+import { queryOptions, skipToken, useQuery } from '@tanstack/react-query';
 import { reportDetailSchema } from '../../../../shared/api/reports.ts';
 import { fetchJson } from '../../../lib/http.ts';
 import { isRendering, RENDER_POLL_MS, reportKeys } from './report-keys.ts';
@@ -8,12 +8,14 @@ export function getReport(reportId: number) {
   return fetchJson(`/api/reports/${reportId}`, reportDetailSchema);
 }
 
-/** Polls while any version is queued or rendering, so the state updates as the render runs. */
+/**
+ * Polls while any version is queued or rendering, so the state updates as the render runs. An id
+ * that is no report id (from a hand-typed URL) is not fetched.
+ */
 export const reportQueryOptions = (reportId: number) =>
   queryOptions({
     queryKey: reportKeys.detail(reportId),
-    queryFn: () => getReport(reportId),
-    enabled: Number.isInteger(reportId) && reportId > 0,
+    queryFn: Number.isInteger(reportId) && reportId > 0 ? () => getReport(reportId) : skipToken,
     staleTime: 0,
     refetchInterval: (current) =>
       current.state.data?.versions.some((version) => isRendering(version.renderStatus))

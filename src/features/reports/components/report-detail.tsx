@@ -1,4 +1,4 @@
-import { Link, useParams } from 'react-router-dom';
+import { Link, useParams } from 'react-router';
 import { useMe } from '../../session/api/get-me.ts';
 import { useCreateReportVersion } from '../api/create-report-version.ts';
 import { useReport } from '../api/get-report.ts';

@@ -11,11 +11,7 @@ export async function runAnalysis(datasetId: number | string) {
     return await fetchJson(
       `/api/datasets/${encodeURIComponent(String(datasetId))}/analyses`,
       runAnalysisResponseSchema,
-      {
-        method: 'POST',
-        headers: { 'content-type': 'application/json' },
-        body: '{}',
-      },
+      { method: 'POST', json: {} },
     );
   } catch (error) {
     if (error instanceof ApiError && error.status === 404 && /nothing at/i.test(error.message)) {

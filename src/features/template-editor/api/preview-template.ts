@@ -1,7 +1,7 @@
-import { keepPreviousData, queryOptions, useQuery } from '@tanstack/react-query';
+import { keepPreviousData, queryOptions, skipToken, useQuery } from '@tanstack/react-query';
 import { useEffect, useState } from 'react';
 import { type TemplateSourceInput, templatePreviewResponseSchema } from '../../../../shared/api/templates.ts';
-import { templateRequest } from './request.ts';
+import { fetchJson } from '../../../lib/http.ts';
 import { templateKeys } from './template-keys.ts';
 
 /** How long typing must pause before the server renders the preview again. */
@@ -13,18 +13,18 @@ export function previewTemplate(
   sampleRunId: number | null,
   signal?: AbortSignal,
 ) {
-  return templateRequest('/api/admin/templates/preview', templatePreviewResponseSchema, {
+  return fetchJson('/api/admin/templates/preview', templatePreviewResponseSchema, {
     method: 'POST',
-    body: { source, sampleRunId },
+    json: { source, sampleRunId },
     ...(signal ? { signal } : {}),
   });
 }
 
+/** Nothing is rendered until the editor holds a draft (`source` null). */
 export const templatePreviewQueryOptions = (source: TemplateSourceInput | null, sampleRunId: number | null) =>
   queryOptions({
     queryKey: templateKeys.preview(source, sampleRunId),
-    queryFn: ({ signal }) => previewTemplate(source!, sampleRunId, signal),
-    enabled: source !== null,
+    queryFn: source === null ? skipToken : ({ signal }) => previewTemplate(source, sampleRunId, signal),
     staleTime: Number.POSITIVE_INFINITY,
     gcTime: 60_000,
     retry: false,

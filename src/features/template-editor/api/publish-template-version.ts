@@ -1,13 +1,13 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { publishTemplateVersionResponseSchema } from '../../../../shared/api/templates.ts';
-import { templateRequest } from './request.ts';
+import { fetchJson } from '../../../lib/http.ts';
 import { templateKeys } from './template-keys.ts';
 
 /** POST /api/admin/templates/:id/publish — an earlier version than the published one is a rollback. */
 export function publishTemplateVersion(templateId: number, versionId: number) {
-  return templateRequest(`/api/admin/templates/${templateId}/publish`, publishTemplateVersionResponseSchema, {
+  return fetchJson(`/api/admin/templates/${templateId}/publish`, publishTemplateVersionResponseSchema, {
     method: 'POST',
-    body: { versionId },
+    json: { versionId },
   });
 }
 

@@ -3,14 +3,14 @@ import {
   type SaveTemplateVersionRequest,
   saveTemplateVersionResponseSchema,
 } from '../../../../shared/api/templates.ts';
-import { templateRequest } from './request.ts';
+import { fetchJson } from '../../../lib/http.ts';
 import { templateKeys } from './template-keys.ts';
 
 /** POST /api/admin/templates/:id/versions — refused (422, problems located) when the draft does not check. */
 export function saveTemplateVersion(templateId: number, request: SaveTemplateVersionRequest) {
-  return templateRequest(`/api/admin/templates/${templateId}/versions`, saveTemplateVersionResponseSchema, {
+  return fetchJson(`/api/admin/templates/${templateId}/versions`, saveTemplateVersionResponseSchema, {
     method: 'POST',
-    body: request,
+    json: request,
   });
 }
 

@@ -113,18 +113,28 @@ const problemGutter = gutter({
   markers: (view) => view.state.field(problemField).markers,
 });
 
+/** A theme colour of `src/styles.css`, mixed with transparency for tints. */
+const token = (name: string, percent = 100) =>
+  percent === 100
+    ? `var(--color-${name})`
+    : `color-mix(in srgb, var(--color-${name}) ${percent}%, transparent)`;
+
 const theme = EditorView.theme({
   '&': { fontSize: '13px', height: '100%' },
   '.cm-scroller': { fontFamily: 'ui-monospace, SFMono-Regular, Menlo, Consolas, monospace' },
-  '.cm-mustache': { color: '#7a2e8e', backgroundColor: 'rgba(122, 46, 142, 0.08)', borderRadius: '2px' },
+  '.cm-mustache': {
+    color: token('template-expression'),
+    backgroundColor: token('template-expression', 8),
+    borderRadius: '2px',
+  },
   '.cm-mustache-block': { fontWeight: '600' },
-  '.cm-mustache-partial': { color: '#1d4b45', fontWeight: '600' },
+  '.cm-mustache-partial': { color: token('ledger'), fontWeight: '600' },
   '.cm-problem-gutter': { width: '1.1em' },
   '.cm-problem-marker': {
     display: 'inline-block',
     width: '1em',
     color: 'white',
-    backgroundColor: '#a4262c',
+    backgroundColor: token('template-problem'),
     borderRadius: '50%',
     textAlign: 'center',
     fontWeight: '700',
@@ -132,7 +142,7 @@ const theme = EditorView.theme({
     lineHeight: '1.4',
     cursor: 'help',
   },
-  '.cm-problem-line': { backgroundColor: 'rgba(164, 38, 44, 0.09)' },
+  '.cm-problem-line': { backgroundColor: token('template-problem', 9) },
 });
 
 export function languageFor(part: string): Extension {

@@ -5,7 +5,7 @@ import { useTemplateEditor } from '../api/get-template-editor.ts';
 import { useTemplateVersion } from '../api/get-template-version.ts';
 import { useTemplatePreview } from '../api/preview-template.ts';
 import { usePublishTemplateVersion } from '../api/publish-template-version.ts';
-import { TemplateRequestRefused } from '../api/request.ts';
+import { refusalProblems } from '../api/refusal-problems.ts';
 import { useSaveTemplateVersion } from '../api/save-template-version.ts';
 import { templateKeys } from '../api/template-keys.ts';
 import { changedParts, draftParts, readPart, sameSource, writePart } from '../draft.ts';
@@ -84,8 +84,8 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
   const dirty = !sameSource(draft, baseSource);
   const changed = changedParts(draft, baseSource);
   const parts = draftParts(draft);
-  const saveProblems = save.error instanceof TemplateRequestRefused ? save.error.problems : [];
-  const publishProblems = publish.error instanceof TemplateRequestRefused ? publish.error.problems : [];
+  const saveProblems = refusalProblems(save.error);
+  const publishProblems = refusalProblems(publish.error);
   const nextNumber = (template.versions[0]?.versionNumber ?? 0) + 1;
 
   const openVersion = (versionId: number) => {

@@ -1,0 +1,199 @@
+import { fireEvent, screen, within } from '@testing-library/react';
+import { describe, expect, it } from 'vitest';
+import {
+  importRequestSchema,
+  importResponseSchema,
+  type PreviewCell,
+  previewResponseSchema,
+} from '../../../../shared/api/uploads.ts';
+import { json, mockApi, refusal, setCsrfToken } from '../../../testing/api-mock.ts';
+import { renderWithQueries } from '../../../testing/render.tsx';
+import { MappingWorkbench } from './mapping-workbench.tsx';
+
+const text = (value: string): PreviewCell => ({ text: value, kind: 'text' });
+const number = (value: number): PreviewCell => ({ text: String(value), kind: 'number' });
+
+/** A long-term stability export: two batches at 25 °C, assay in % of label claim. */
+const sheet = {
+  name: 'Long-term',
+  rowCount: 7,
+  columnCount: 4,
+  rows: [
+    [text('Batch'), text('Temperature (°C)'), text('Month'), text('Assay (%)')],
+    [text('B001'), number(25), number(0), number(100.1)],
+    [text('B001'), number(25), number(3), number(99.2)],
+    [text('B001'), number(25), number(6), number(98.4)],
+    [text('B002'), number(25), number(0), number(99.8)],
+    [text('B002'), number(25), number(3), number(99.0)],
+    [text('B002'), number(25), number(6), number(98.1)],
+  ],
+  merges: [],
+  headerGuess: 1,
+};
+
+const upload = {
+  id: 41,
+  studyId: 7,
+  fileName: 'long-term.xlsx',
+  format: 'xlsx',
+  sizeBytes: 9_812,
+  sha256: 'a'.repeat(64),
+};
+
+const previewWithoutCheck = previewResponseSchema.parse({
+  upload,
+  sheets: [sheet],
+  savedMappings: [],
+  check: null,
+});
+const previewChecked = previewResponseSchema.parse({
+  upload,
+  sheets: [sheet],
+  savedMappings: [],
+  check: { ok: true, problems: [], warnings: [], replicateRows: [], seriesCount: 2, pointCount: 6 },
+});
+
+const imported = importResponseSchema.parse({
+  datasetId: 93,
+  sha256: 'b'.repeat(64),
+  pointCount: 6,
+  series: [
+    {
+      id: 'B001 @ 25 °C',
+      batch: 'B001',
+      temperatureC: 25,
+      points: 3,
+      distinctTimes: 3,
+      firstTime: 0,
+      lastTime: 6,
+      timeUnit: 'month',
+      valueUnit: '%',
+    },
+    {
+      id: 'B002 @ 25 °C',
+      batch: 'B002',
+      temperatureC: 25,
+      points: 3,
+      distinctTimes: 3,
+      firstTime: 0,
+      lastTime: 6,
+      timeUnit: 'month',
+      valueUnit: '%',
+    },
+  ],
+  warnings: [],
+  savedMappingId: null,
+});
+
+const previewRoute = {
+  path: '/api/uploads/41/preview',
+  respond: ({ url }: { url: URL }) =>
+    json(200, url.searchParams.has('mapping') ? previewChecked : previewWithoutCheck),
+};
+
+/** The whole-sheet check waits for the form to settle (350 ms) before it asks the server. */
+const AFTER_CHECK = { timeout: 3_000 };
+
+function renderWorkbench() {
+  return renderWithQueries(<MappingWorkbench uploadId="41" studyId="7" valueUnit="%" />);
+}
+
+describe('the mapping workbench', () => {
+  it('guesses the mapping from the headers, checks the whole sheet and imports it', async () => {
+    setCsrfToken('token-from-the-page');
+    const requests = mockApi([
+      previewRoute,
+      { method: 'POST', path: '/api/uploads/41/import', respond: () => json(201, imported) },
+    ]);
+    renderWorkbench();
+
+    expect(screen.getByText('Reading the file…')).toBeDefined();
+    const status = await screen.findByText(
+      /The whole sheet reads cleanly: 6 points in 2 series/,
+      {},
+      AFTER_CHECK,
+    );
+    expect(status.getAttribute('role')).toBe('status');
+    expect((screen.getByLabelText('Time column') as HTMLSelectElement).value).toBe('Month');
+    expect((screen.getByLabelText('Value column') as HTMLSelectElement).value).toBe('Assay (%)');
+    expect((screen.getByLabelText('Unit of time') as HTMLSelectElement).value).toBe('month');
+    const table = screen.getByRole('table', { name: 'First rows of sheet Long-term' });
+    expect(within(table).getByText('header')).toBeDefined();
+
+    fireEvent.click(screen.getByRole('button', { name: 'Import as dataset' }));
+
+    expect(await screen.findByRole('heading', { name: 'Dataset #93 stored' })).toBeDefined();
+    expect(screen.getByRole('cell', { name: 'B002 @ 25 °C' })).toBeDefined();
+    expect(screen.getByRole('link', { name: 'Back to the study' }).getAttribute('href')).toBe('/studies/7');
+    const post = requests.find((request) => request.method === 'POST');
+    expect(post?.headers.get('x-csrf-token')).toBe('token-from-the-page');
+    expect(post?.headers.get('content-type')).toBe('application/json');
+    const sent = importRequestSchema.parse(JSON.parse(String(post?.body)));
+    expect(sent.mapping).toMatchObject({
+      sheet: 'Long-term',
+      timeColumn: 'Month',
+      valueColumn: 'Assay (%)',
+      seriesColumn: 'Batch',
+      temperatureColumn: 'Temperature (°C)',
+    });
+  });
+
+  it('shows the field error beside the field when a required column is unchosen', async () => {
+    mockApi([previewRoute]);
+    renderWorkbench();
+    const timeColumn = await screen.findByLabelText('Time column');
+
+    fireEvent.change(timeColumn, { target: { value: '' } });
+
+    expect(screen.getByText('Choose the time column.').id).toBe('map-timeColumn-error');
+    expect(timeColumn.getAttribute('aria-invalid')).toBe('true');
+    expect(screen.getByText(/Choose at least the time column/)).toBeDefined();
+  });
+
+  it('lists every problem of a refused import with its cell, and marks the cell', async () => {
+    mockApi([
+      previewRoute,
+      {
+        method: 'POST',
+        path: '/api/uploads/41/import',
+        respond: () =>
+          refusal(
+            422,
+            'The file has 1 problem with this mapping; nothing was stored. Fix the cells listed and import again.',
+            [
+              {
+                where: "'Long-term'!D4",
+                message: 'The value is not a number.',
+                text: "'Long-term'!D4: The value is not a number.",
+              },
+            ],
+          ),
+      },
+    ]);
+    renderWorkbench();
+    await screen.findByText(/The whole sheet reads cleanly/, {}, AFTER_CHECK);
+
+    fireEvent.click(screen.getByRole('button', { name: 'Import as dataset' }));
+
+    const alert = await screen.findByRole('alert');
+    expect(alert.textContent).toContain('The file has 1 problem with this mapping; nothing was stored.');
+    expect(within(alert).getByText("'Long-term'!D4:")).toBeDefined();
+    expect(within(alert).getByText('The value is not a number.')).toBeDefined();
+    expect(screen.getByTitle('The value is not a number.').textContent).toBe('98.4');
+  });
+
+  it('says why when the file cannot be previewed', async () => {
+    mockApi([
+      {
+        path: '/api/uploads/41/preview',
+        respond: () => refusal(404, 'There is no upload 41 in your organisation.'),
+      },
+    ]);
+    renderWorkbench();
+
+    const alert = await screen.findByRole('alert');
+    expect(alert.textContent).toBe(
+      'The file could not be previewed: There is no upload 41 in your organisation.',
+    );
+  });
+});
