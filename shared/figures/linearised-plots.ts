@@ -17,7 +17,8 @@ import { formatSignificant } from './significant-figures.ts';
  *
  * Why: chemists look at these first; drawn together they show at a glance which transform
  * straightens the data (and, with little conversion, that none does better than the others).
- * The order decision does not rest on them (DOMAIN.md §3.1); the screen says so beside them.
+ * The order decision does not rest on them (Motulsky & Christopoulos 2003, "Avoid Scatchard,
+ * Lineweaver-Burk and similar transforms"; docs/methods.md#straight-line-plots); the screen says so.
  *
  * Formula in words: each panel plots the transformed used points and the line
  * intercept + slope·t from the engine's `linearized` fits, drawn between the first and last time.

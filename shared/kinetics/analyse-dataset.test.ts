@@ -18,8 +18,9 @@ function secondOrderSeries(temperatureC: number, k: number): Series {
 }
 
 // 2 HI → H2 + I2: k at 283, 356, 393, 427, 508 °C from McMurry & Fay, Chemistry, Worked Example
-// 12.13 (DOMAIN.md §4.5). OLS of ln k on 1/T gives Ea = 186.3 kJ/mol, 95 % CI [176.6, 196.0],
-// ln A = 25.311 and k(293 °C) = 6.35e-7 M⁻¹ s⁻¹ (DOMAIN.md §4.5, "computed here", numpy).
+// 12.13. OLS of ln k on 1/T gives Ea = 186.3 kJ/mol, 95 % CI [176.6, 196.0], ln A = 25.311 and
+// k(293 °C) = 6.35e-7 M⁻¹ s⁻¹ (computed independently with numpy, not published;
+// docs/methods.md#worked-examples).
 const HYDROGEN_IODIDE: [number, number][] = [
   [283, 3.52e-7],
   [356, 3.02e-5],
@@ -28,7 +29,7 @@ const HYDROGEN_IODIDE: [number, number][] = [
   [508, 3.95e-2],
 ];
 
-// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930, DOMAIN.md §4.1): NLS first-order k = 6.213e-4 1/s.
+// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930): NLS first-order k = 6.213e-4 1/s (computed with scipy).
 const DINITROGEN_PENTOXIDE: Series = {
   id: 'N2O5',
   timeUnit: 's',

@@ -28,7 +28,8 @@ import { ENGINE_VERSION } from './version.ts';
  *   a standard error is missing), so each temperature counts once in the line. The fit is
  *   unweighted unless `arrheniusWeighting: 'inverse-variance'`.
  * - k at `storageTemperatureC` by `predictRateConstant`; for first order also t90 = ln(10/9)/k
- *   and the half-life ln 2/k, with the interval ends of k transformed (DOMAIN.md §3.4).
+ *   and the half-life ln 2/k, with the interval ends of k transformed (a monotone function of one
+ *   parameter; docs/methods.md#rate-constant-at-the-storage-temperature).
  * - Q1E (when a limit is given): the batches of each temperature (one group when no temperature
  *   is known), on the scale of the analyst's order; else of the order every batch of that
  *   condition named; else linear on the values (zero order), the Q1E default. The direction is
@@ -263,7 +264,7 @@ function datasetArrhenius(
       return base;
     }
     const prediction = predicted.value;
-    // A monotone decreasing function of k: the interval ends of k swap (DOMAIN.md §3.4).
+    // A monotone decreasing function of k: the interval ends of k swap (docs/methods.md#arrhenius).
     const interval = prediction.confidenceInterval;
     const derived = (constant: number) => ({
       estimate: constant / prediction.rateConstant,

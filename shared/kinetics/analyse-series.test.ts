@@ -3,7 +3,8 @@ import { analyseSeries } from './analyse-series.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import type { Observation, Series } from './types.ts';
 
-// DOMAIN.md §4.1: N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930 via physical-chemistry texts).
+// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930 via physical-chemistry texts;
+// docs/methods.md#worked-examples).
 const n2o5Times = [0, 184, 319, 526, 867, 1198, 1877, 2315, 3144];
 const n2o5Values = [2.33, 2.08, 1.91, 1.67, 1.36, 1.11, 0.72, 0.55, 0.34];
 const n2o5: Series = {
@@ -30,7 +31,7 @@ function allFinite(value: unknown): boolean {
   return true;
 }
 
-describe('analyseSeries on N2O5 (DOMAIN.md §4.1)', () => {
+describe('analyseSeries on N2O5 (Eyring & Daniels 1930 N2O5 data (from memory))', () => {
   const analysis = analyseSeries(n2o5, { lowerLimit: 1, predictAt: [1000, 4000] });
 
   it('first order, k = 6.213e-4 1/s with interval [6.153, 6.274]e-4, t½ = 1116 s [1105, 1127] (NLS values of §4.1)', () => {
@@ -44,7 +45,7 @@ describe('analyseSeries on N2O5 (DOMAIN.md §4.1)', () => {
     expect(analysis.halfLife!.ci95![0]).toBeCloseTo(1105, -1);
     expect(analysis.halfLife!.ci95![1]).toBeCloseTo(1127, -1);
     expect(analysis.halfLife!.unit).toBe('s');
-    // t90 = ln(10/9)/k (DOMAIN.md §1.8).
+    // t90 = ln(10/9)/k (Bhangare et al., J. Anal. Sci. Technol. 2022, Table 2).
     expect(analysis.t90!.estimate!).toBeCloseTo(Math.log(10 / 9) / first.k!, 9);
   });
 

@@ -29,14 +29,15 @@ import type { ErrorModel, IntegerOrder, Series } from './types.ts';
  * (`fit-rate-law.ts`); decide the order (`select-order.ts`); report the derived figures of the named order,
  * or of the analyst's order when `options.order` is set (as is done in ICH shelf-life work), else none.
  *
- * Reference: DOMAIN.md §3 (method) and §5 (laws); each step's file names its own sources.
+ * Reference: docs/methods.md (method, laws and sources); each step's file names its own sources.
  *
  * Throws `KineticsError`: 'too-few-points' (fewer than 3 usable points), 'single-time' (all at one time),
  * 'invalid-input' (non-finite numbers, confidence level outside (0, 1), exclusion without reason),
  * 'non-positive-value' (caller asked for proportional error with a value ≤ 0). A law that cannot be fitted
  * is reported as not applicable with its reason instead.
  *
- * Example: the N2O5 series of DOMAIN.md §4.1 gives selectedOrder 1, k = 6.213e-4 1/s, half-life 1116 s.
+ * Example: the N2O5 series of Eyring & Daniels (1930; docs/methods.md#worked-examples) gives
+ * selectedOrder 1, k = 6.213e-4 1/s, half-life 1116 s.
  */
 
 export interface SeriesOptions {

@@ -8,7 +8,7 @@ import {
 import type { Series } from './types.ts';
 import { ENGINE_VERSION } from './version.ts';
 
-// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930; DOMAIN.md §4.1), one point excluded by the analyst.
+// N2O5 in CCl4 at 45 °C (Eyring & Daniels 1930; docs/methods.md#worked-examples), one point excluded.
 const series: Series = {
   id: 'N2O5',
   timeUnit: 's',
@@ -72,7 +72,7 @@ describe('methodStatement', () => {
       perSeries: [{ id: 'N2O5', errorModel: 'proportional' }],
     });
     expect(statement.text).toContain('Two-sided 90 % intervals');
-    // ICH Q1E App. B.2 / Q1A(R2) 2.2.9: poolability at significance 0.25 (DOMAIN.md §1.6).
+    // ICH Q1E App. B.2 / Q1A(R2) 2.2.9: poolability at significance 0.25 (docs/methods.md#batch-poolability).
     expect(statement.shelfLife).toContain('significance 0.25');
     expect(statement.shelfLife).toContain('regressed on ln(value) (the analyst fixed first order)');
   });

@@ -19,10 +19,11 @@ import { DAYS_PER_MONTH, DAYS_PER_YEAR } from './units.ts';
  *
  * Why: ICH Q1E 2.2 asks that "the procedure used and the assumptions underlying the model should be
  * stated and justified", and EU GMP Annex 11 / 21 CFR 11.10(e) expect every exclusion and choice to
- * stay visible (DOMAIN.md §1.5, §2). So the statement lists the data used and excluded (with
- * reasons and cell references), transformations, models, error model, the order-selection rule
- * with its thresholds (read from the engine's own constants, so the text cannot drift from the
- * code), the confidence level, the temperature and shelf-life steps, and the engine version.
+ * stay visible (Annex 11 §9, audit trails; docs/methods.md#method-statement). So the statement
+ * lists the data used and excluded (with reasons and cell references), transformations, models,
+ * error model, the order-selection rule with its thresholds (read from the engine's own
+ * constants, so the text cannot drift from the code), the confidence level, the temperature and
+ * shelf-life steps, and the engine version.
  *
  * Throws nothing.
  *

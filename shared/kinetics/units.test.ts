@@ -63,7 +63,7 @@ describe('temperature', () => {
 });
 
 describe('rate constant unit', () => {
-  // DOMAIN.md §5: k units M s⁻¹ (order 0), s⁻¹ (order 1), M⁻¹ s⁻¹ (order 2) — OpenStax Chemistry §12.4.
+  // k units M s⁻¹ (order 0), s⁻¹ (order 1), M⁻¹ s⁻¹ (order 2) — OpenStax Chemistry 2e §12.4.
   it('is valueUnit^(1−n)/timeUnit', () => {
     expect(rateConstantUnit(0, 'M', 's')).toBe('M/s');
     expect(rateConstantUnit(1, 'M', 's')).toBe('1/s');

@@ -4,7 +4,8 @@
  * Stability data arrive in whatever unit the protocol used (minutes for a spectrophotometer run,
  * months for a long-term study), so the engine names a small set of time units, reads the common
  * spellings of each, converts between them with fixed factors, and writes the unit of k for a
- * reaction of order n as valueUnit^(1 − n) / timeUnit (DOMAIN.md §5, table "k units").
+ * reaction of order n as valueUnit^(1 − n) / timeUnit (OpenStax Chemistry 2e §12.4 "Integrated Rate
+ * Laws"; see docs/methods.md#conventions).
  *
  * Convention for months and years (stated in every method statement):
  * - For converting a number from one unit to another, 1 year = 365.25 d (the Julian year, the

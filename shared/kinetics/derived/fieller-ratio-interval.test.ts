@@ -3,7 +3,7 @@ import { fiellerRatioInterval } from './fieller-ratio-interval.ts';
 
 /**
  * Independent reference: the Fieller set {θ : (a − θb)² ≤ q²(Vaa − 2θVab + θ²Vbb)} found by bisection on
- * each side of a/b (Fieller 1954, as stated in DOMAIN.md §3.4).
+ * each side of a/b (E. C. Fieller, J. R. Stat. Soc. B 16 (1954) 175–185).
  */
 function bisectedLimits(
   a: number,
@@ -30,7 +30,7 @@ function bisectedLimits(
   return [edge(-1), edge(1)];
 }
 
-describe('fiellerRatioInterval (Fieller 1940/1954; DOMAIN.md §3.4)', () => {
+describe('fiellerRatioInterval (Fieller 1940/1954; Fieller 1954, J. R. Stat. Soc. B 16:175)', () => {
   it('doc example: a = 10 exact, b = 2 ± 0.1, q = 2 gives the endpoint transform [10/2.2, 10/1.8]', () => {
     const result = fiellerRatioInterval(10, 2, 0, 0.01, 0, 2);
     expect(result.estimate).toBe(5);
@@ -52,7 +52,7 @@ describe('fiellerRatioInterval (Fieller 1940/1954; DOMAIN.md §3.4)', () => {
     }
   });
 
-  it('is at least as wide as the delta-method interval (metricgate Fieller notes, DOMAIN.md §3.4)', () => {
+  it('is at least as wide as the delta-method interval (metricgate Fieller notes, Fieller 1954, J. R. Stat. Soc. B 16:175)', () => {
     const [a, b, vaa, vbb, vab, q] = [5, 0.8, 0.04, 0.01, 0.012, 2.306];
     const theta = a / b;
     const deltaHalf = (q * Math.sqrt(vaa - 2 * theta * vab + theta * theta * vbb)) / Math.abs(b);

@@ -6,7 +6,7 @@
  * denominator is uncertain. Fieller's interval is exact for normal estimates, is never narrower than
  * the delta interval, and is honest about the case that matters: when the denominator is not
  * significantly different from zero the interval is unbounded, and is then reported as "not
- * estimable" rather than as a huge number (DOMAIN.md §3.4).
+ * estimable" rather than as a huge number (Fieller 1954; docs/methods.md#half-life-t90-and-time-to-a-limit).
  *
  * Formula in words: the interval is the set of θ with (a − θ·b)² ≤ q²·(Vaa − 2θ·Vab + θ²·Vbb),
  * q the Student-t quantile. That is the quadratic θ²(b² − q²Vbb) − 2θ(ab − q²Vab) + (a² − q²Vaa) ≤ 0,

@@ -8,13 +8,14 @@ import { type Level, timeToLevel } from './time-to-level.ts';
  * AICc and Akaike weight, and the half-life and t90 the law implies.
  *
  * Formula in words: parameter intervals are estimate ± t·SE with Student t on the fit's residual degrees of
- * freedom (DOMAIN.md §3.4); k's unit is valueUnit^(1−n)/timeUnit (DOMAIN.md §5); half-life and t90 as in
- * `time-to-level.ts`. A time beyond the last measurement is flagged `beyondObservedTime`.
+ * freedom (Bates & Watts 1988 §2.3; docs/methods.md#parameter-intervals); k's unit is
+ * valueUnit^(1−n)/timeUnit (OpenStax Chemistry 2e §12.4; docs/methods.md#conventions); half-life and
+ * t90 as in `time-to-level.ts`. A time beyond the last measurement is flagged `beyondObservedTime`.
  *
  * Throws nothing for a fitted law; `KineticsError('invalid-input')` for a confidence level outside (0, 1).
  *
  * Example: a first-order fit k = 6.213e-4 (SE 2.57e-6, 7 df) in s gives kUnit '1/s' and kCi95
- * [6.152e-4, 6.274e-4] (DOMAIN.md §4.1).
+ * [6.152e-4, 6.274e-4] (N2O5 data of Eyring & Daniels 1930; docs/methods.md#worked-examples).
  */
 
 export interface DerivedFigure {

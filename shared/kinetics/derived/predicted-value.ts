@@ -15,7 +15,9 @@ import { prepareRateLaw, rateLawAt } from '../order/integrated-rate-law.ts';
  * limits exponentiated, so they stay positive and asymmetric. q is the Student-t quantile on the fit's
  * residual degrees of freedom. A zero-order curve that has reached 0 predicts exactly 0 (no interval width).
  *
- * Reference: DOMAIN.md §3.4 (delta method) and §3.5 (mean-curve CI versus prediction interval);
+ * Reference: delta method for a function of the parameters (Bates & Watts 1988 §2.3, from memory);
+ * mean-curve confidence interval versus prediction interval,
+ * docs/methods.md#predicted-values-and-confidence-band;
  * NIST/SEMATECH e-Handbook §4.5.2.2 (https://www.itl.nist.gov/div898/handbook/pmd/section5/pmd522.htm).
  *
  * Throws `KineticsError('invalid-input')` for a confidence level outside (0, 1). A time at which the law is

@@ -9,17 +9,20 @@ import { fiellerRatioInterval } from './fieller-ratio-interval.ts';
  * Convention −dC/dt = k·Cⁿ. Formula in words, with r = ln(C0/L) for the level L:
  * - order 0: t = (C0 − L)/k; order 1: t = ln(C0/L)/k; order 2: t = (1/L − 1/C0)/k;
  *   for a fraction p of C0 these are (1 − p)·C0/k, ln(1/p)/k (t½ = ln 2/k, t90 = ln(10/9)/k) and
- *   (1/p − 1)/(C0·k) (t½ = 1/(k·C0), t90 = 1/(9·k·C0)) — DOMAIN.md §5 and §1.8 (JAST 2022 Table 2,
- *   with its second-order t90 erratum);
+ *   (1/p − 1)/(C0·k) (t½ = 1/(k·C0), t90 = 1/(9·k·C0)) — OpenStax Chemistry 2e §12.4; Bhangare et al.,
+ *   J. Anal. Sci. Technol. (2022), doi 10.1186/s40543-022-00317-6, Table 2, whose second-order t90
+ *   "(0.11/k)[A]₀" is corrected here to 1/(9·k·C0) (from 1/(0.9·C0) − 1/C0 = k·t);
  * - general n (m = n − 1): t = C0^(−m)·(e^(m·r) − 1)/(m·k), which tends to r/k as n → 1
- *   (DOMAIN.md §5: t½ = (2^(n−1) − 1)/((n − 1)·k·C0^(n−1))).
+ *   (t½ = (2^(n−1) − 1)/((n − 1)·k·C0^(n−1)), by integrating −dC/dt = k·Cⁿ; Atkins, Physical Chemistry,
+ *   from memory).
  * Interval: each integer-order time is a ratio a(C0)/k, so Fieller's interval is used with
  * Var a = a'(C0)²·Var C0 and Cov(a, k) = a'(C0)·Cov(C0, k); where a does not depend on C0 (first-order
  * t½, t90) this is exactly the endpoint transform of k's interval. For the free order the delta method
  * is applied to ln t (three parameters, numerical gradient) and the limits exponentiated. Student t on
  * the fit's residual degrees of freedom. A lower limit below 0 is reported as 0 (time cannot be negative).
  *
- * Reference: DOMAIN.md §3.4 (delta method and Fieller's theorem for ratios).
+ * Reference: E. C. Fieller, J. R. Stat. Soc. B 16 (1954) 175–185 (ratios); delta method, Bates & Watts
+ * 1988 §2.3 (from memory); see docs/methods.md#half-life-t90-and-time-to-a-limit.
  *
  * Throws `KineticsError('invalid-input')` for a confidence level outside (0, 1) (from the t quantile).
  * A level the curve never reaches returns `estimate: null` with the reason; an interval that is unbounded

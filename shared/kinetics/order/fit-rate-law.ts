@@ -8,7 +8,8 @@ import { invertSmallSymmetric, solveSmallSymmetric } from './small-cholesky.ts';
  * by nonlinear least squares (Levenberg–Marquardt), with analytic derivatives.
  *
  * Why: fitting the untransformed values keeps the measurement error where it is, so the estimates
- * and their standard errors mean what they say (DOMAIN.md §3.1, §3.3; Motulsky & Christopoulos 2003).
+ * and their standard errors mean what they say (Motulsky & Christopoulos 2003, "Avoid Scatchard,
+ * Lineweaver-Burk and similar transforms"; docs/methods.md#rate-law-fits).
  *
  * Error models:
  * - 'constant' (same SD at every value): minimise Σ (yᵢ − C(tᵢ))², unweighted.

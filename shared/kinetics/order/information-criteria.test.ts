@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { extraSumOfSquaresFTest } from './extra-sum-of-squares-f-test.ts';
 import { aicc, akaikeWeights } from './information-criteria.ts';
 
-describe('aicc and akaikeWeights (Burnham & Anderson 2002, as in DOMAIN.md §3.3)', () => {
+describe('aicc and akaikeWeights (Burnham & Anderson 2002, as in Burnham & Anderson 2002, Model Selection and Multimodel Inference)', () => {
   it('AICc = −2 logL + 2K + 2K(K+1)/(N − K − 1) with K = parameters + 1', () => {
     // Two-parameter law, N = 9, logL = 34.465: K = 3, AICc = −68.93 + 6 + 24/5.
     expect(aicc(34.465, 2, 9)!).toBeCloseTo(-68.93 + 6 + 24 / 5, 10);

@@ -4,7 +4,7 @@
  *
  * Why: the zero-, first- and second-order laws all have two parameters and are not nested, so an F test
  * cannot compare them; AICc can, and Akaike weights turn AICc differences into the relative support of
- * each model (DOMAIN.md §3.3).
+ * each model (docs/methods.md#aicc-and-akaike-weights).
  *
  * Formula in words: AIC = −2·(log-likelihood) + 2K, with K the number of fitted parameters including the
  * error SD; AICc = AIC + 2K(K + 1)/(N − K − 1). For least squares −2·logL = N·ln(2π·RSS/N) + N, plus
@@ -12,7 +12,7 @@
  * Δᵢ = AICcᵢ − min AICc, wᵢ = exp(−Δᵢ/2) / Σⱼ exp(−Δⱼ/2).
  *
  * Reference: K. P. Burnham & D. R. Anderson, Model Selection and Multimodel Inference, 2nd ed. (2002),
- * §2.4 and §2.9 (from memory); AICc correction as in DOMAIN.md §3.3.
+ * §2.4 (AICc) and §2.9 (Akaike weights) (from memory).
  *
  * Throws nothing: AICc is undefined when N − K − 1 ≤ 0 and is then returned as null; null entries get a
  * null weight and take no part in the normalisation.

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { initialRateLawAt, prepareRateLaw, rateLawAt, rateLawValue } from './integrated-rate-law.ts';
 
-// Closed forms of the integrated laws: DOMAIN.md §5 table (OpenStax Chemistry §12.4 "Integrated Rate Laws";
-// the n-th-order law from memory there, checked by derivation). Convention −dC/dt = k·Cⁿ.
+// Closed forms of the integrated laws: OpenStax Chemistry 2e §12.4 "Integrated Rate Laws"; the n-th-order
+// law (Atkins; Laidler, from memory) checked by derivation. Convention −dC/dt = k·Cⁿ.
 const closedForm = {
   zero: (c0: number, k: number, t: number) => Math.max(0, c0 - k * t),
   first: (c0: number, k: number, t: number) => c0 * Math.exp(-k * t),
@@ -11,7 +11,7 @@ const closedForm = {
     (c0 ** (1 - n) + (n - 1) * k * t) ** (1 / (1 - n)),
 };
 
-describe('rateLawValue against the closed forms of DOMAIN.md §5', () => {
+describe('rateLawValue against the closed forms of integrated rate laws, OpenStax Chemistry 2e §12.4', () => {
   it('orders 0, 1, 2 (fast paths) and the general law at n = 0, 2, 0.5, 1.5, 2.7 agree to 1e-12', () => {
     for (const t of [0, 0.5, 3, 10]) {
       expect(rateLawValue(0, 100, 4, 0, t, null)).toBeCloseTo(closedForm.zero(100, 4, t), 12);
@@ -26,14 +26,14 @@ describe('rateLawValue against the closed forms of DOMAIN.md §5', () => {
     }
   });
 
-  it('the general law tends to first order as n → 1 without losing digits (L’Hôpital limit, DOMAIN.md §5)', () => {
+  it('the general law tends to first order as n → 1 without losing digits (L’Hôpital limit, integrated rate laws, OpenStax Chemistry 2e §12.4)', () => {
     for (const n of [1, 1 + 1e-9, 1 - 1e-9, 1 + 1e-6]) {
       const value = rateLawValue('n', 100, 0.1, n, 10, null);
       expect(Math.abs(value / closedForm.first(100, 0.1, 10) - 1)).toBeLessThan(Math.abs(n - 1) * 10 + 1e-14);
     }
   });
 
-  it('zero order reaches 0 at t = C0/k and stays there; order 0.5 likewise at C0^(1−n)/((1−n)k) (Peleg, DOMAIN.md §5)', () => {
+  it('zero order reaches 0 at t = C0/k and stays there; order 0.5 likewise at C0^(1−n)/((1−n)k) (Peleg, integrated rate laws, OpenStax Chemistry 2e §12.4)', () => {
     expect(rateLawValue(0, 100, 10, 0, 10, null)).toBe(0);
     expect(rateLawValue(0, 100, 10, 0, 25, null)).toBe(0);
     const end = 100 ** 0.5 / (0.5 * 1);

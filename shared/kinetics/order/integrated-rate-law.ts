@@ -3,7 +3,7 @@
  * parameters (initial value C0, rate constant k, order n), evaluated at one time.
  *
  * Convention (stated in every method statement): the rate law is −dC/dt = k·Cⁿ, so k is positive
- * for a value that falls, and its unit is valueUnit^(1−n)/timeUnit (DOMAIN.md §5).
+ * for a value that falls, and its unit is valueUnit^(1−n)/timeUnit (docs/methods.md#conventions).
  *
  * Formula in words:
  * - order 0: C = C0 − k·t until the value reaches 0 at t = C0/k, and 0 after that;
@@ -18,7 +18,8 @@
  *   ∂/∂n = −(u²·q(x) + u·ln C0)/(1 + x) with q(x) = (x − (1 + x)·ln(1 + x))/x², whose series
  *   −1/2 + x/6 − x²/12 + x³/20 − … is used for small x. ∂C/∂θ = C·∂ln C/∂θ.
  *
- * Reference: integrated laws and their domain, DOMAIN.md §5 (OpenStax Chemistry §12.4; Peleg,
+ * Reference: integrated laws and their domain: OpenStax Chemistry 2e §12.4 (orders 0–2); the n-th-order
+ * law as in Atkins, Physical Chemistry (from memory); the finite end of orders below 1 (M. Peleg,
  * Wolfram Demonstrations "Kinetic Order of Degradation Reactions"); derivatives by differentiation.
  *
  * Throws nothing; an infeasible parameter set returns NaN, which the fitter treats as "step rejected"

@@ -2,8 +2,9 @@ import { linearRegression, rSquared } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { linearisedFits } from './linearised-fits.ts';
 
-// DOMAIN.md §4.1 (N2O5 in CCl4, 45 °C), §4.2 (N2O5 gas, 318 K, NCERT-type exercise via wiredfaculty.com),
-// §4.3 (NO2, 300 °C, Brown et al.); values "computed here" in DOMAIN.md are numpy/scipy least squares.
+// Worked examples (docs/methods.md#worked-examples): N2O5 in CCl4, 45 °C (Eyring & Daniels 1930); N2O5 gas,
+// 318 K (NCERT-type exercise via wiredfaculty.com); NO2, 300 °C (Brown et al., from memory). Check values
+// not printed in those sources were computed independently with numpy/scipy least squares.
 const n2o5 = {
   times: [0, 184, 319, 526, 867, 1198, 1877, 2315, 3144],
   values: [2.33, 2.08, 1.91, 1.67, 1.36, 1.11, 0.72, 0.55, 0.34],
@@ -14,7 +15,7 @@ const n2o5Gas = {
 };
 const no2 = { times: [0, 50, 100, 200, 300], values: [0.01, 0.00787, 0.00649, 0.00481, 0.0038] };
 
-describe('linearisedFits against DOMAIN.md worked examples', () => {
+describe('linearisedFits against textbook worked examples: Eyring & Daniels 1930 N2O5, Brown et al. NO2 (from memory)', () => {
   it('N2O5/CCl4: ln C plot k = 6.161e-4 /s (se 3.3e-6), C0 = 2.319, R² = 0.99980; R² zero 0.93712, second 0.93963 (§4.1)', () => {
     const [zero, first, second] = linearisedFits(n2o5.times, n2o5.values);
     expect(first.k! / 6.161e-4).toBeCloseTo(1, 3);

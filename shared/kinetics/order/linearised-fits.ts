@@ -7,7 +7,8 @@ import { transformedStraightLine } from './transformed-straight-line.ts';
  *
  * Why: they are what every chemist checks first and what reports show next to the nonlinear fits;
  * the engine also uses them as starting values. They are not the basis of the order decision, because
- * the three R² come from three different weightings of the error (DOMAIN.md §3.1).
+ * the three R² come from three different weightings of the error (Motulsky & Christopoulos 2003;
+ * docs/methods.md#straight-line-plots).
  *
  * Convention −dC/dt = k·Cⁿ. Formula in words:
  * - zero order: value = C0 − k·t, so k = −slope and C0 = intercept;
@@ -18,7 +19,7 @@ import { transformedStraightLine } from './transformed-straight-line.ts';
  * with its numbers still reported. ln and 1/value need positive values: a non-positive value makes those
  * plots not applicable, with a reason naming the point.
  *
- * Reference: DOMAIN.md §5 table (OpenStax Chemistry §12.4 "Integrated Rate Laws").
+ * Reference: OpenStax Chemistry 2e §12.4 "Integrated Rate Laws".
  *
  * Throws `KineticsError('too-few-points' | 'single-time')` from the straight-line fit of the values
  * themselves (fewer than 3 points, one time only); callers pass finite numbers (`prepare-series.ts`).

@@ -3,7 +3,11 @@
  * statement can quote them and a change to one is reviewed on its own.
  */
 
-/** Fraction of the initial value that must have reacted before an order is named (DOMAIN.md §3.2: below ~30 % the orders are indistinguishable within assay error). */
+/**
+ * Fraction of the initial value that must have reacted before an order is named: below ~30 % the orders are
+ * indistinguishable within assay error (the project's own simulation, docs/methods.md#order-decision; the
+ * textbook warning in Connors, Amidon & Stella, Chemical Stability of Pharmaceuticals, from memory).
+ */
 export const MIN_FRACTION_REACTED = 0.3;
 /** AICc lead over every other integer order needed to name one (Burnham & Anderson 2002: Δ > 10 means essentially no support; from memory). */
 export const DECISIVE_DELTA_AICC = 10;

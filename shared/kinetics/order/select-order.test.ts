@@ -27,7 +27,7 @@ function scatter(count: number, sd: number, seed = 2024): number[] {
 }
 
 describe('selectOrder names an order only on decisive evidence', () => {
-  it('N2O5 in CCl4 (DOMAIN.md §4.1, 86 % reacted): first order, with ΔAICc ≥ the threshold', () => {
+  it('N2O5 in CCl4 (Eyring & Daniels 1930 N2O5 data, from memory; 86 % reacted): first order, with ΔAICc ≥ the threshold', () => {
     const analysis = analyseSeries(
       series(
         [0, 184, 319, 526, 867, 1198, 1877, 2315, 3144],
@@ -40,14 +40,14 @@ describe('selectOrder names an order only on decisive evidence', () => {
     expect(analysis.verdict).toMatch(/86 % of the initial value has reacted/);
   });
 
-  it('NO2 at 300 °C (DOMAIN.md §4.3, 62 % reacted, 5 points): second order', () => {
+  it('NO2 at 300 °C (Brown et al., Chemistry: The Central Science, NO2 sample exercise, from memory; 62 % reacted, 5 points): second order', () => {
     const analysis = analyseSeries(series([0, 50, 100, 200, 300], [0.01, 0.00787, 0.00649, 0.00481, 0.0038]));
     expect(analysis.selectedOrder).toBe(2);
     // Five points leave the free-order law (K = 4) without an AICc: N − K − 1 = 0.
     expect(analysis.selection.aicc[3]).toBeNull();
   });
 
-  it('abstains at low conversion, saying how little has reacted (DOMAIN.md §3.2: ≤ 20 % is close to a coin toss)', () => {
+  it('abstains at low conversion, saying how little has reacted (Connors, Amidon & Stella, Chemical Stability of Pharmaceuticals, from memory: ≤ 20 % is close to a coin toss)', () => {
     const times = [0, 1, 2, 3, 4, 5, 6, 7, 8];
     const noise = scatter(9, 0.3);
     const values = times.map((t, i) => 100 * Math.exp(-0.015 * t) + noise[i]!);
@@ -94,7 +94,7 @@ describe('selectOrder names an order only on decisive evidence', () => {
     expect(analysis.verdict).toMatch(/do not fall over time/);
   });
 
-  it('names zero order for a line to 90 % conversion with 0.5 % noise (synthetic, known truth; DOMAIN.md §4.6 gap)', () => {
+  it('names zero order for a line to 90 % conversion with 0.5 % noise (synthetic, known truth; no citable zero-order data set with a published k: synthetic data with known truth)', () => {
     const times = Array.from({ length: 10 }, (_, i) => i);
     const noise = scatter(10, 0.5, 3);
     const analysis = analyseSeries(

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { linearisedFits } from './linearised-fits.ts';
 import { startingValues } from './starting-values.ts';
 
-describe('startingValues (from the linear plots of DOMAIN.md §5)', () => {
+describe('startingValues (from the linear plots of integrated rate laws, OpenStax Chemistry 2e §12.4)', () => {
   it('uses each order’s own plot when it exists', () => {
     const times = [0, 1, 2, 3];
     const values = [100, 50, 25, 12.5];

@@ -15,7 +15,8 @@ import type { LinearisedFit } from './linearised-fits.ts';
  * C0 = its intercept (or the largest value if that is not positive) and k = k0/C0 (order 1) or k0/C0²
  * (order 2), which match its initial slope.
  *
- * Reference: DOMAIN.md §5 (linear plots of each order).
+ * Reference: the linear plots of each order, OpenStax Chemistry 2e §12.4
+ * (docs/methods.md#straight-line-plots).
  *
  * Throws nothing.
  *

@@ -29,7 +29,8 @@ export interface AncovaDesign {
  * of squares unchanged but makes the columns nearly orthogonal (better conditioned).
  *
  * Reference: LeBlond, Griffith & Aubuchon, "Linear Regression 102: Stability Shelf Life
- * Estimation Using Analysis of Covariance", J. Valid. Technol. 17(3) 2011 (DOMAIN.md §1.6).
+ * Estimation Using Analysis of Covariance", J. Valid. Technol. 17(3) 2011
+ * (docs/methods.md#batch-poolability).
  *
  * Throws nothing itself; the batches come validated from `transformedStabilityBatches`.
  *

@@ -37,9 +37,9 @@ const DEGENERATE_QUADRATIC = 1e-14;
  * polished by Newton steps on g itself, and the earliest one in (0, horizon] is returned. If
  * g(0) ≤ 0 the product is outside at the start. This is the inverse-regression construction of
  * ISO Guide 35:2017 Annex B (B.21–B.24), there with a prediction term, here with the
- * confidence-of-the-mean term ICH Q1E asks for (DOMAIN.md §1.5).
+ * confidence-of-the-mean term ICH Q1E App. B.1 asks for.
  *
- * Reference: ICH Q1E App. B.1; ISO Guide 35:2017 Annex B; DOMAIN.md §1.5 and §3.4.
+ * Reference: ICH Q1E App. B.1; ISO Guide 35:2017 Annex B; docs/methods.md#confidence-limit-crossing.
  *
  * Throws nothing; the caller passes a finite quantile ≥ 0 and a finite horizon > 0.
  *

@@ -92,7 +92,8 @@ function nestedTest(
  * usual sequential reading of the procedure (common practice).
  *
  * Reference: ICH Q1E App. B.2 and ICH Q1A(R2) 2.2.9 as quoted in the ASEAN Guideline on
- * Stability Study (2013) §4.10; LeBlond et al., J. Valid. Technol. 17(3) 2011 (DOMAIN.md §1.6).
+ * Stability Study (2013) §4.10; LeBlond et al., J. Valid. Technol. 17(3) 2011
+ * (docs/methods.md#batch-poolability).
  *
  * Throws `KineticsError`: 'not-applicable' for fewer than 2 batches (nothing to pool),
  * 'zero-variance' when the separate-lines model fits exactly (no error variance to test against),

@@ -19,12 +19,13 @@ export interface ScaledAcceptanceLimit {
 /**
  * Which acceptance limits a Q1E evaluation compares, on which side, and with which sidedness.
  *
- * Rules (ICH Q1E App. B.1, DOMAIN.md §1.5): a decreasing attribute is judged by the lower
- * one-sided limit against the lower criterion; an increasing one by the upper one-sided limit
- * against the upper criterion; an attribute that may move either way by two-sided limits (each
- * side at (1 + confidence)/2) against every criterion given. A criterion that does not apply to
- * the direction is ignored and a note says so. On the '1/x' scale order reverses, so a lower
- * criterion is compared with the upper confidence limit of the reciprocal line, and vice versa.
+ * Rules (ICH Q1E App. B.1; docs/methods.md#q1e-scale-and-acceptance-limits): a decreasing
+ * attribute is judged by the lower one-sided limit against the lower criterion; an increasing one
+ * by the upper one-sided limit against the upper criterion; an attribute that may move either way
+ * by two-sided limits (each side at (1 + confidence)/2) against every criterion given. A
+ * criterion that does not apply to the direction is ignored and a note says so. On the '1/x'
+ * scale order reverses, so a lower criterion is compared with the upper confidence limit of the
+ * reciprocal line, and vice versa.
  *
  * Throws `KineticsError('invalid-input')` when the criterion the direction needs is missing (or,
  * for 'either', none is given), and `KineticsError('non-positive-value')` for a criterion ≤ 0 on

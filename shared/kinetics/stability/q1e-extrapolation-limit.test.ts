@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { type Q1eExtrapolationCase, q1eExtrapolationLimit } from './q1e-extrapolation-limit.ts';
 
 // All caps: ICH Q1E 2.4–2.5 and Appendix A, numbers from memory; outcome structure
-// "12/6/3 month/no extension" confirmed by Q1E training slides (DOMAIN.md §1.7 table).
+// "12/6/3 month/no extension" confirmed by S. Yoshioka's (MHLW) Q1E training slides
+// (docs/methods.md#q1e-extrapolation-limit).
 const roomTemperature = (overrides: Partial<Q1eExtrapolationCase>): Q1eExtrapolationCase => ({
   storage: 'room-temperature',
   longTermMonths: 12,

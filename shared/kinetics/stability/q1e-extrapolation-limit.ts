@@ -33,7 +33,7 @@ export interface Q1eExtrapolationLimit {
 }
 
 const SOURCE =
-  'ICH Q1E 2.4–2.5 and Appendix A decision tree; caps from memory, outcome structure confirmed by Q1E training slides (DOMAIN.md §1.7)';
+  'ICH Q1E 2.4–2.5 and Appendix A decision tree; caps from memory, outcome structure confirmed by Q1E training slides (ICH Q1E §2.4–2.5 and Appendix A (numbers from memory; outcome structure as in the ICH Q1E training material))';
 
 function capped(x: number, multiple: number | null, extension: number, rule: string): Q1eExtrapolationLimit {
   const byMultiple = multiple === null ? Number.POSITIVE_INFINITY : multiple * x;
@@ -63,7 +63,8 @@ function none(x: number, rule: string): Q1eExtrapolationLimit {
  * from the storage category, the significant-change results and the nature of the data.
  *
  * Why: the statistical crossing time may lie far beyond the data; Q1E caps how far a proposal
- * may extrapolate, as a separate explicit step whose inputs the reviewer confirms (DOMAIN.md §1.7).
+ * may extrapolate, as a separate explicit step whose inputs the reviewer confirms (ICH Q1E 2.4–2.5;
+ * docs/methods.md#q1e-extrapolation-limit).
  *
  * Rules (Q1E 2.4–2.5, App. A; numbers from memory): room temperature, no significant change at
  * accelerated — little change, or statistics performed: up to 2X and ≤ X + 12; otherwise with

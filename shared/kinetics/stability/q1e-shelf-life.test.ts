@@ -14,7 +14,7 @@ const timesOf = (batch: StabilityBatch) => batch.observations.map((o) => o.time)
 
 /**
  * Confidence limit of the OLS mean line, written out from the textbook formula
- * ŷ(t) ± t_q·s·√(1/n + (t − x̄)²/Sxx) (NIST/SEMATECH e-Handbook §4.5.2.4; DOMAIN.md §1.5),
+ * ŷ(t) ± t_q·s·√(1/n + (t − x̄)²/Sxx) (NIST/SEMATECH e-Handbook §4.5.2.4; ICH Q1E App. B.1),
  * with simple-statistics for the line and jStat for the Student t quantile.
  */
 function referenceLimit(times: number[], values: number[], level: number, side: 1 | -1) {
@@ -280,7 +280,7 @@ describe('q1eShelfLife, no crossing, extrapolation and degenerate cases', () => 
         supportingData: true,
       },
     });
-    // X = 24 months observed: Q1E caps at min(2X, X + 12) = 36 months (from memory, DOMAIN.md §1.7).
+    // X = 24 months observed: Q1E caps at min(2X, X + 12) = 36 months (ICH Q1E 2.4, App. A; from memory).
     expect(result.extrapolation.q1eLimitInTimeUnits).toBe(36);
     expect(result.shelfLife ?? 0).toBeGreaterThan(36);
     expect(result.extrapolation.exceedsQ1eLimit).toBe(true);

@@ -113,8 +113,8 @@ function fittedLines(
  * flags a shelf life beyond the longest observed time and, given the case, compares it with the
  * Q1E extrapolation cap (`q1eExtrapolationLimit`).
  *
- * Reference: ICH Q1E (2003) App. B.1–B.2; ICH Q1A(R2) 2.2.9 as quoted in ASEAN 2013 §4.10;
- * DOMAIN.md §1.5–1.7.
+ * Reference: ICH Q1E (2003) App. B.1–B.2 and, for the cap, 2.4–2.5 and App. A; ICH Q1A(R2) 2.2.9 as
+ * quoted in ASEAN 2013 §4.10; docs/methods.md#q1e-shelf-life.
  *
  * Throws `KineticsError`: 'invalid-input' (bad confidence, significance, horizon, grid or month
  * factor; missing acceptance limit), plus the errors of `transformedStabilityBatches`,

@@ -5,7 +5,7 @@ import { arrheniusFit } from './arrhenius-fit.ts';
 import { MOLAR_GAS_CONSTANT } from './physical-constants.ts';
 import { predictRateConstant } from './predict-rate-constant.ts';
 
-/** 2 HI → H2 + I2: McMurry & Fay, Chemistry, Worked Example 12.13 (DOMAIN.md §4.5). */
+/** 2 HI → H2 + I2: McMurry & Fay, Chemistry, Worked Example 12.13 (docs/methods.md#worked-examples). */
 const hydrogenIodide = [
   { temperatureC: 283, rateConstant: 3.52e-7 },
   { temperatureC: 356, rateConstant: 3.02e-5 },
@@ -25,11 +25,12 @@ describe('arrheniusFit on the 2 HI data set', () => {
   const fit = arrheniusFit(hydrogenIodide);
 
   it('gives Ea ≈ 186 kJ/mol as the textbooks do', () => {
-    // Zumdahl, Atoms First 2e, Problem 11.69: Ea = 186 kJ/mol (DOMAIN.md §4.5).
+    // Zumdahl, Chemistry: An Atoms First Approach 2e, Problem 11.69: Ea = 186 kJ/mol.
     expect(fit.activationEnergy / 1000).toBeCloseTo(186, 0);
     // McMurry & Fay WE 12.13: Ea ≈ 1.9e2 kJ/mol read from the graph (2 significant figures).
     expect(Math.round(fit.activationEnergy / 1e4)).toBe(19);
-    // DOMAIN.md §4.5 (computed here, OLS): Ea 186.3, 95 % CI [176.6, 196.0], ln A 25.311, R² 0.99920.
+    // Computed independently (numpy OLS, not published): Ea 186.3, 95 % CI [176.6, 196.0],
+    // ln A 25.311, R² 0.99920.
     expect(relative(fit.activationEnergy, 186_300)).toBeLessThan(FOUR_DIGITS);
     expect(fit.activationEnergyInterval?.[0] ?? 0).toBeCloseTo(176_600, -2);
     expect(fit.activationEnergyInterval?.[1] ?? 0).toBeCloseTo(196_000, -2);
@@ -66,7 +67,7 @@ describe('arrheniusFit on the 2 HI data set', () => {
   });
 
   it('predicts k at 293 °C with confidence and prediction intervals', () => {
-    // DOMAIN.md §4.5 (computed here): k̂ = 6.35e-7; CI [4.47, 9.02]e-7; PI [3.59, 11.2]e-7.
+    // Computed independently (numpy, not published): k̂ = 6.35e-7; CI [4.47, 9.02]e-7; PI [3.59, 11.2]e-7.
     const prediction = predictRateConstant(fit, 293);
     expect(relative(prediction.rateConstant, 6.35e-7)).toBeLessThan(1e-3);
     expect(relative(prediction.confidenceInterval?.[0] ?? 0, 4.47e-7)).toBeLessThan(2e-3);
@@ -141,7 +142,7 @@ describe('arrheniusFit weighting', () => {
 describe('arrheniusFit degenerate cases', () => {
   it('two points: exact Ea, no interval, reason given', () => {
     const fit = arrheniusFit([hydrogenIodide[0]!, hydrogenIodide[4]!]);
-    // DOMAIN.md §4.5 (computed here): two-point Ea (283/508 °C) = 186.7 kJ/mol.
+    // Computed independently (not published): two-point Ea (283/508 °C) = 186.7 kJ/mol.
     expect(fit.activationEnergy / 1000).toBeCloseTo(186.7, 1);
     expect(fit.degreesOfFreedom).toBe(0);
     expect(fit.activationEnergyInterval).toBeNull();

@@ -64,7 +64,8 @@ export interface ArrheniusFit {
  * 1/Var(ln kᵢ) by the delta method. With exactly two points Ea is exact for those points and
  * every interval is null with `intervalUnavailableReason` (0 degrees of freedom).
  *
- * Reference: IUPAC Gold Book, "Arrhenius equation", doi 10.1351/goldbook.A00446; DOMAIN.md §3.5.
+ * Reference: IUPAC Gold Book, "Arrhenius equation", doi 10.1351/goldbook.A00446;
+ * docs/methods.md#arrhenius-fit.
  *
  * Throws `KineticsError`: 'too-few-points' (fewer than 2 rate constants), 'zero-variance' (all
  * temperatures equal), 'non-positive-value' (a k ≤ 0: ln k does not exist, the model is not

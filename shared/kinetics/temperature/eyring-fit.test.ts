@@ -3,7 +3,7 @@ import { arrheniusFit } from './arrhenius-fit.ts';
 import { eyringFit } from './eyring-fit.ts';
 import { BOLTZMANN_CONSTANT, MOLAR_GAS_CONSTANT, PLANCK_CONSTANT } from './physical-constants.ts';
 
-/** 2 HI → H2 + I2: McMurry & Fay, Chemistry, Worked Example 12.13 (DOMAIN.md §4.5). */
+/** 2 HI → H2 + I2: McMurry & Fay, Chemistry, Worked Example 12.13 (docs/methods.md#worked-examples). */
 const hydrogenIodide = [
   { temperatureC: 283, rateConstant: 3.52e-7 },
   { temperatureC: 356, rateConstant: 3.02e-5 },
@@ -26,9 +26,9 @@ function eyringRateConstant(enthalpy: number, entropy: number, temperatureK: num
 
 describe('eyringFit', () => {
   it('uses constants giving k_B·T/h = 6.21e12 s⁻¹ at 298 K', () => {
-    // unseel.com "Eyring equation" (DOMAIN.md §0): k_B·T/h at 298 K = 6.21 × 10¹² s⁻¹.
+    // unseel.com "Eyring equation": k_B·T/h at 298 K = 6.21 × 10¹² s⁻¹.
     expect((BOLTZMANN_CONSTANT * 298) / PLANCK_CONSTANT / 1e12).toBeCloseTo(6.21, 2);
-    // CRC Handbook (DOMAIN.md §0): R = 8.314 462 618 15… J/(mol·K).
+    // CRC Handbook, "Fundamental Physical Constants": R = 8.314 462 618 15… J/(mol·K).
     expect(MOLAR_GAS_CONSTANT).toBeCloseTo(8.31446261815, 11);
   });
 
@@ -66,7 +66,7 @@ describe('eyringFit', () => {
   });
 
   it('sits about R·T below the Arrhenius Ea (Ea = ΔH‡ + RT)', () => {
-    // Textbook relation Ea = ΔH‡ + R·T (Atkins' Physical Chemistry, activated complex theory; DOMAIN.md §3.6).
+    // Textbook relation Ea = ΔH‡ + R·T (Atkins' Physical Chemistry, activated complex theory; from memory).
     // The least-squares slope of ln T on 1/T is an average of T over the fitted points, so
     // Ea − ΔH‡ must lie between R·T_min and R·T_max exactly (mean-value theorem on each chord).
     const eyring = eyringFit(hydrogenIodide, { secondsPerTimeUnit: 1 });

@@ -67,7 +67,8 @@ export interface EyringFit {
  * in solution Ea = ΔH‡ + R·T (textbook relation, e.g. Atkins' Physical Chemistry, "activated
  * complex theory"), so an Eyring fit's ΔH‡ sits about R·T below the Arrhenius Ea.
  *
- * Reference: IUPAC Gold Book, "transition state theory", doi 10.1351/goldbook.T06470; DOMAIN.md §3.6.
+ * Reference: IUPAC Gold Book, "transition state theory", doi 10.1351/goldbook.T06470; H. Eyring,
+ * J. Chem. Phys. 3 (1935) 107 (from memory); docs/methods.md#eyring.
  *
  * Throws `KineticsError` as `arrheniusFit` does, plus 'invalid-input' when `secondsPerTimeUnit`
  * is not finite and positive.

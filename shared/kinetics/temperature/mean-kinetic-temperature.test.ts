@@ -11,8 +11,9 @@ describe('meanKineticTemperature (USP <1160> constants)', () => {
     expect(meanKineticTemperature([-18]).meanKineticTemperatureC).toBeCloseTo(-18, 10);
   });
 
-  it('matches the DOMAIN.md §1.9 check values', () => {
-    // DOMAIN.md §1.9 (computed there with USP constants ΔH = 83.144 kJ/mol, R = 8.3144 J/(mol·K)).
+  it('matches the USP <1160> formula, Haynes 1971; check values computed with the USP constants', () => {
+    // Computed independently with the USP <1160> constants ΔH = 83.144 kJ/mol, R = 8.3144 J/(mol·K)
+    // (not published values; docs/methods.md#mean-kinetic-temperature).
     expect(meanKineticTemperature([20, 30]).meanKineticTemperatureC).toBeCloseTo(26.26, 3);
     const monthly = meanKineticTemperature([18, 19, 21, 23, 25, 27, 29, 28, 26, 23, 20, 18]);
     expect(monthly.meanKineticTemperatureC).toBeCloseTo(23.828, 3);
@@ -30,7 +31,7 @@ describe('meanKineticTemperature (USP <1160> constants)', () => {
   });
 
   it('weights unequal periods by their duration', () => {
-    // Time-weighted form (fa.wikipedia "Mean kinetic temperature", DOMAIN.md §1.9): 2 weeks at 20 °C
+    // Time-weighted form (fa.wikipedia "Mean kinetic temperature"): 2 weeks at 20 °C
     // and 1 at 30 °C equal the equal-period list [20, 20, 30].
     const weighted = meanKineticTemperature([20, 30], { durations: [2, 1] });
     const listed = meanKineticTemperature([20, 20, 30]);

@@ -44,7 +44,7 @@ export interface MeanKineticTemperature {
  * decision and is not enforced here.
  *
  * Reference: USP 29 general chapter <1160> (uspbpep.com/usp29/v29240/usp29nf24s0_c1160.html);
- * J. D. Haynes, J. Pharm. Sci. 60 (1971) 927; DOMAIN.md §1.9.
+ * J. D. Haynes, J. Pharm. Sci. 60 (1971) 927; docs/methods.md#mean-kinetic-temperature.
  *
  * Throws `KineticsError`: 'too-few-points' for no temperatures, 'invalid-input' for a temperature
  * at or below absolute zero, non-finite numbers, a non-positive ΔH or R, durations of the wrong

@@ -9,7 +9,7 @@
  * The mean kinetic temperature uses the constants printed in USP <1160> instead
  * (ΔH = 83.144 kJ/mol, R = 8.3144 J/(mol·K), so ΔH/R = 10 000 K exactly), because a compliance
  * number should reproduce the pharmacopoeial calculation digit for digit; with the exact R the
- * ratio would be 9 999.92 K (DOMAIN.md §1.9).
+ * ratio would be 83 144/8.314 462 618… = 9 999.92 K (docs/methods.md#mean-kinetic-temperature).
  */
 
 /** Boltzmann constant k_B in J/K, exact since the 2019 SI. */

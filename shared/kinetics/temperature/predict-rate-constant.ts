@@ -35,9 +35,10 @@ export interface RateConstantPrediction {
  * exponentiated (so it is asymmetric in k). The prediction interval for a new determination
  * adds the residual variance s² under the root (unweighted fits only: under weighting a new
  * point's weight is unknown). Outside the fitted temperatures the answer is an extrapolation and
- * is flagged: the straight line is then an assumption the data cannot check (DOMAIN.md §3.5).
+ * is flagged: the straight line is then an assumption the data cannot check (Kohout, Molecules 26 (2021)
+ * 7162, on curved Arrhenius plots; docs/methods.md#rate-constant-at-the-storage-temperature).
  *
- * Reference: NIST/SEMATECH e-Handbook §4.5.2.4 (prediction from a fitted line); DOMAIN.md §3.5.
+ * Reference: NIST/SEMATECH e-Handbook §4.5.2.4 (prediction from a fitted line).
  *
  * Throws `KineticsError('invalid-input')` for a temperature at or below absolute zero or a
  * confidence outside (0, 1), and `KineticsError('not-applicable')` when exp(ln k̂) overflows.

@@ -3,7 +3,8 @@ import { activationEnergyFromQ10, q10FromActivationEnergy, q10FromRateConstants 
 
 describe('Q10', () => {
   it('matches the Q10 ↔ Ea table for 20 → 30 °C', () => {
-    // DOMAIN.md §0/§3.7 (computed there; matches the Connors-type table, from memory):
+    // Computed from ln Q10 = (Ea/R)(1/T₁ − 1/T₂); matches the table in Connors et al., Chemical Stability
+    // of Pharmaceuticals (from memory):
     // Q10 = 2 ↔ 51.2 kJ/mol, 3 ↔ 81.2, 4 ↔ 102.4; Ea = 83.144 kJ/mol ↔ Q10 = 3.08 (2.97 for 25 → 35 °C).
     expect(activationEnergyFromQ10(2, 20) / 1000).toBeCloseTo(51.2, 1);
     expect(activationEnergyFromQ10(3, 20) / 1000).toBeCloseTo(81.2, 1);
@@ -17,7 +18,7 @@ describe('Q10', () => {
   });
 
   it('follows the definition (R₂/R₁)^(10/(T₂ − T₁))', () => {
-    // handwiki.org "Chemistry:Q10 (temperature coefficient)" (DOMAIN.md §3.7).
+    // handwiki.org "Chemistry:Q10 (temperature coefficient)".
     expect(q10FromRateConstants(1, 20, 2, 30)).toBeCloseTo(2, 12);
     expect(q10FromRateConstants(1, 25, 4, 45)).toBeCloseTo(2, 12);
     expect(q10FromRateConstants(3, 30, 1, 20)).toBeCloseTo(3, 12);

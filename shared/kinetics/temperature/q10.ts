@@ -4,11 +4,12 @@ import { MOLAR_GAS_CONSTANT } from './physical-constants.ts';
 
 /**
  * The Q10 temperature coefficient: the factor by which a rate rises for a 10 °C rise.
- * A rough screen only (DOMAIN.md §3.7) — the defensible number is the Arrhenius fit with its
+ * A rough screen only (docs/methods.md#q10) — the defensible number is the Arrhenius fit with its
  * intervals; Q10 drifts with temperature for a fixed Ea, so always quote the interval it spans.
  *
  * Reference: van 't Hoff (1884); handwiki.org "Chemistry:Q10 (temperature coefficient)";
- * DOMAIN.md §3.7. R is the exact 2019 SI value.
+ * the link to Ea, ln Q10 = (Ea/R)(1/T₁ − 1/T₂), follows from the Arrhenius equation (docs/methods.md#q10).
+ * R is the exact 2019 SI value.
  */
 
 function checkedKelvin(temperatureC: number, name: string): number {
