@@ -31,11 +31,13 @@ if [ -z "${SESSION_SECRET:-}" ]; then
   export SESSION_SECRET
 fi
 
-npx tsx server/platform/db/migrate.ts
-npx tsx server/demo/seed.ts
-log "building the client"
+log "building the client and the server"
 npx vite build --logLevel warn
+node scripts/run-built.mjs
 
-npx tsx server/index.ts &
+node dist/server/platform/db/migrate.js
+node dist/server/demo/seed.js
+
+node dist/server/index.js &
 SERVER_PID=$!
 wait "$SERVER_PID"

@@ -17,11 +17,13 @@ import { verificationRoutes } from './features/verification/index.ts';
 import type { AppOptions, AppServices } from './platform/app-services.ts';
 import { csrfProtection } from './platform/auth/csrf.ts';
 import { createAuthenticator } from './platform/auth/passport-setup.ts';
+import { parseRenderConfig } from './platform/config/render-config.ts';
 import type { DatabaseHandle } from './platform/db/client.ts';
 import { errorHandler, notFound } from './platform/http/error-handler.ts';
 import { healthRoutes } from './platform/http/health-routes.ts';
 import { requireJsonBody } from './platform/http/require-json.ts';
 import { requestLog } from './platform/logging/request-log.ts';
+import { reportStorage } from './platform/storage/report-storage.ts';
 import { CLIENT_DIST, readClientAssets } from './platform/web/assets.ts';
 import { createViewEngine, viewFolders } from './platform/web/view-engine.ts';
 
@@ -42,7 +44,14 @@ export function createApp(
   options: Partial<AppOptions> & { sessionSecret: string },
 ): Express {
   const settings: AppOptions = { ...DEFAULT_OPTIONS, ...options };
-  const services: AppServices = { db: database.db, pool: database.pool, options: settings };
+  const renderConfig = parseRenderConfig();
+  const services: AppServices = {
+    db: database.db,
+    pool: database.pool,
+    options: settings,
+    renderConfig,
+    storage: reportStorage(renderConfig.reportsDir),
+  };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');

@@ -1,5 +1,7 @@
 import type pg from 'pg';
+import type { RenderConfig } from './config/render-config.ts';
 import type { Database } from './db/client.ts';
+import type { ReportStorage } from './storage/report-storage.ts';
 
 export interface AppOptions {
   sessionSecret: string;
@@ -12,9 +14,14 @@ export interface AppOptions {
   idleMinutes: number;
 }
 
-/** What route modules need from the running app: the database and the app's options. */
+/**
+ * What route modules need from the running app, built once in `createApp`: the database, the app's
+ * options, the render settings and the store of rendered PDFs. No route builds its own.
+ */
 export interface AppServices {
   db: Database;
   pool: pg.Pool;
   options: AppOptions;
+  renderConfig: RenderConfig;
+  storage: ReportStorage;
 }

@@ -16,6 +16,7 @@
  */
 import { z } from 'zod';
 import { TIME_UNITS } from '../kinetics/units.ts';
+import { isKnownTimeZone } from '../time/zoned-time.ts';
 
 export const CONFIDENCE_LEVELS = ['0.90', '0.95', '0.99'] as const;
 export const PRESET_DIRECTIONS = ['decreasing', 'increasing', 'either'] as const;
@@ -119,29 +120,7 @@ export function formatReportNumber(format: string, input: { year: string; sequen
 
 // ---------------------------------------------------------------- time zones
 
-/** IANA time zones this runtime knows; `UTC` is added because some runtimes list only `Etc/UTC`. */
-export function knownTimeZones(): string[] {
-  const zones = Intl.supportedValuesOf('timeZone');
-  return zones.includes('UTC') ? zones : ['UTC', ...zones];
-}
-
-/**
- * Whether `zone` is an IANA time zone: one `Intl.supportedValuesOf('timeZone')` lists, or an
- * Area/Location name the runtime resolves to one of those. The list holds the CLDR canonical
- * names, which keep some older spellings (`Asia/Calcutta`, `Europe/Kiev`), so the current IANA
- * names (`Asia/Kolkata`, `Europe/Kyiv`) are accepted through the resolution. Abbreviations such
- * as `EST` are refused: they name no place and no rules for summer time.
- */
-export function isKnownTimeZone(zone: string): boolean {
-  const zones = knownTimeZones();
-  if (zones.includes(zone)) return true;
-  if (!/^[A-Za-z]+(?:\/[A-Za-z0-9_+-]+)+$/.test(zone)) return false;
-  try {
-    return zones.includes(new Intl.DateTimeFormat('en', { timeZone: zone }).resolvedOptions().timeZone);
-  } catch {
-    return false;
-  }
-}
+export { isKnownTimeZone, knownTimeZones } from '../time/zoned-time.ts';
 
 // ---------------------------------------------------------------- form schemas
 

@@ -1,12 +1,19 @@
-import { analyseSeries, type SeriesAnalysis, type SeriesOptions } from './analyse-series.ts';
+import { analyseSeries } from './analyse-series.ts';
+import type {
+  ConditionShelfLife,
+  DatasetArrhenius,
+  DatasetFindings,
+  DatasetOptions,
+  DatasetWarning,
+  SeriesResult,
+} from './dataset-analysis.ts';
 import { type MethodStatement, methodStatement } from './method-statement.ts';
-import { KineticsError, type KineticsErrorCode } from './numeric/kinetics-error.ts';
-import { type Q1eShelfLife, q1eShelfLife } from './stability/q1e-shelf-life.ts';
+import { KineticsError } from './numeric/kinetics-error.ts';
+import { q1eShelfLife } from './stability/q1e-shelf-life.ts';
 import type { StabilityTransform } from './stability/stability-batch.ts';
-import { type ArrheniusFit, arrheniusFit } from './temperature/arrhenius-fit.ts';
-import { predictRateConstant, type RateConstantPrediction } from './temperature/predict-rate-constant.ts';
-import type { TemperatureFitWeighting } from './temperature/rate-constant-measurement.ts';
-import type { AttributeDirection, ErrorModel, IntegerOrder, Series } from './types.ts';
+import { arrheniusFit } from './temperature/arrhenius-fit.ts';
+import { predictRateConstant } from './temperature/predict-rate-constant.ts';
+import type { AttributeDirection, IntegerOrder, Series } from './types.ts';
 import { convertTime, rateConstantUnit, tryParseTimeUnit } from './units.ts';
 import { ENGINE_VERSION } from './version.ts';
 
@@ -44,72 +51,17 @@ import { ENGINE_VERSION } from './version.ts';
  * temperature when `lowerLimit: 90` is given.
  */
 
-export interface DatasetOptions extends Omit<SeriesOptions, 'errorModel'> {
-  errorModel?: 'auto' | ErrorModel;
-  /** Temperature (°C) at which k is predicted from the Arrhenius fit. */
-  storageTemperatureC?: number;
-  /** Direction of the attribute for Q1E; by default from the limits given. */
-  direction?: AttributeDirection;
-  arrheniusWeighting?: TemperatureFitWeighting;
-}
+export type {
+  ConditionShelfLife,
+  DatasetArrhenius,
+  DatasetOptions,
+  DatasetWarning,
+  SeriesResult,
+  TemperatureRateConstant,
+} from './dataset-analysis.ts';
 
-export interface SeriesResult {
-  id: string;
-  batch: string | null;
-  temperatureC: number | null;
-  analysis: SeriesAnalysis | null;
-  error: { code: KineticsErrorCode; message: string } | null;
-}
-
-export interface TemperatureRateConstant {
-  temperatureC: number;
-  k: number;
-  kStandardError: number | null;
-  lnK: number;
-  seriesIds: string[];
-  pooling: 'single-series' | 'inverse-variance-mean-of-ln-k' | 'mean-of-ln-k';
-}
-
-export interface DatasetArrhenius {
-  order: IntegerOrder | null;
-  orderSource: 'analyst' | 'data' | null;
-  /** Summed AICc of orders 0, 1, 2 over the series where all three were compared. */
-  aiccTotals: [number | null, number | null, number | null];
-  kUnit: string | null;
-  rateConstants: TemperatureRateConstant[];
-  excludedSeries: { id: string; reason: string }[];
-  fit: ArrheniusFit | null;
-  notApplicableReason: string | null;
-  prediction:
-    | (RateConstantPrediction & {
-        t90: { estimate: number; ci: [number, number] | null } | null;
-        halfLife: { estimate: number; ci: [number, number] | null } | null;
-        derivedReason: string | null;
-      })
-    | null;
-}
-
-export interface ConditionShelfLife {
-  temperatureC: number | null;
-  seriesIds: string[];
-  transform: StabilityTransform;
-  transformReason: string;
-  result: Q1eShelfLife | null;
-  notApplicableReason: string | null;
-}
-
-export interface DatasetWarning {
-  code: 'series-not-analysed' | 'order-disagreement' | 'arrhenius-extrapolation' | 'non-finite-replaced';
-  message: string;
-}
-
-export interface DatasetAnalysis {
-  engineVersion: string;
-  confidenceLevel: number;
-  series: SeriesResult[];
-  arrhenius: DatasetArrhenius | null;
-  shelfLife: ConditionShelfLife[] | null;
-  warnings: DatasetWarning[];
+/** What `analyseDataset` returns: the findings and the method statement that describes them. */
+export interface DatasetAnalysis extends DatasetFindings {
   methodStatement: MethodStatement;
 }
 

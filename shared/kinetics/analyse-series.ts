@@ -1,20 +1,16 @@
 import { collectWarnings } from './derived/analysis-warnings.ts';
 import { finiteOnly } from './derived/finite-only.ts';
-import {
-  type DerivedFigure,
-  derivedFigure,
-  type ModelSummary,
-  modelSummary,
-} from './derived/model-summary.ts';
-import { type PredictedValue, predictedValue } from './derived/predicted-value.ts';
+import { type DerivedFigure, derivedFigure, modelSummary } from './derived/model-summary.ts';
+import { predictedValue } from './derived/predicted-value.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
 import { fitRateLaw, type RateLawFit, type RateLawModel } from './order/fit-rate-law.ts';
-import { type LinearisedFit, linearisedFits } from './order/linearised-fits.ts';
-import { type ExcludedPoint, prepareSeries } from './order/prepare-series.ts';
-import { type ResidualDiagnostics, residualDiagnostics } from './order/residual-diagnostics.ts';
+import { linearisedFits } from './order/linearised-fits.ts';
+import { prepareSeries } from './order/prepare-series.ts';
+import { residualDiagnostics } from './order/residual-diagnostics.ts';
 import { type ModelFits, type OrderSelection, selectOrder } from './order/select-order.ts';
 import { startingValues } from './order/starting-values.ts';
+import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
 import type { ErrorModel, IntegerOrder, Series } from './types.ts';
 
 /**
@@ -40,55 +36,7 @@ import type { ErrorModel, IntegerOrder, Series } from './types.ts';
  * selectedOrder 1, k = 6.213e-4 1/s, half-life 1116 s.
  */
 
-export interface SeriesOptions {
-  confidenceLevel?: number;
-  errorModel?: 'auto' | ErrorModel;
-  lowerLimit?: number;
-  upperLimit?: number;
-  predictAt?: number[];
-  order?: IntegerOrder;
-}
-
-export interface AnalysisWarning {
-  code:
-    | 'low-fraction-reacted'
-    | 'order-not-identified'
-    | 'analyst-order-disfavoured'
-    | 'possible-outliers'
-    | 'systematic-misfit'
-    | 'not-converged'
-    | 'extrapolation';
-  message: string;
-}
-
-export interface SeriesAnalysis {
-  id: string;
-  timeUnit: string;
-  valueUnit: string;
-  n: number;
-  timeSpan: [number, number];
-  excluded: ExcludedPoint[];
-  selectedOrder: IntegerOrder | null;
-  orderSource: 'data' | 'analyst';
-  verdict: string;
-  errorModel: ErrorModel;
-  errorModelChoice: ErrorModelChoice;
-  fractionReacted: number | null;
-  halfLivesCovered: number | null;
-  models: ModelSummary[];
-  linearized: LinearisedFit[];
-  selection: Omit<OrderSelection, 'verdict' | 'selectedOrder'>;
-  /** Derived figures of the reported order (the named or the analyst's order); null otherwise. */
-  reportedOrder: IntegerOrder | null;
-  halfLife: DerivedFigure | null;
-  t90: DerivedFigure | null;
-  derivedReason?: string;
-  timeToLimit?: { lower?: DerivedFigure | null; upper?: DerivedFigure | null };
-  predictions?: PredictedValue[];
-  diagnostics: ResidualDiagnostics | null;
-  warnings: AnalysisWarning[];
-  confidenceLevel: number;
-}
+export type { AnalysisWarning, SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
 
 const MODELS: readonly RateLawModel[] = [0, 1, 2, 'n'];
 

@@ -1,4 +1,4 @@
-import type { DatasetAnalysis, DatasetOptions } from './analyse-dataset.ts';
+import type { DatasetFindings, DatasetOptions } from './dataset-analysis.ts';
 import { PROPORTIONAL_LOG_LIKELIHOOD_GAIN } from './order/choose-error-model.ts';
 import {
   DECISIVE_DELTA_AICC,
@@ -79,7 +79,7 @@ const percent = (fraction: number) => `${Number((fraction * 100).toPrecision(4))
 const fmt = (value: number) => String(Number(value.toPrecision(6)));
 
 export function methodStatement(
-  analysis: Omit<DatasetAnalysis, 'methodStatement'>,
+  analysis: DatasetFindings,
   seriesList: readonly Series[],
   options: DatasetOptions,
 ): MethodStatement {

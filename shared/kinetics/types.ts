@@ -37,3 +37,6 @@ export type ErrorModel = 'constant' | 'proportional';
 
 /** Direction in which the attribute moves, which decides the one- or two-sided Q1E limit. */
 export type AttributeDirection = 'decreasing' | 'increasing' | 'either';
+
+/** The four rate laws fitted to every series: the integer orders 0, 1, 2 and a free order n. */
+export type RateLawModel = 0 | 1 | 2 | 'n';

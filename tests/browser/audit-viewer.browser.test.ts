@@ -1,11 +1,12 @@
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
-import type { Browser } from 'playwright-core';
+import type { Browser } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { appendAuditEvent } from '../../server/platform/audit/audit-trail.ts';
 import { organisations } from '../../server/platform/db/schema/index.ts';
-import { launchChromium, SCREENSHOT_DIR, serve } from '../support/browser.ts';
+import { launchChromium, newPage, SCREENSHOT_DIR, serve } from '../support/browser.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
+import { locate } from './page-locator.ts';
 
 let world: TestWorld;
 let browser: Browser;
@@ -54,26 +55,27 @@ afterAll(async () => {
 
 describe('the audit trail viewer in Chromium', () => {
   it('a reviewer opens it from the menu, filters by action, sees the diff, and checks the chain', async () => {
-    const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+    const page = await newPage(browser, { viewport: { width: 1280, height: 900 } });
+    const ui = locate(page);
     const consoleErrors: string[] = [];
     page.on('console', (message) => {
       if (message.type() === 'error') consoleErrors.push(message.text());
     });
     await page.goto(`${server.url}/signin`);
-    await page.getByLabel('E-mail address').fill(world.users.reviewer!.email);
-    await page.getByLabel('Password').fill(world.users.reviewer!.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.locator('#panel-reviewer').waitFor();
+    await ui.getByLabel('E-mail address').fill(world.users.reviewer!.email);
+    await ui.getByLabel('Password').fill(world.users.reviewer!.password);
+    await ui.getByRole('button', { name: 'Sign in' }).click();
+    await ui.locator('#panel-reviewer').waitFor();
 
-    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Audit trail' }).click();
-    await page.getByRole('heading', { name: 'Audit trail', level: 1 }).waitFor();
+    await ui.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Audit trail' }).click();
+    await ui.getByRole('heading', { name: 'Audit trail', level: 1 }).waitFor();
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'audit-trail.png'), fullPage: true });
 
-    await page.getByLabel('Action').selectOption('study.updated');
-    await page.getByLabel('Person').selectOption({ label: `Test analyst (${world.users.analyst!.email})` });
-    await page.getByRole('button', { name: 'Show events' }).click();
+    await ui.getByLabel('Action').selectOption('study.updated');
+    await ui.getByLabel('Person').selectOption({ label: `Test analyst (${world.users.analyst!.email})` });
+    await ui.getByRole('button', { name: 'Show events' }).click();
     await expect.poll(() => page.url()).toContain('action=study.updated');
-    const rows = page.locator('tr[id^="event-"]');
+    const rows = ui.locator('tr[id^="event-"]');
     await expect.poll(() => rows.count()).toBe(1);
     const row = rows.first();
     expect(await row.textContent()).toContain('94.5');
@@ -81,9 +83,9 @@ describe('the audit trail viewer in Chromium', () => {
     expect(await row.locator('time').textContent()).toMatch(/UTC\+0[12]:00$/);
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'audit-trail-filtered.png'), fullPage: true });
 
-    await page.getByRole('link', { name: 'Check the hash chain' }).click();
-    await page.getByRole('button', { name: 'Run the check now' }).click();
-    await page.getByRole('heading', { name: 'The chain is intact' }).waitFor();
+    await ui.getByRole('link', { name: 'Check the hash chain' }).click();
+    await ui.getByRole('button', { name: 'Run the check now' }).click();
+    await ui.getByRole('heading', { name: 'The chain is intact' }).waitFor();
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'audit-chain-check.png'), fullPage: true });
     expect(consoleErrors).toEqual([]);
   });

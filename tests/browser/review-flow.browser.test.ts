@@ -5,20 +5,21 @@ import net, { type AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
+import type { Browser, Page } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
 import { isoDateTime } from '../../server/features/reports/render/template-format.ts';
-import { reportStorage, sha256Hex } from '../../server/features/reports/report-storage.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { signatures } from '../../server/platform/db/schema/index.ts';
+import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { makeAnalysisRun } from '../integration/reports-fixture.ts';
-import { launchChromium, SCREENSHOT_DIR } from '../support/browser.ts';
+import { launchChromium, SCREENSHOT_DIR, TestContext, waitForUrl } from '../support/browser.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
+import { type Locator, locate } from './page-locator.ts';
 
 /**
  * The review flow in Chromium, three people in three browser contexts:
@@ -93,19 +94,23 @@ const shot = (name: string) => path.join(SCREENSHOT_DIR, name);
 
 async function signedInContext(
   name: string,
-): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
-  const context = await browser.newContext({ acceptDownloads: true, viewport: { width: 1280, height: 900 } });
+): Promise<{ context: TestContext; page: Page; ui: Locator; errors: string[] }> {
+  const context = await TestContext.open(browser, {
+    acceptDownloads: true,
+    viewport: { width: 1280, height: 900 },
+  });
   const page = await context.newPage();
+  const ui = locate(page);
   const errors: string[] = [];
   page.on('console', (message) => {
     if (message.type() === 'error') errors.push(message.text());
   });
   await page.goto(`${baseUrl}/signin`);
-  await page.getByLabel('E-mail address').fill(world.users[name]!.email);
-  await page.getByLabel('Password').fill(world.users[name]!.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: /Good to see you/ }).waitFor();
-  return { context, page, errors };
+  await ui.getByLabel('E-mail address').fill(world.users[name]!.email);
+  await ui.getByLabel('Password').fill(world.users[name]!.password);
+  await ui.getByRole('button', { name: 'Sign in' }).click();
+  await ui.getByRole('heading', { name: /Good to see you/ }).waitFor();
+  return { context, page, ui, errors };
 }
 
 describe('review and e-signature in Chromium', () => {
@@ -113,65 +118,64 @@ describe('review and e-signature in Chromium', () => {
     // 1. The analyst creates a report, waits for it to render and submits it to the reviewer.
     const analyst = await signedInContext('analyst');
     await analyst.page.goto(`${baseUrl}/analyses/${runId}`);
-    const form = analyst.page.locator('#create-report');
+    const form = analyst.ui.locator('#create-report');
     await form.getByLabel(/Title/).fill('Quillatrine 40 mg — shelf-life report for review');
     await form.getByRole('button', { name: 'Create report' }).click();
-    await analyst.page.waitForURL(/\/app\/reports\/\d+$/);
+    await waitForUrl(analyst.page, /\/app\/reports\/\d+$/);
     await expect
-      .poll(() => analyst.page.locator('tr[data-version="1"] [data-status]').getAttribute('data-status'), {
+      .poll(() => analyst.ui.locator('tr[data-version="1"] [data-status]').getAttribute('data-status'), {
         timeout: 60_000,
       })
       .toBe('ready');
-    await analyst.page.getByRole('link', { name: 'Review and signing →' }).click();
-    await analyst.page.getByRole('heading', { name: /Review: RL-\d{4}-\d{4} version 1/ }).waitFor();
-    await analyst.page.getByLabel(/Test reviewer/).check();
-    await analyst.page
+    await analyst.ui.getByRole('link', { name: 'Review and signing →' }).click();
+    await analyst.ui.getByRole('heading', { name: /Review: RL-\d{4}-\d{4} version 1/ }).waitFor();
+    await analyst.ui.getByLabel(/Test reviewer/).check();
+    await analyst.ui
       .getByLabel(/Note to the reviewers/)
       .fill('Batch B2 at 40 °C has one excluded point; the reason is in section 5.');
     await analyst.page.screenshot({ path: shot('review-submit.png'), fullPage: true });
-    await analyst.page.getByRole('button', { name: 'Submit for review' }).click();
-    await analyst.page.getByRole('status').filter({ hasText: 'Submitted for review' }).waitFor();
+    await analyst.ui.getByRole('button', { name: 'Submit for review' }).click();
+    await analyst.ui.getByRole('status').filter({ hasText: 'Submitted for review' }).waitFor();
     await analyst.page.screenshot({ path: shot('review-submitted.png'), fullPage: true });
 
     // 2. An administrator reads the mail in the outbox and takes its link.
     await smtp.waitForMailTo(world.users.reviewer!.email, 10_000);
     const admin = await signedInContext('admin');
     await admin.page.goto(`${baseUrl}/admin/outbox`);
-    await admin.page.getByRole('link', { name: /review requested/ }).click();
-    await admin.page.getByRole('heading', { name: /review requested/ }).waitFor();
+    await admin.ui.getByRole('link', { name: /review requested/ }).click();
+    await admin.ui.getByRole('heading', { name: /review requested/ }).waitFor();
     await admin.page.screenshot({ path: shot('review-outbox-mail.png'), fullPage: true });
-    const link = admin.page.locator('pre a[href*="/review/reports/"]');
+    const link = admin.ui.locator('pre a[href*="/review/reports/"]');
     const href = await link.getAttribute('href');
     expect(href).toMatch(new RegExp(`^${baseUrl}/review/reports/\\d+/versions/1$`));
 
     // 3. The reviewer, signed in separately, opens the link and signs.
     const reviewer = await signedInContext('reviewer');
     await reviewer.page.goto(`${baseUrl}/review`);
-    await reviewer.page.getByRole('heading', { name: 'Waiting for my review' }).waitFor();
+    await reviewer.ui.getByRole('heading', { name: 'Waiting for my review' }).waitFor();
     await reviewer.page.screenshot({ path: shot('review-queue.png'), fullPage: true });
     await reviewer.page.goto(href!);
-    const reviewedSha = await reviewer.page.locator('[data-reviewed-sha256]').textContent();
+    const reviewedSha = await reviewer.ui.locator('[data-reviewed-sha256]').textContent();
     expect(reviewedSha).toMatch(/^[0-9a-f]{64}$/);
-    await reviewer.page.getByLabel('Meaning of your signature').selectOption('Approved');
-    await reviewer.page.getByLabel(/Comment/).fill('Data, fits and shelf-life statement checked.');
-    await reviewer.page.getByLabel('User ID (your e-mail address)').fill(world.users.reviewer!.email);
-    await reviewer.page.getByLabel('Password', { exact: true }).fill(world.users.reviewer!.password);
-    await reviewer.page.locator('#sign-heading').scrollIntoViewIfNeeded();
+    await reviewer.ui.getByLabel('Meaning of your signature').selectOption('Approved');
+    await reviewer.ui.getByLabel(/Comment/).fill('Data, fits and shelf-life statement checked.');
+    await reviewer.ui.getByLabel('User ID (your e-mail address)').fill(world.users.reviewer!.email);
+    await reviewer.ui.getByLabel('Password', { exact: true }).fill(world.users.reviewer!.password);
+    await reviewer.ui.locator('#sign-heading').scrollIntoViewIfNeeded();
     await reviewer.page.screenshot({ path: shot('review-sign-form.png'), fullPage: true });
-    await reviewer.page.getByRole('button', { name: 'Sign', exact: true }).click();
-    await reviewer.page
+    await reviewer.ui.getByRole('button', { name: 'Sign', exact: true }).click();
+    await reviewer.ui
       .getByRole('status')
       .filter({ hasText: 'Signed (Approved)' })
       .waitFor({ timeout: 60_000 });
     await reviewer.page.screenshot({ path: shot('review-signed.png'), fullPage: true });
 
     // 4. The signed PDF: its bytes are the recorded ones, the manifestation is in the text, the seal verifies.
-    const [download] = await Promise.all([
-      reviewer.page.waitForEvent('download'),
-      reviewer.page.getByRole('link', { name: 'Download the signed PDF' }).click(),
-    ]);
-    expect(download.suggestedFilename()).toMatch(/^RL-\d{4}-\d{4}-v1-signed\.pdf$/);
-    const file = (await download.path())!;
+    const download = await reviewer.context.waitForDownload(() =>
+      reviewer.ui.getByRole('link', { name: 'Download the signed PDF' }).click(),
+    );
+    expect(download.suggestedFilename).toMatch(/^RL-\d{4}-\d{4}-v1-signed\.pdf$/);
+    const file = download.path;
     const bytes = readFileSync(file);
     const [signature] = await world.database.db
       .select()
@@ -204,9 +208,9 @@ describe('review and e-signature in Chromium', () => {
 
     // 5. The reviewer checks the downloaded copy on the verification page.
     await reviewer.page.goto(`${baseUrl}/verify`);
-    await reviewer.page.locator('#verify-file').setInputFiles(file);
-    await reviewer.page.getByRole('button', { name: 'Check the file' }).click();
-    const verdict = reviewer.page.locator('[data-verdict]');
+    await reviewer.ui.locator('#verify-file').setInputFiles(file);
+    await reviewer.ui.getByRole('button', { name: 'Check the file' }).click();
+    const verdict = reviewer.ui.locator('[data-verdict]');
     await verdict.waitFor({ timeout: 30_000 });
     expect(await verdict.getAttribute('data-verdict')).toBe('verified');
     await reviewer.page.screenshot({ path: shot('review-verify.png'), fullPage: true });
@@ -215,7 +219,7 @@ describe('review and e-signature in Chromium', () => {
     const signedMail = await smtp.waitForMailTo(world.users.analyst!.email, 10_000);
     expect(signedMail.subject).toMatch(/signed \(Approved\)/);
     await analyst.page.reload();
-    await analyst.page.locator('[data-review-state="signed"]').waitFor();
+    await analyst.ui.locator('[data-review-state="signed"]').waitFor();
 
     for (const person of [analyst, admin, reviewer]) {
       expect(person.errors).toEqual([]);

@@ -1,8 +1,9 @@
 import path from 'node:path';
-import type { Browser } from 'playwright-core';
+import type { Browser } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium, SCREENSHOT_DIR, serve } from '../support/browser.ts';
+import { launchChromium, newPage, SCREENSHOT_DIR, serve } from '../support/browser.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
+import { locate } from './page-locator.ts';
 
 let world: TestWorld;
 let browser: Browser;
@@ -21,7 +22,8 @@ afterAll(async () => {
 
 describe('sign-in through the real page in Chromium', () => {
   it('signs in, lands on the role dashboard with its island, and saves screenshots', async () => {
-    const page = await browser.newPage();
+    const page = await newPage(browser);
+    const ui = locate(page);
     const consoleErrors: string[] = [];
     page.on('console', (message) => {
       if (message.type() === 'error') consoleErrors.push(message.text());
@@ -30,21 +32,21 @@ describe('sign-in through the real page in Chromium', () => {
     await expect.poll(() => page.url()).toContain('/signin');
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'sign-in.png'), fullPage: true });
 
-    await page.getByLabel('E-mail address').fill(world.users.analyst!.email);
-    await page.getByLabel('Password').fill(world.users.analyst!.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.getByRole('heading', { name: /Good to see you/ }).waitFor();
-    expect(await page.locator('#panel-analyst').textContent()).toBe('Analyst');
+    await ui.getByLabel('E-mail address').fill(world.users.analyst!.email);
+    await ui.getByLabel('Password').fill(world.users.analyst!.password);
+    await ui.getByRole('button', { name: 'Sign in' }).click();
+    await ui.getByRole('heading', { name: /Good to see you/ }).waitFor();
+    expect(await ui.locator('#panel-analyst').textContent()).toBe('Analyst');
     // The React island fetched the user's own audit events through the API.
-    await page.getByRole('cell', { name: 'Signed in' }).first().waitFor();
+    await ui.getByRole('cell', { name: 'Signed in' }).first().waitFor();
     // Fonts come bundled with the app, not from a CDN.
     const bodyFont = await page.evaluate(() => getComputedStyle(document.body).fontFamily);
     expect(bodyFont).toContain('Source Sans 3');
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'analyst-dashboard.png'), fullPage: true });
 
     await page.goto(`${server.url}/app/activity`);
-    await page.getByRole('heading', { name: 'My activity' }).waitFor();
-    await page.getByRole('cell', { name: 'Signed in' }).first().waitFor();
+    await ui.getByRole('heading', { name: 'My activity' }).waitFor();
+    await ui.getByRole('cell', { name: 'Signed in' }).first().waitFor();
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'client-activity.png'), fullPage: true });
 
     const forbidden = await page.goto(`${server.url}/admin/people`);
@@ -53,15 +55,16 @@ describe('sign-in through the real page in Chromium', () => {
   });
 
   it('a wrong password shows the message beside the form', async () => {
-    const page = await browser.newPage();
+    const page = await newPage(browser);
+    const ui = locate(page);
     await page.goto(`${server.url}/signin`);
-    await page.getByLabel('E-mail address').fill(world.users.admin!.email);
-    await page.getByLabel('Password').fill('wrong password');
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await expect.poll(() => page.getByRole('alert').textContent()).toContain('not right');
-    await page.getByLabel('Password').fill(world.users.admin!.password);
-    await page.getByRole('button', { name: 'Sign in' }).click();
-    await page.locator('#panel-admin').waitFor();
+    await ui.getByLabel('E-mail address').fill(world.users.admin!.email);
+    await ui.getByLabel('Password').fill('wrong password');
+    await ui.getByRole('button', { name: 'Sign in' }).click();
+    await expect.poll(() => ui.getByRole('alert').textContent()).toContain('not right');
+    await ui.getByLabel('Password').fill(world.users.admin!.password);
+    await ui.getByRole('button', { name: 'Sign in' }).click();
+    await ui.locator('#panel-admin').waitFor();
     await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'admin-dashboard.png'), fullPage: true });
   });
 });

@@ -2,17 +2,25 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
-import type { Browser, BrowserContext, Page } from 'playwright-core';
+import type { Browser, Page } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
-import { reportStorage } from '../../server/features/reports/report-storage.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { reportTemplates, reportVersions } from '../../server/platform/db/schema/index.ts';
+import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import { makeAnalysisRun } from '../integration/reports-fixture.ts';
-import { launchChromium, SCREENSHOT_DIR, serve } from '../support/browser.ts';
+import {
+  launchChromium,
+  pressShortcut,
+  SCREENSHOT_DIR,
+  serve,
+  TestContext,
+  waitForUrl,
+} from '../support/browser.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
+import { type Locator, locate } from './page-locator.ts';
 
 /**
  * The admin's template editor in Chromium: edit the default template's letterhead (new text and
@@ -63,32 +71,34 @@ const shot = (name: string) => path.join(SCREENSHOT_DIR, name);
 
 async function signedIn(
   name: 'admin' | 'analyst',
-): Promise<{ context: BrowserContext; page: Page; errors: string[] }> {
-  const context = await browser.newContext({ viewport: { width: 1680, height: 1050 } });
+): Promise<{ context: TestContext; page: Page; ui: Locator; errors: string[] }> {
+  const context = await TestContext.open(browser, { viewport: { width: 1680, height: 1050 } });
   const page = await context.newPage();
+  const ui = locate(page);
   const errors: string[] = [];
   page.on('console', (message) => {
     if (message.type() === 'error') errors.push(message.text());
   });
-  page.on('pageerror', (error) => errors.push(error.message));
+  page.on('pageerror', (error) => errors.push((error as Error).message));
   await page.goto(`${server.url}/signin`);
-  await page.getByLabel('E-mail address').fill(world.users[name]!.email);
-  await page.getByLabel('Password').fill(world.users[name]!.password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: /Good to see you/ }).waitFor();
-  return { context, page, errors };
+  await ui.getByLabel('E-mail address').fill(world.users[name]!.email);
+  await ui.getByLabel('Password').fill(world.users[name]!.password);
+  await ui.getByRole('button', { name: 'Sign in' }).click();
+  await ui.getByRole('heading', { name: /Good to see you/ }).waitFor();
+  return { context, page, ui, errors };
 }
 
 /** The analyst creates a report from the analysis page; resolves when it has rendered. */
 async function createReportAsAnalyst(page: Page, title: string) {
+  const ui = locate(page);
   await page.goto(`${server.url}/analyses/${runId}`);
-  const form = page.locator('#create-report');
+  const form = ui.locator('#create-report');
   await form.getByLabel(/Title/).fill(title);
   await form.getByRole('button', { name: 'Create report' }).click();
-  await page.waitForURL(/\/app\/reports\/\d+$/);
+  await waitForUrl(page, /\/app\/reports\/\d+$/);
   const reportId = Number(new URL(page.url()).pathname.split('/').pop());
   await expect
-    .poll(() => page.locator('tr[data-version="1"] [data-status]').getAttribute('data-status'), {
+    .poll(() => ui.locator('tr[data-version="1"] [data-status]').getAttribute('data-status'), {
       timeout: 90_000,
       interval: 200,
     })
@@ -107,31 +117,31 @@ describe('template editor in Chromium', () => {
     expect(earlier.version.html).not.toContain(NEW_LETTERHEAD);
 
     const admin = await signedIn('admin');
-    const { page } = admin;
-    await page
+    const { page, ui } = admin;
+    await ui
       .getByRole('navigation', { name: 'Main' })
       .getByRole('link', { name: 'Templates', exact: true })
       .click();
-    await page.getByRole('heading', { name: 'Report templates' }).waitFor();
+    await ui.getByRole('heading', { name: 'Report templates' }).waitFor();
     await page.screenshot({ path: shot('template-list.png'), fullPage: true });
-    await page.getByRole('link', { name: 'Edit template' }).click();
+    await ui.getByRole('link', { name: 'Edit template' }).click();
 
     // The editor opens on the published version with a preview of the chosen analysis.
-    const frame = page.frameLocator('iframe[title="Report preview"]');
+    const frame = ui.frameLocator('iframe[title="Report preview"]');
     await frame.locator('.letterhead').first().waitFor({ timeout: 30_000 });
-    await expect.poll(() => page.getByLabel('Preview with').inputValue()).toBe(String(runId));
+    await expect.poll(() => ui.getByLabel('Preview with').inputValue()).toBe(String(runId));
 
     // Letterhead: new text, and a field inserted from the side panel at the cursor.
-    await page.getByRole('tab', { name: 'letterhead' }).click();
-    const source = page.locator('.cm-content[data-part="partial \\"letterhead\\""]');
+    await ui.getByRole('tab', { name: 'letterhead' }).click();
+    const source = ui.locator('.cm-content[data-part="partial \\"letterhead\\""]');
     await source.click();
-    await page.keyboard.press('Control+a');
-    await page.keyboard.insertText(
+    await pressShortcut(page, 'Control+a');
+    await page.keyboard.sendCharacter(
       `<header class="letterhead">\n  <span class="letterhead-mark" aria-hidden="true"></span>\n  <span class="letterhead-name">${NEW_LETTERHEAD}</span>\n  <span class="letterhead-product">Study: `,
     );
-    await page.getByPlaceholder('Find…').fill('study.title');
-    await page.getByRole('button', { name: 'Insert study.title' }).click();
-    await page.keyboard.insertText('</span>\n</header>\n');
+    await ui.getByPlaceholder('Find…').fill('study.title');
+    await ui.getByRole('button', { name: 'Insert study.title' }).click();
+    await page.keyboard.sendCharacter('</span>\n</header>\n');
     await expect.poll(() => source.textContent()).toContain('Study: {{study.title}}</span>');
 
     // The preview follows the draft (debounced), filled in with the analysis' own study.
@@ -139,37 +149,37 @@ describe('template editor in Chromium', () => {
     await expect
       .poll(() => frame.locator('.letterhead-product').first().textContent())
       .toBe(`Study: ${STUDY_TITLE}`);
-    await page.getByText('Preview up to date').waitFor();
+    await ui.getByText('Preview up to date').waitFor();
     await page.screenshot({ path: shot('template-editor-preview.png') });
 
     // A syntax error is listed with its line and marked in the gutter; undo removes it.
-    await page.keyboard.insertText('\n{{#if study.notes}}');
-    const problems = page.getByRole('alert', { name: 'Problems in the draft' });
+    await page.keyboard.sendCharacter('\n{{#if study.notes}}');
+    const problems = ui.getByRole('alert', { name: 'Problems in the draft' });
     await expect
       .poll(() => problems.textContent(), { timeout: 15_000 })
       .toMatch(/Partial: letterhead, line \d+, column \d+/);
-    await expect.poll(() => page.locator('.cm-problem-marker').count()).toBeGreaterThan(0);
+    await expect.poll(() => ui.locator('.cm-problem-marker').count()).toBeGreaterThan(0);
     await page.screenshot({ path: shot('template-editor-syntax-error.png') });
-    await page.keyboard.press('Control+z');
+    await pressShortcut(page, 'Control+z');
     await problems.waitFor({ state: 'detached', timeout: 15_000 });
 
     // Save as version 2, then publish it.
-    await page.getByLabel('What changed').fill('Letterhead names the stability unit and the study');
-    await page.getByRole('button', { name: 'Save as version 2' }).click();
-    await page.getByRole('status').filter({ hasText: 'Saved as version 2' }).waitFor();
-    await page
+    await ui.getByLabel('What changed').fill('Letterhead names the stability unit and the study');
+    await ui.getByRole('button', { name: 'Save as version 2' }).click();
+    await ui.getByRole('status').filter({ hasText: 'Saved as version 2' }).waitFor();
+    await ui
       .getByRole('region', { name: 'Template source' })
       .getByRole('button', { name: 'Publish version 2' })
       .click();
-    await page.getByRole('status').filter({ hasText: 'Version 2 is published' }).waitFor();
-    const versions = page.getByRole('region', { name: 'Versions' });
+    await ui.getByRole('status').filter({ hasText: 'Version 2 is published' }).waitFor();
+    const versions = ui.getByRole('region', { name: 'Versions' });
     await versions.locator('tr[data-version="2"]').getByText('Published').waitFor();
 
     // Compare version 1 with version 2: only the letterhead changed.
     await versions.getByLabel('Compare version').selectOption({ label: '1' });
     await versions.getByLabel('with version').selectOption({ label: '2' });
     await versions.getByRole('button', { name: 'Compare' }).click();
-    const changes = page.getByRole('region', { name: 'Changes in Partial: letterhead' });
+    const changes = ui.getByRole('region', { name: 'Changes in Partial: letterhead' });
     await changes.locator('tr[data-kind="added"]').getByText(NEW_LETTERHEAD, { exact: false }).waitFor();
     await expect
       .poll(() => changes.locator('tr[data-kind="removed"]').allTextContents())
@@ -196,7 +206,7 @@ describe('template editor in Chromium', () => {
 
     const preview = await analyst.context.newPage();
     await preview.goto(`${server.url}/api/reports/${later.reportId}/versions/1/html`);
-    await preview.getByText(NEW_LETTERHEAD).first().waitFor();
+    await locate(preview).getByText(NEW_LETTERHEAD).first().waitFor();
     await preview.screenshot({ path: shot('template-report-after-publish.png') });
 
     expect(admin.errors).toEqual([]);

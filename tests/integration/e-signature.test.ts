@@ -5,13 +5,12 @@ import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
 import { isoDateTime } from '../../server/features/reports/render/template-format.ts';
-import { reportStorage, sha256Hex } from '../../server/features/reports/report-storage.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import {
   auditEvents,
   organisations,
@@ -21,6 +20,7 @@ import {
   signedOutputs,
   signingLockouts,
 } from '../../server/platform/db/schema/index.ts';
+import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';

@@ -5,6 +5,7 @@ import nodemailer from 'nodemailer';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
 import { appendAuditEvent } from '../../server/platform/audit/audit-trail.ts';
 import { auditEvents, outgoingMail, receivedMail } from '../../server/platform/db/schema/index.ts';
+import { logger } from '../../server/platform/logging/logger.ts';
 import { startLocalSmtpServer } from '../../server/platform/mail/local-smtp-server.ts';
 import { mailConfig } from '../../server/platform/mail/mail-config.ts';
 import {
@@ -142,12 +143,21 @@ describe('when delivery fails', () => {
   it('a closed port gives a recorded failure and a log line, and never an exception', async () => {
     const port = await closedPort();
     configureMailTransport({ url: `smtp://127.0.0.1:${port}`, from: mailConfig().from, mode: 'local' });
-    const logged = vi.spyOn(console, 'error').mockImplementation(() => {});
+    const logged = vi.spyOn(logger, 'error').mockImplementation(() => {});
     const address = `nobody.${port}@test.example`;
     const delivery = await sendMail(world.database.db, messageTo(address, { kind: 'report-signed' }));
     expect(delivery.status).toBe('failed');
     expect(delivery.reason).toMatch(/ECONNREFUSED/);
-    expect(logged).toHaveBeenCalledWith(expect.stringMatching(/NOT delivered \(report-signed to nobody/));
+    // One structured line with the kind and the count of recipients, never the addresses themselves.
+    expect(logged).toHaveBeenCalledWith(
+      expect.objectContaining({
+        kind: 'report-signed',
+        recipients: 1,
+        reason: expect.stringMatching(/ECONNREFUSED/),
+      }),
+      'mail not delivered',
+    );
+    expect(JSON.stringify(logged.mock.calls)).not.toContain(address);
     const [attempt] = await world.database.db
       .select()
       .from(outgoingMail)

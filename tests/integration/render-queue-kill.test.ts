@@ -4,11 +4,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
-import { sha256Hex } from '../../server/features/reports/report-storage.ts';
 import { createReport } from '../../server/features/reports/reports.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { auditEvents, reportVersions } from '../../server/platform/db/schema/index.ts';
+import { sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

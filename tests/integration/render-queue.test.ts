@@ -3,7 +3,6 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import {
   openRenderQueue,
   RENDER_DEAD_LETTER_QUEUE,
@@ -15,10 +14,11 @@ import {
   renderReportVersion,
 } from '../../server/features/reports/queue/render-report-job.ts';
 import { RenderFailure } from '../../server/features/reports/queue/report-renderer.ts';
-import { reportStorage } from '../../server/features/reports/report-storage.ts';
 import { createReport } from '../../server/features/reports/reports.ts';
 import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { auditEvents, reportVersions } from '../../server/platform/db/schema/index.ts';
+import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

@@ -1,9 +1,9 @@
 import { inArray, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { createReport, createReportVersion } from '../../server/features/reports/reports.ts';
 import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { reportVersions } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';

@@ -4,17 +4,17 @@ import os from 'node:os';
 import path from 'node:path';
 import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { renderReportVersion, sweepIncoming } from '../../server/features/reports/queue/render-report-job.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
-import { reportStorage, sha256Hex } from '../../server/features/reports/report-storage.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import {
   auditEvents,
   reportTemplateVersions,
   reportVersions,
 } from '../../server/platform/db/schema/index.ts';
+import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 

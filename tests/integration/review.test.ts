@@ -3,24 +3,28 @@ import os from 'node:os';
 import path from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { and, eq, sql } from 'drizzle-orm';
+import type { PgTable } from 'drizzle-orm/pg-core';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { checkAuditChain } from '../../server/features/audit-viewer/audit-viewer.ts';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
-import { reportStorage } from '../../server/features/reports/report-storage.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
 import { verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
 import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import {
   auditEvents,
   reportReviews,
   reportVersions,
   reviewAssignments,
+  signatures,
+  signedOutputs,
+  signingLockouts,
 } from '../../server/platform/db/schema/index.ts';
 import { mailConfig } from '../../server/platform/mail/mail-config.ts';
+import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
@@ -307,5 +311,57 @@ describe('the audit trail of the flow', () => {
       firstBrokenLink: { id: returned!.id, reason: 'content does not match its stored hash' },
     });
     expect((await verifyAuditChain(world.database.db)).ok).toBe(true);
+  });
+});
+
+describe('reading the review page', () => {
+  /** Rows of every table a review step writes, and of the audit trail. */
+  async function rowCounts() {
+    const { db } = world.database;
+    const count = async (table: PgTable) =>
+      (await db.select({ n: sql<number>`count(*)::int` }).from(table))[0]!.n;
+    return {
+      reportReviews: await count(reportReviews),
+      reviewAssignments: await count(reviewAssignments),
+      signatures: await count(signatures),
+      signedOutputs: await count(signedOutputs),
+      signingLockouts: await count(signingLockouts),
+      auditEvents: await count(auditEvents),
+    };
+  }
+
+  it('GET of the review page leaves the database unchanged, for a version never looked at before', async () => {
+    const token = csrfFrom((await agents.author!.get('/')).text);
+    const created = await agents
+      .author!.post(`/api/analyses/${runId}/reports`)
+      .set('x-csrf-token', token)
+      .send({});
+    expect(created.status).toBe(201);
+    const freshReportId = created.body.reportId as number;
+    const deadline = Date.now() + 60_000;
+    for (;;) {
+      const [row] = await world.database.db
+        .select()
+        .from(reportVersions)
+        .where(eq(reportVersions.reportId, freshReportId));
+      if (row?.renderStatus === 'ready' && (await storage.hasPdf(row.pdfSha256!))) break;
+      if (row?.renderStatus === 'failed' || Date.now() > deadline)
+        throw new Error(`render ${row?.renderStatus}`);
+      await new Promise((resolve) => setTimeout(resolve, 200));
+    }
+    const fresh = `/review/reports/${freshReportId}/versions/1`;
+
+    const before = await rowCounts();
+    const authorPage = await agents.author!.get(fresh);
+    expect(authorPage.status).toBe(200);
+    expect(authorPage.text).toContain('data-review-state="draft"');
+    expect(authorPage.text).toContain('Submit for review');
+    const reviewerPage = await agents.first!.get(fresh);
+    expect(reviewerPage.status).toBe(200);
+    expect(reviewerPage.text).toContain('data-review-state="draft"');
+    expect((await agents.first!.get(`${fresh}/signed.pdf`)).status).toBe(404);
+    expect((await agents.second!.get(url(1))).text).toContain('data-review-state="signed"');
+    expect((await agents.second!.get('/review')).status).toBe(200);
+    expect(await rowCounts()).toEqual(before);
   });
 });

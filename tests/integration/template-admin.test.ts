@@ -2,10 +2,10 @@ import { createHash } from 'node:crypto';
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { DEMO_PRODUCT } from '../../server/demo/demo-study.ts';
-import { parseRenderConfig } from '../../server/features/reports/queue/render-config.ts';
 import { openRenderQueue, type RenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { createReport } from '../../server/features/reports/reports.ts';
 import type { SessionUser } from '../../server/platform/auth/roles.ts';
+import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import {
   auditEvents,
   reportTemplates,

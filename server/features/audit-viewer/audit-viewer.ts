@@ -14,6 +14,7 @@
  */
 import { and, count, desc, eq, gte, ilike, lt, type SQL, sql } from 'drizzle-orm';
 import { AUDIT_PAGE_SIZE, type AuditFilter } from '../../../shared/api/audit.ts';
+import { isKnownTimeZone, wallClockWithOffset } from '../../../shared/time/zoned-time.ts';
 import { GENESIS_HASH } from '../../platform/audit/audit-hash.ts';
 import { appendAuditEvent, type ChainCheck, verifyAuditChain } from '../../platform/audit/audit-trail.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
@@ -42,12 +43,7 @@ export async function auditOrganisation(db: Executor, organisationId: number): P
   const known = await db.execute<{ known: boolean }>(
     sql`select exists(select 1 from pg_timezone_names where name = ${row.timeZone}) as known`,
   );
-  let valid = known.rows[0]?.known === true;
-  try {
-    new Intl.DateTimeFormat('en', { timeZone: row.timeZone });
-  } catch {
-    valid = false;
-  }
+  const valid = known.rows[0]?.known === true && isKnownTimeZone(row.timeZone);
   return {
     id: row.id,
     name: row.name,
@@ -227,32 +223,8 @@ export async function lastAuditEventId(db: Executor): Promise<number> {
 // ——— How an event reads on the page ———
 
 const HASH_SHOWN = 12;
-const formatters = new Map<string, Intl.DateTimeFormat>();
-
-/**
- * An instant as wall-clock time in a zone with its UTC offset, e.g. `2025-03-14 11:22:05 UTC+01:00`
- * for 10:22:05Z in Europe/Berlin, so a reader never has to guess which clock a time is on.
- */
-export function zonedTime(instant: Date, timeZone: string): string {
-  let formatter = formatters.get(timeZone);
-  if (!formatter) {
-    formatter = new Intl.DateTimeFormat('en-CA', {
-      timeZone,
-      year: 'numeric',
-      month: '2-digit',
-      day: '2-digit',
-      hour: '2-digit',
-      minute: '2-digit',
-      second: '2-digit',
-      hourCycle: 'h23',
-      timeZoneName: 'longOffset',
-    });
-    formatters.set(timeZone, formatter);
-  }
-  const part = Object.fromEntries(formatter.formatToParts(instant).map((piece) => [piece.type, piece.value]));
-  const offset = (part.timeZoneName ?? 'GMT').replace('GMT', 'UTC');
-  return `${part.year}-${part.month}-${part.day} ${part.hour}:${part.minute}:${part.second} ${offset}`;
-}
+/** An instant on the organisation's clock with its offset (`wallClockWithOffset`, shared/time). */
+export const zonedTime = wallClockWithOffset;
 
 export interface DiffLine {
   key: string;

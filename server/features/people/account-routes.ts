@@ -7,13 +7,9 @@ import { publicRoute } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { describePasswordPolicy } from '../settings/index.ts';
-import {
-  acceptInvitation,
-  closedLinkMessage,
-  type InvitationView,
-  openInvitation,
-  PasswordPolicyError,
-} from './invitations.ts';
+import { acceptInvitation, type InvitationView, openInvitation } from './accept-invitation.ts';
+import { closedLinkMessage } from './link-tokens.ts';
+import { PasswordPolicyError } from './password-policy-error.ts';
 import { completePasswordReset, openPasswordReset, type PasswordResetView } from './password-reset.ts';
 
 /**

@@ -20,13 +20,8 @@ import {
   passwordProblems,
   strictestPolicy,
 } from '../settings/index.ts';
-import {
-  closedLinkMessage,
-  type LinkState,
-  newLinkToken,
-  PasswordPolicyError,
-  tokenDigest,
-} from './invitations.ts';
+import { closedLinkMessage, type LinkState, newLinkToken, tokenDigest } from './link-tokens.ts';
+import { PasswordPolicyError } from './password-policy-error.ts';
 import { findMember } from './user-admin.ts';
 
 /**

@@ -15,8 +15,9 @@ import { HttpError } from '../../platform/http/http-error.ts';
 import { noticeAndBack, takeNotice } from '../../platform/web/admin-notice.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { describePasswordPolicy, loadOrganisationSettings } from '../settings/index.ts';
-import { inviteMember, listPendingInvitations, revokeInvitation } from './invitations.ts';
+import { inviteMember } from './invite-member.ts';
 import { requestPasswordReset } from './password-reset.ts';
+import { listPendingInvitations, revokeInvitation } from './pending-invitations.ts';
 import {
   deactivateMember,
   findMember,

@@ -1,7 +1,9 @@
 /** What other features and the app may use from the reports feature. */
+
+export * from '../../platform/config/render-config.ts';
+export * from '../../platform/storage/report-storage.ts';
 export * from './pdf/browser-pool.ts';
 export * from './queue/in-process-worker.ts';
-export * from './queue/render-config.ts';
 export * from './queue/render-pipeline.ts';
 export * from './queue/render-queue.ts';
 export * from './queue/render-report-job.ts';
@@ -15,6 +17,5 @@ export * from './render/template-engine.ts';
 export * from './render/template-format.ts';
 export * from './render/template-helpers.ts';
 export * from './report-routes.ts';
-export * from './report-storage.ts';
 export * from './report-templates.ts';
 export * from './reports.ts';

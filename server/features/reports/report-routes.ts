@@ -9,13 +9,12 @@ import {
   runIdParamSchema,
 } from '../../../shared/api/reports.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { logger } from '../../platform/logging/logger.ts';
-import { parseRenderConfig } from './queue/render-config.ts';
 import { openRenderQueue } from './queue/render-queue.ts';
 import { getReportDetail, getVersionOutput, listReports, reportFilterOptions } from './report-history.ts';
-import { reportStorage } from './report-storage.ts';
 import { type CreatedReport, createReport, createReportVersion } from './reports.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -37,11 +36,6 @@ const PREVIEW_CSP = [
   'sandbox',
 ].join('; ');
 
-const auditContext = (ip: string | undefined, userAgent: string | undefined) => ({
-  ip: ip ?? null,
-  userAgent: userAgent ?? null,
-});
-
 const created = (report: CreatedReport): CreateReportResponse => ({
   reportId: report.reportId,
   reportNumber: report.reportNumber,
@@ -51,22 +45,14 @@ const created = (report: CreatedReport): CreateReportResponse => ({
 
 export function reportRoutes(services: AppServices): Router {
   const router = Router();
-  const config = parseRenderConfig();
+  const { renderConfig: config, storage } = services;
   // The web process only sends jobs, through the app's own pool and its transactions.
   const queue = openRenderQueue({ config, pool: services.pool, supervise: false });
-  const storage = reportStorage(config.reportsDir);
 
   router.post('/api/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
     const { runId } = runIdParamSchema.parse(req.params);
     const request = createReportRequestSchema.parse(req.body ?? {});
-    const report = await createReport(
-      services.db,
-      queue,
-      req.user!,
-      runId,
-      request,
-      auditContext(req.ip, req.get('user-agent')),
-    );
+    const report = await createReport(services.db, queue, req.user!, runId, request, auditContext(req));
     res.status(201).location(`/app/reports/${report.reportId}`).json(created(report));
   });
 
@@ -74,28 +60,14 @@ export function reportRoutes(services: AppServices): Router {
   router.post('/analyses/:runId/reports', requireRole('analyst'), async (req, res) => {
     const { runId } = runIdParamSchema.parse(req.params);
     const request = createReportRequestSchema.parse(req.body ?? {});
-    const report = await createReport(
-      services.db,
-      queue,
-      req.user!,
-      runId,
-      request,
-      auditContext(req.ip, req.get('user-agent')),
-    );
+    const report = await createReport(services.db, queue, req.user!, runId, request, auditContext(req));
     res.redirect(303, `/app/reports/${report.reportId}`);
   });
 
   router.post('/api/reports/:id/versions', requireRole('analyst'), async (req, res) => {
     const { id } = reportIdParamSchema.parse(req.params);
     const request = createReportVersionRequestSchema.parse(req.body ?? {});
-    const report = await createReportVersion(
-      services.db,
-      queue,
-      req.user!,
-      id,
-      request,
-      auditContext(req.ip, req.get('user-agent')),
-    );
+    const report = await createReportVersion(services.db, queue, req.user!, id, request, auditContext(req));
     res.status(201).json(created(report));
   });
 

@@ -11,18 +11,16 @@ import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { logger } from '../../platform/logging/logger.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
-import { parseRenderConfig, reportStorage, sha256Hex } from '../reports/index.ts';
+import { sha256Hex } from '../reports/index.ts';
 import { latestSignedOutput } from '../signing/index.ts';
 import { signReportVersion } from './e-signature.ts';
-import {
-  loadReviewVersion,
-  returnedToMe,
-  returnForRework,
-  reviewPageModel,
-  reviewPath,
-  reviewQueue,
-  submitForReview,
-} from './review.ts';
+import { returnForRework } from './return-for-rework.ts';
+import type { ReviewActionContext } from './review-action.ts';
+import { reviewPageModel } from './review-page-model.ts';
+import { reviewPath } from './review-paths.ts';
+import { returnedToMe, reviewQueue } from './review-queue.ts';
+import { loadReviewVersion } from './review-version.ts';
+import { submitForReview } from './submit-for-review.ts';
 
 declare module 'express-session' {
   interface SessionData {
@@ -54,8 +52,13 @@ function fieldErrors(error: HttpError): Record<string, string> {
  */
 export function reviewRoutes(services: AppServices): Router {
   const router = Router();
-  const storage = reportStorage(parseRenderConfig().reportsDir);
+  const { storage } = services;
   const { db } = services;
+  const actionContext = (req: Request): ReviewActionContext => ({
+    db,
+    actor: req.user!,
+    audit: auditContext(req),
+  });
 
   async function showPage(
     req: Request,
@@ -136,28 +139,22 @@ export function reviewRoutes(services: AppServices): Router {
 
   router.post('/review/reports/:reportId/versions/:version/submit', requireRole('analyst'), (req, res) =>
     formAction(req, res, 'submit', async ({ reportId, version }) => {
-      const outcome = await submitForReview(
-        db,
-        req.user!,
-        reportId,
-        version,
-        submitForReviewSchema.parse(req.body ?? {}),
-        auditContext(req),
-      );
+      const outcome = await submitForReview({
+        target: { reportId, versionNumber: version },
+        request: submitForReviewSchema.parse(req.body ?? {}),
+        context: actionContext(req),
+      });
       return `Submitted for review (round ${outcome.round}) to ${outcome.reviewers.map((person) => person.fullName).join(', ')}.`;
     }),
   );
 
   router.post('/review/reports/:reportId/versions/:version/return', requireRole('reviewer'), (req, res) =>
     formAction(req, res, 'return', async ({ reportId, version }) => {
-      await returnForRework(
-        db,
-        req.user!,
-        reportId,
-        version,
-        returnForReworkSchema.parse(req.body ?? {}),
-        auditContext(req),
-      );
+      await returnForRework({
+        target: { reportId, versionNumber: version },
+        request: returnForReworkSchema.parse(req.body ?? {}),
+        context: actionContext(req),
+      });
       return 'Returned to the author with your comment.';
     }),
   );
@@ -166,16 +163,11 @@ export function reviewRoutes(services: AppServices): Router {
   router.post('/review/reports/:reportId/versions/:version/sign', requireRole(...READERS), (req, res) =>
     formAction(req, res, 'sign', async ({ reportId, version }) => {
       const input = signReportSchema.parse(req.body ?? {});
-      const outcome = await signReportVersion(
-        db,
-        storage,
-        req.user!,
-        req.session,
-        reportId,
-        version,
-        input,
-        auditContext(req),
-      );
+      const outcome = await signReportVersion({
+        target: { reportId, versionNumber: version },
+        request: input,
+        context: { ...actionContext(req), storage, session: req.session },
+      });
       req.session.firstSigningDone = true;
       await new Promise<void>((resolve, reject) =>
         req.session.save((error) => (error ? reject(error) : resolve())),

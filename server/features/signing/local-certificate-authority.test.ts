@@ -4,7 +4,9 @@ import { readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, describe, expect, it } from 'vitest';
+import { createCertificateAuthority, issueSigningCertificate } from './issue-certificates.ts';
 import { clearSigningIdentityCache, loadSigningIdentity } from './local-certificate-authority.ts';
+import { readPkcs12, writePkcs12 } from './pkcs12.ts';
 import { sealPdf } from './seal-pdf.ts';
 import { signingConfigFromEnv } from './signing-config.ts';
 import { samplePdf, scratchDir, tool } from './signing-test-support.ts';
@@ -169,5 +171,57 @@ describe('a configured certificate', () => {
 
   it('a P12 path without its passphrase is a configuration error naming the variable', () => {
     expect(() => signingConfigFromEnv({ SIGNING_P12_PATH: '/x.p12' })).toThrow(/SIGNING_P12_PASSPHRASE/);
+  });
+});
+
+describe('PKCS#12 files', () => {
+  it('carry the issued certificates byte for byte, and open with OpenSSL', async () => {
+    const authority = await createCertificateAuthority({ commonName: 'Rateledger test CA (invented)' });
+    const signer = await issueSigningCertificate({ authority, organisation: organisationName });
+    const p12 = writePkcs12(
+      signer.privateKeyPem,
+      [signer.certificatePem, authority.certificatePem],
+      'pw',
+      'x',
+    );
+    const contents = readPkcs12(p12, 'pw');
+    expect(contents.certificate.raw.equals(new X509Certificate(signer.certificatePem).raw)).toBe(true);
+    expect(contents.chain.map((certificate) => certificate.raw.toString('hex'))).toEqual([
+      new X509Certificate(authority.certificatePem).raw.toString('hex'),
+    ]);
+    const file = path.join(fresh('p12'), 'org.p12');
+    writeFileSync(file, p12);
+    await expect(
+      run('openssl', ['pkcs12', '-in', file, '-noout', '-passin', 'pass:pw']),
+    ).resolves.toBeDefined();
+  });
+
+  it('open the legacy format (RC2-40 certificates, 3DES key) that OpenSSL 1.x writes and pkijs cannot decrypt', async () => {
+    const folder = fresh('p12-legacy');
+    await run(
+      'bash',
+      [
+        '-c',
+        [
+          'set -e',
+          'openssl req -x509 -newkey rsa:2048 -nodes -keyout key.pem -out cert.pem -days 2 -subj "/CN=Legacy Lab (invented)"',
+          'openssl pkcs12 -export -legacy -inkey key.pem -in cert.pem -out legacy.p12 -passout pass:pw',
+        ].join('\n'),
+      ],
+      { cwd: folder },
+    );
+    const info = await run(
+      'openssl',
+      ['pkcs12', '-legacy', '-info', '-noout', '-passin', 'pass:pw', '-in', 'legacy.p12'],
+      {
+        cwd: folder,
+      },
+    );
+    expect(info.stderr).toContain('pbeWithSHA1And40BitRC2-CBC');
+    const contents = readPkcs12(readFileSync(path.join(folder, 'legacy.p12')), 'pw');
+    expect(contents.certificate.fingerprint256).toBe(
+      new X509Certificate(readFileSync(path.join(folder, 'cert.pem'))).fingerprint256,
+    );
+    expect(contents.certificate.checkPrivateKey(contents.privateKey)).toBe(true);
   });
 });

@@ -6,9 +6,8 @@ import {
   createCertificateAuthority,
   type IssuedCertificate,
   issueSigningCertificate,
-  toPkcs12,
 } from './issue-certificates.ts';
-import { readPkcs12 } from './read-pkcs12.ts';
+import { readPkcs12, writePkcs12 } from './pkcs12.ts';
 import type { SigningConfig } from './signing-config.ts';
 import { writeFileAtomic } from './write-file-atomic.ts';
 
@@ -176,7 +175,7 @@ async function loadLocalIdentity(request: SigningIdentityRequest): Promise<Signi
     const authority = await ensureAuthority(signingDir, passphrase);
     if (existsSync(signerFile)) renameSync(signerFile, `${signerFile}.replaced-${Date.now()}`);
     const signer = await issueSigningCertificate({ authority, organisation });
-    const p12 = toPkcs12(
+    const p12 = writePkcs12(
       signer.privateKeyPem,
       [signer.certificatePem, authority.certificatePem],
       passphrase,

@@ -4,7 +4,7 @@ import { addSignaturePlaceholder } from './add-signature-placeholder.ts';
 import type { SigningIdentity } from './local-certificate-authority.ts';
 import { PadesSigner } from './pades-signer.ts';
 import { PdfSealError } from './pdf-seal-error.ts';
-import { type Pkcs12Contents, readPkcs12 } from './read-pkcs12.ts';
+import { type Pkcs12Contents, readPkcs12 } from './pkcs12.ts';
 
 /**
  * Seals a PDF with the organisation's certificate: a PAdES baseline B-B signature (SubFilter

@@ -11,7 +11,7 @@ import {
 } from '../../platform/db/schema/index.ts';
 import { logger } from '../../platform/logging/logger.ts';
 import { isoDateTime, sha256Hex } from '../reports/index.ts';
-import { reviewPath } from '../review/index.ts';
+import { reviewPath, signedPdfPath } from '../review/index.ts';
 import { organisationSigningIdentity, verifyPdfSeal } from '../signing/index.ts';
 
 /**
@@ -206,7 +206,7 @@ export async function signedRecordsOfReport(db: Executor, actor: SessionUser, re
         sha256: output.pdfSha256,
         byteSize: output.pdfByteSize,
         reviewUrl: reviewPath(report.id, versionNumber),
-        downloadUrl: `${reviewPath(report.id, versionNumber)}/signed.pdf`,
+        downloadUrl: signedPdfPath(report.id, versionNumber),
         signatures: await signaturesOf(db, versionId, organisation?.timeZone ?? 'UTC'),
       })),
     ),

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
+import { mailTime } from '../../../shared/time/zoned-time.ts';
 import { DEFAULT_PUBLIC_URL, parseMailConfig } from './mail-config.ts';
 import {
   absoluteLink,
-  formatMailTime,
   invitationMail,
   passwordResetMail,
   reportReturnedMail,
@@ -97,14 +97,14 @@ describe('message templates', () => {
     }
   });
 
-  it('formatMailTime prints UTC by default and names offset and zone otherwise', () => {
-    expect(formatMailTime(new Date('2026-01-02T03:04:05Z'))).toBe('2026-01-02 03:04 UTC');
+  it('mailTime prints UTC by default and names offset and zone otherwise', () => {
+    expect(mailTime(new Date('2026-01-02T03:04:05Z'))).toBe('2026-01-02 03:04 UTC');
     // London is on GMT (UTC+0) in January (IANA tz database).
-    expect(formatMailTime(new Date('2026-01-02T03:04:05Z'), 'Europe/London')).toBe(
+    expect(mailTime(new Date('2026-01-02T03:04:05Z'), 'Europe/London')).toBe(
       '2026-01-02 03:04 (UTC+00:00, Europe/London)',
     );
     // Kolkata is UTC+05:30 all year (IANA tz database).
-    expect(formatMailTime(new Date('2026-01-02T03:04:05Z'), 'Asia/Kolkata')).toBe(
+    expect(mailTime(new Date('2026-01-02T03:04:05Z'), 'Asia/Kolkata')).toBe(
       '2026-01-02 08:34 (UTC+05:30, Asia/Kolkata)',
     );
   });

@@ -1,3 +1,4 @@
+import { mailTime } from '../../../shared/time/zoned-time.ts';
 import { mailConfig } from './mail-config.ts';
 
 /**
@@ -48,32 +49,6 @@ export function absoluteLink(sitePath: string): string {
     throw new TypeError(`a link in a message must be a path on this site, not "${sitePath}"`);
   }
   return `${mailConfig().publicUrl}${sitePath}`;
-}
-
-/**
- * The date and time in the organisation's zone, with the zone and its UTC offset named, so that no
- * abbreviation (CST, IST) is ambiguous: `2026-06-01 14:30 (UTC+02:00, Europe/Berlin)`, or
- * `2026-06-01 12:30 UTC` when the zone is UTC.
- */
-export function formatMailTime(date: Date, timeZone = 'UTC'): string {
-  const parts = Object.fromEntries(
-    new Intl.DateTimeFormat('en-GB', {
-      timeZone,
-      year: 'numeric',
-      month: '2-digit',
-      day: '2-digit',
-      hour: '2-digit',
-      minute: '2-digit',
-      hourCycle: 'h23',
-      timeZoneName: 'longOffset',
-    })
-      .formatToParts(date)
-      .map((part) => [part.type, part.value]),
-  );
-  const local = `${parts.year}-${parts.month}-${parts.day} ${parts.hour}:${parts.minute}`;
-  if (timeZone === 'UTC' || timeZone === 'Etc/UTC') return `${local} UTC`;
-  const offset = parts.timeZoneName === 'GMT' ? '+00:00' : String(parts.timeZoneName).replace('GMT', '');
-  return `${local} (UTC${offset}, ${timeZone})`;
 }
 
 const oneLine = (value: string) => value.replace(/\s+/g, ' ').trim();
@@ -161,7 +136,7 @@ export function reportSignedMail(
     `${input.reportNumber}: signed (${input.meaning}) — ${input.reportTitle} (version ${input.versionNumber})`,
     `Dear ${input.authorName},`,
     [
-      `${input.signerName} signed report ${reportLine(input)} on ${formatMailTime(input.signedAt, input.timeZone)}, meaning: ${input.meaning}.`,
+      `${input.signerName} signed report ${reportLine(input)} on ${mailTime(input.signedAt, input.timeZone)}, meaning: ${input.meaning}.`,
       'The signed version is locked; any correction is a new version that goes through review again.',
       { label: 'Open the report', href: absoluteLink(input.reportPath) },
     ],
@@ -183,7 +158,7 @@ export function invitationMail(input: {
     [
       `${input.inviterName} invites you to join ${input.organisationName} on Rateledger.`,
       { label: 'Accept the invitation and choose your password', href: absoluteLink(input.actionPath) },
-      `The link works once and until ${formatMailTime(input.expiresAt, input.timeZone)}. If you did not expect this invitation, ignore this message.`,
+      `The link works once and until ${mailTime(input.expiresAt, input.timeZone)}. If you did not expect this invitation, ignore this message.`,
     ],
   );
 }
@@ -198,6 +173,6 @@ export function passwordResetMail(input: {
   return compose('Reset your Rateledger password', `Dear ${input.recipientName},`, [
     'Someone (we hope you) asked to reset the password of your Rateledger account.',
     { label: 'Choose a new password', href: absoluteLink(input.actionPath) },
-    `The link works once and until ${formatMailTime(input.expiresAt, input.timeZone)}. If you did not ask for this, ignore this message: your password stays as it is.`,
+    `The link works once and until ${mailTime(input.expiresAt, input.timeZone)}. If you did not ask for this, ignore this message: your password stays as it is.`,
   ]);
 }

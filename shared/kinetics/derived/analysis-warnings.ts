@@ -1,7 +1,7 @@
-import type { AnalysisWarning, SeriesAnalysis, SeriesOptions } from '../analyse-series.ts';
 import type { RateLawFit } from '../order/fit-rate-law.ts';
 import { DECISIVE_DELTA_AICC, MIN_FRACTION_REACTED } from '../order/order-decision-thresholds.ts';
-import type { OrderSelection } from '../order/select-order.ts';
+import type { OrderSelection } from '../order/order-selection.ts';
+import type { AnalysisWarning, SeriesAnalysis, SeriesOptions } from '../series-analysis.ts';
 
 /**
  * The warnings an analysis carries, each with a code a program can branch on and a sentence for the analyst:

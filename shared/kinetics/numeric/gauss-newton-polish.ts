@@ -6,8 +6,14 @@ import { solveUpperTriangular } from './solve-upper-triangular.ts';
 const MAX_POLISH_STEPS = 8;
 /** A polishing step is kept only if it at most this much larger than half the previous one. */
 const REQUIRED_STEP_CONTRACTION = 0.5;
-/** The sum of squares may rise by this relative amount (rounding noise) when a step is kept. */
+/** The sum of squares may always rise by this relative amount (rounding noise) when a step is kept. */
 const SUM_OF_SQUARES_NOISE = 64 * Number.EPSILON;
+/**
+ * Units in the last place by which one evaluation of a model (a few exponentials, logarithms or
+ * powers) may be off. Each residual then carries an error of about this many ulps of the value
+ * it is the difference of, and the sum of squares a rounding noise of 2·Σ|rᵢ|·(that error).
+ */
+const MODEL_ROUNDING_UNITS = 8;
 /** Polishing ends when the scaled step is this small relative to the scaled parameters. */
 const POLISH_STEP_TOLERANCE = 4 * Number.EPSILON;
 /** Columns whose scaled diagonal falls below this fraction of the largest end the polishing. */
@@ -26,7 +32,14 @@ const POLISH_RANK_TOLERANCE = 1e-13;
  * Formula in words: with the column-scaled pivoted QR of J at the current point, step =
  * −J⁺·f; keep it when it is at most half the previous step and the sum of squares has not risen
  * beyond rounding noise; stop when the step is a few machine epsilons of the parameters, when a
- * step is rejected, or when J is numerically rank deficient.
+ * step is rejected, or when J is numerically rank deficient. The rounding noise of the sum of
+ * squares is 2·Σ|rᵢ|·eᵢ with eᵢ = `MODEL_ROUNDING_UNITS`·ε·(sᵢ + |rᵢ|), sᵢ = √wᵢ·|yᵢ| the size of
+ * the values each residual is the difference of (`valueScales`), and never less than 64·ε·RSS.
+ * The size of the values matters, not only the size of the residuals: where the residuals are a
+ * thousandth of the values (log-scale rate-law fits with a free order), the sum of squares is
+ * noisy at about 1e-12 of itself, a real Gauss–Newton step near the minimum lowers it by less, and
+ * a 64·ε bound alone rejected those steps and left parameters 1e-6 short of the minimum (measured
+ * against a 50-digit solution; `order/rate-law-solver-agreement.test.ts`).
  *
  * Reference: Å. Björck, "Numerical Methods for Least Squares Problems", SIAM 1996, §9.2.1
  * (Gauss–Newton, local convergence); P. E. Gill, W. Murray, M. H. Wright, "Practical
@@ -42,6 +55,7 @@ export function gaussNewtonPolish(
   residuals: (parameters: readonly number[], out: Float64Array) => void,
   jacobianColumns: (parameters: readonly number[]) => Float64Array[],
   rows: number,
+  valueScales: ArrayLike<number>,
 ): { parameters: number[]; residualNorm: number; steps: number; evaluations: number } {
   let parameters = [...start];
   let residualNorm = startNorm;
@@ -86,7 +100,11 @@ export function gaussNewtonPolish(
     residuals(trial, trialResiduals);
     evaluations++;
     const trialNorm = euclideanNorm(trialResiduals);
-    if (!(Number.isFinite(trialNorm) && trialNorm ** 2 <= residualNorm ** 2 * (1 + SUM_OF_SQUARES_NOISE))) {
+    const noise = Math.max(
+      SUM_OF_SQUARES_NOISE * residualNorm ** 2,
+      sumOfSquaresRounding(residualVector, valueScales) + sumOfSquaresRounding(trialResiduals, valueScales),
+    );
+    if (!(Number.isFinite(trialNorm) && trialNorm ** 2 <= residualNorm ** 2 + noise)) {
       break;
     }
     parameters = trial;
@@ -99,4 +117,14 @@ export function gaussNewtonPolish(
     }
   }
   return { parameters, residualNorm, steps, evaluations };
+}
+
+/** Rounding noise 2·Σ|rᵢ|·eᵢ of a sum of squared residuals, eᵢ = `MODEL_ROUNDING_UNITS`·ε·(sᵢ + |rᵢ|). */
+function sumOfSquaresRounding(residualVector: Float64Array, valueScales: ArrayLike<number>): number {
+  let noise = 0;
+  for (let i = 0; i < residualVector.length; i++) {
+    const residual = Math.abs(residualVector[i]!);
+    noise += 2 * residual * MODEL_ROUNDING_UNITS * Number.EPSILON * (valueScales[i]! + residual);
+  }
+  return noise;
 }

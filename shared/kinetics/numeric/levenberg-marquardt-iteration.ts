@@ -11,6 +11,8 @@ export interface LevenbergMarquardtSettings {
   relativeStepTolerance: number;
   gradientTolerance: number;
   initialStepFactor: number;
+  /** √wᵢ·|yᵢ| per observation: the size of what each residual is a difference of (rounding noise). */
+  valueScales: ArrayLike<number>;
 }
 
 /** Where a run stopped. */
@@ -59,7 +61,14 @@ export function runLevenbergMarquardt(
   let residualNorm = finiteNorm(residualVector);
   const stop = (converged: boolean, reason: string, iterations: number): LevenbergMarquardtState => {
     if (converged && residualNorm > 0) {
-      const polished = gaussNewtonPolish(parameters, residualNorm, residuals, jacobianColumns, rows);
+      const polished = gaussNewtonPolish(
+        parameters,
+        residualNorm,
+        residuals,
+        jacobianColumns,
+        rows,
+        settings.valueScales,
+      );
       parameters = polished.parameters;
       residualNorm = polished.residualNorm;
       functionEvaluations += polished.evaluations;

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
+import { stabilityProgramme } from './benchmark-series.ts';
 import { KineticsError } from './kinetics-error.ts';
-import { fitNonlinearOrThrow, levenbergMarquardt, type NonlinearProblem } from './levenberg-marquardt.ts';
+import { levenbergMarquardt, type NonlinearProblem } from './levenberg-marquardt.ts';
 import { NIST_NONLINEAR_HIGHER, NIST_NONLINEAR_LOWER_AVERAGE, nistNonlinearProblem } from './nist-models.ts';
 import { type NistDataset, readNistDataset, significantDigits } from './nist-strd-reader.ts';
 
@@ -134,17 +135,11 @@ describe('levenbergMarquardt small cases and degenerate inputs', () => {
     expect(fit.converged).toBe(true);
     expect(fit.parameters[0]).toBeCloseTo(0.04, 10);
   });
-  it('the iteration limit gives converged: false and fitNonlinearOrThrow throws not-converged', () => {
+  it('the iteration limit gives converged: false with a reason', () => {
     const limited = levenbergMarquardt(decay, { maxIterations: 1 });
     expect(limited.converged).toBe(false);
     expect(limited.reason).toMatch(/iterations/);
-    expect(() => fitNonlinearOrThrow(decay, { maxIterations: 1 })).toThrowError(KineticsError);
-    try {
-      fitNonlinearOrThrow(decay, { maxIterations: 1 });
-    } catch (error) {
-      expect((error as KineticsError).code).toBe('not-converged');
-    }
-    expect(fitNonlinearOrThrow(decay).converged).toBe(true);
+    expect(levenbergMarquardt(decay).converged).toBe(true);
   });
   it('NaN or Infinity in the data or start → invalid-input; n ≤ p → too-few-points', () => {
     const codeOf = (problem: NonlinearProblem): string | undefined => {
@@ -170,4 +165,41 @@ describe('levenbergMarquardt small cases and degenerate inputs', () => {
     expect(weighted.parameters[1]).toBeCloseTo(replicated.parameters[1]!, 9);
     expect(weighted.residualSumOfSquares).toBeCloseTo(replicated.residualSumOfSquares, 12);
   });
+});
+
+describe('levenbergMarquardt polish when the sum of squares is noisier than 64 ε', () => {
+  // A free-order rate law fitted on the log scale: ln C = ln(C0^(1−n) + (n − 1)·k·t)/(1 − n), to the
+  // logarithms of benchmark lot 679 (`stabilityProgramme()`, 12 points). Its residuals are about a
+  // thousandth of the values they are differences of, so the sum of squares carries rounding noise
+  // near 1e-12 of itself; a polish that allowed only 64 ε of rise rejected the last Gauss–Newton
+  // steps and stopped 7.6–8.1 digits from the minimum (measured before the change).
+  // Reference: the minimum computed with mpmath 1.3.0 at 60 digits (Gauss–Newton to a step below 1e-45).
+  const minimum = [99.7480852143026, 0.0362039817134937, 0.708954946213065]; // 15 of the 60 digits
+  const lot = stabilityProgramme()[679]!;
+  const base = (b: readonly number[], t: number) => b[0]! ** (1 - b[2]!) + (b[2]! - 1) * b[1]! * t;
+  const problem = (initial: number[]): NonlinearProblem => ({
+    model: (b, t) => Math.log(base(b, t)) / (1 - b[2]!),
+    jacobian: (b, t) => {
+      const value = base(b, t);
+      const m = 1 - b[2]!;
+      const valueByOrder = -Math.log(b[0]!) * b[0]! ** m + b[1]! * t;
+      return [b[0]! ** -b[2]! / value, -t / value, valueByOrder / (value * m) + Math.log(value) / (m * m)];
+    },
+    x: lot.observations.map((point) => point.time),
+    y: lot.observations.map((point) => Math.log(point.value)),
+    initial,
+  });
+  for (const initial of [
+    [100, 0.05, 1.2],
+    [99, 0.03, 0.5],
+    [100, 0.04, 1.5],
+  ]) {
+    it(`reaches the 60-digit minimum to ≥ 11 digits from (${initial.join(', ')})`, () => {
+      const fit = levenbergMarquardt(problem(initial));
+      expect(fit.converged).toBe(true);
+      minimum.forEach((value, j) => {
+        expect(significantDigits(fit.parameters[j]!, value)).toBeGreaterThanOrEqual(11);
+      });
+    });
+  }
 });

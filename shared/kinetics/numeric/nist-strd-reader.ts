@@ -1,7 +1,7 @@
 /**
  * Test support (not part of the engine): reads a NIST Statistical Reference Dataset and its
- * certified values from the project's reference-data folder, which lives beside the
- * repository (`<repo>/../shared/reference-data/nist-strd`) and is read at run time only.
+ * certified values from the repository's own copy in `tests/fixtures/nist-strd/` (see the README
+ * there for the source and which test uses which file), so a clone with nothing beside it passes.
  *
  * The `.dat` files are NIST's own (CRLF line endings); `certified.json` beside them holds the
  * certified values as the exact strings printed in each file's header and the 1-based line
@@ -11,17 +11,11 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { fileURLToPath } from 'node:url';
 
-const repositoryRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
-/** Where the NIST StRD files are kept, outside the repository. */
-export const NIST_STRD_DIRECTORY = path.resolve(
-  repositoryRoot,
-  '..',
-  'shared',
-  'reference-data',
-  'nist-strd',
-);
+/** This file sits in `<repository>/shared/kinetics/numeric/`; resolved from it, not from the working directory. */
+const repositoryRoot = path.resolve(import.meta.dirname, '..', '..', '..');
+/** Where the NIST StRD files are kept: inside the repository, as test fixtures. */
+export const NIST_STRD_DIRECTORY = path.join(repositoryRoot, 'tests', 'fixtures', 'nist-strd');
 
 export interface CertifiedParameter {
   name: string;

@@ -1,5 +1,8 @@
 import { KineticsError } from '../numeric/kinetics-error.ts';
-import type { ErrorModel } from '../types.ts';
+import type { ErrorModel, RateLawModel } from '../types.ts';
+
+export type { RateLawModel } from '../types.ts';
+
 import { type NormalEquations, rateLawObjective } from './rate-law-objective.ts';
 import { invertSmallSymmetric, solveSmallSymmetric } from './small-cholesky.ts';
 
@@ -43,8 +46,6 @@ import { invertSmallSymmetric, solveSmallSymmetric } from './small-cholesky.ts';
  * Example: `fitRateLaw(1, [0, 1, 2], [100, 50, 25], 'constant', { initialValue: 90, rateConstant: 0.5 })`
  * gives initialValue 100 and rateConstant ln 2 = 0.6931 (an exact fit).
  */
-
-export type RateLawModel = 0 | 1 | 2 | 'n';
 
 export interface RateLawStart {
   initialValue: number;

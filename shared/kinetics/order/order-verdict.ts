@@ -5,7 +5,7 @@ import {
   ORDER_CONSISTENCY_ALPHA,
   SYSTEMATIC_MISFIT_ALPHA,
 } from './order-decision-thresholds.ts';
-import type { OrderSelection } from './select-order.ts';
+import type { OrderSelection } from './order-selection.ts';
 
 /**
  * The order decision in a chemist's words: what was named and on what evidence, or why no order is named —

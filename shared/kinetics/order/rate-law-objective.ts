@@ -1,4 +1,4 @@
-import type { RateLawModel } from './fit-rate-law.ts';
+import type { RateLawModel } from '../types.ts';
 import { initialRateLawAt, prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
 
 /**

@@ -1,6 +1,6 @@
 import { studentTQuantile } from '../numeric/student-t-quantile.ts';
 import type { IntegerOrder } from '../types.ts';
-import { extraSumOfSquaresFTest, type FTestResult } from './extra-sum-of-squares-f-test.ts';
+import { extraSumOfSquaresFTest } from './extra-sum-of-squares-f-test.ts';
 import type { RateLawFit } from './fit-rate-law.ts';
 import { aicc, akaikeWeights } from './information-criteria.ts';
 import { prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
@@ -11,6 +11,7 @@ import {
   ORDER_CONSISTENCY_ALPHA,
   SYSTEMATIC_MISFIT_ALPHA,
 } from './order-decision-thresholds.ts';
+import type { ModelFits, OrderSelection } from './order-selection.ts';
 import { orderVerdict } from './order-verdict.ts';
 import { runsTest } from './runs-test.ts';
 
@@ -44,33 +45,7 @@ import { runsTest } from './runs-test.ts';
  * "Reaction order not identified: only 10 % of the initial value has reacted".
  */
 
-export type ModelFits = readonly [RateLawFit | null, RateLawFit | null, RateLawFit | null, RateLawFit | null];
-
-export interface OrderSelection {
-  selectedOrder: IntegerOrder | null;
-  /** Lowest-AICc integer law (or lowest RSS when AICc is undefined), whether or not it is named. */
-  bestIntegerOrder: IntegerOrder | null;
-  verdict: string;
-  /** AICc for orders 0, 1, 2 and the free order, in that order. */
-  aicc: (number | null)[];
-  /** Akaike weights over all four laws. */
-  weights: (number | null)[];
-  /** Akaike weights over the three integer laws only (the decision uses these). */
-  integerWeights: (number | null)[];
-  deltaAiccToRunnerUp: number | null;
-  runnerUpOrder: IntegerOrder | null;
-  /** F test of each integer order against the free-order fit. */
-  fTests: (FTestResult | null)[];
-  fractionReacted: number | null;
-  halfLivesCovered: number | null;
-  /** Largest difference between the best and runner-up integer curves at the measured times. */
-  curveSeparation: number | null;
-  /** Residual SD of the best integer law (original scale for 'constant', ln scale for 'proportional'). */
-  residualStandardDeviation: number | null;
-  runsTestP: number | null;
-  /** Free-order estimate of n with its interval (null when that fit is unavailable). */
-  freeOrder: { n: number; ci: [number, number] | null } | null;
-}
+export type { ModelFits, OrderSelection } from './order-selection.ts';
 
 export function selectOrder(
   fits: ModelFits,

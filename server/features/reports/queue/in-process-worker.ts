@@ -1,7 +1,7 @@
+import { parseRenderConfig } from '../../../platform/config/render-config.ts';
 import type { DatabaseHandle } from '../../../platform/db/client.ts';
 import { logger } from '../../../platform/logging/logger.ts';
-import { reportStorage } from '../report-storage.ts';
-import { parseRenderConfig } from './render-config.ts';
+import { reportStorage } from '../../../platform/storage/report-storage.ts';
 import { createRenderPipeline } from './render-pipeline.ts';
 import { openRenderQueue } from './render-queue.ts';
 import { type RenderWorker, startRenderWorker } from './render-worker.ts';

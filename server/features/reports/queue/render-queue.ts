@@ -1,9 +1,9 @@
 import { type SQL, sql } from 'drizzle-orm';
 import type pg from 'pg';
 import PgBoss from 'pg-boss';
+import type { RenderConfig } from '../../../platform/config/render-config.ts';
 import type { Executor } from '../../../platform/db/client.ts';
 import { logger } from '../../../platform/logging/logger.ts';
-import type { RenderConfig } from './render-config.ts';
 
 /**
  * The render queue: pg-boss 10 in its own schema `pgboss` on the application's database. One

@@ -8,8 +8,8 @@ import {
   reportVersions,
   users,
 } from '../../../platform/db/schema/index.ts';
+import { type ReportStorage, sha256Hex } from '../../../platform/storage/report-storage.ts';
 import { getAnalysisRun } from '../../analysis/index.ts';
-import { type ReportStorage, sha256Hex } from '../report-storage.ts';
 import { versionSource } from '../report-templates.ts';
 import { RenderFailure, type RenderRequest, type ReportRenderer } from './report-renderer.ts';
 

@@ -1,7 +1,7 @@
 import type PgBoss from 'pg-boss';
 import type { Database } from '../../../platform/db/client.ts';
 import { logger } from '../../../platform/logging/logger.ts';
-import type { ReportStorage } from '../report-storage.ts';
+import type { ReportStorage } from '../../../platform/storage/report-storage.ts';
 import {
   RENDER_DEAD_LETTER_QUEUE,
   RENDER_QUEUE,

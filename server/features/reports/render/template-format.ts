@@ -1,4 +1,5 @@
 import { formatPercent, formatSignificant } from '../../../../shared/figures/significant-figures.ts';
+import { type ZonedParts, zonedParts } from '../../../../shared/time/zoned-time.ts';
 
 /**
  * The text formats report templates print, as plain functions (the Handlebars helpers in
@@ -87,31 +88,12 @@ function toDate(helper: string, value: unknown): Date | null {
   return date;
 }
 
-function zonedParts(date: Date, timeZone: string) {
-  let format: Intl.DateTimeFormat;
+function partsIn(date: Date, timeZone: string): ZonedParts {
   try {
-    format = new Intl.DateTimeFormat('en-GB', {
-      timeZone,
-      hourCycle: 'h23',
-      year: 'numeric',
-      month: '2-digit',
-      day: '2-digit',
-      hour: '2-digit',
-      minute: '2-digit',
-      second: '2-digit',
-      timeZoneName: 'longOffset',
-    });
+    return zonedParts(date, timeZone);
   } catch {
     throw new TemplateValueError(`isoDate: "${timeZone}" is not an IANA time zone.`);
   }
-  const parts = Object.fromEntries(format.formatToParts(date).map((part) => [part.type, part.value]));
-  // longOffset gives "GMT+01:00", or plain "GMT" at offset zero.
-  const offset = (parts.timeZoneName ?? 'GMT').replace('GMT', '') || '+00:00';
-  return {
-    date: `${parts.year}-${parts.month}-${parts.day}`,
-    time: `${parts.hour}:${parts.minute}:${parts.second}`,
-    offset: offset.replace('−', '-'),
-  };
 }
 
 /**
@@ -121,12 +103,12 @@ function zonedParts(date: Date, timeZone: string) {
 export function isoDateTime(value: unknown, timeZone: string): string {
   const date = toDate('isoDate', value);
   if (date === null) return NOT_ESTIMABLE_TEXT;
-  const parts = zonedParts(date, timeZone);
+  const parts = partsIn(date, timeZone);
   return `${parts.date}T${parts.time}${parts.offset}`;
 }
 
 /** The calendar day (ISO 8601) in the time zone. Example: isoDay(new Date('2026-12-01T23:30:00Z'), 'Asia/Tokyo') is "2026-12-02". */
 export function isoDay(value: unknown, timeZone: string): string {
   const date = toDate('isoDay', value);
-  return date === null ? NOT_ESTIMABLE_TEXT : zonedParts(date, timeZone).date;
+  return date === null ? NOT_ESTIMABLE_TEXT : partsIn(date, timeZone).date;
 }

@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { constants } from 'node:fs';
 import { mkdir, open, readdir, readFile, rename, stat, unlink } from 'node:fs/promises';
 import path from 'node:path';
-import { PROJECT_ROOT } from '../../platform/config/project-root.ts';
+import { PROJECT_ROOT } from '../config/project-root.ts';
 
 /**
  * Where rendered PDFs live: a content-addressed store, `<dir>/<sha256[0..2]>/<sha256>.pdf`, so a

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { DEFAULT_REPORTS_DIR } from '../report-storage.ts';
+import { DEFAULT_REPORTS_DIR } from '../storage/report-storage.ts';
 
 /**
  * Settings of the render queue and its workers, parsed once from the environment (documented in

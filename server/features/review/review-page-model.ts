@@ -1,0 +1,92 @@
+import type { SessionUser } from '../../platform/auth/roles.ts';
+import type { Executor } from '../../platform/db/client.ts';
+import { organisationTimeZone } from './organisation-record.ts';
+import { loadAuthorName, loadRounds, loadSignatureList, loadSignedOutput } from './review-page-loaders.ts';
+import { reviewerCandidates } from './review-people.ts';
+import { authorsOf, isRendered, reviewPageOffers } from './review-policy.ts';
+import { loadReviewVersion, type ReviewVersion, reviewFacts } from './review-version.ts';
+import { needsBothSignatureComponents } from './signature-components.ts';
+import { signatureMeanings } from './signature-meanings.ts';
+import type { SigningSession } from './signing-context.ts';
+import { signingLock } from './signing-lockout.ts';
+
+const STATE_WORDS = {
+  draft: 'Draft',
+  in_review: 'In review',
+  returned: 'Returned',
+  signed: 'Signed',
+} as const;
+
+const NOT_LOCKED = { locked: false, until: null };
+
+function versionView({ report, version }: ReviewVersion) {
+  const ready = isRendered(version);
+  const base = `/api/reports/${report.id}/versions/${version.versionNumber}`;
+  return {
+    number: version.versionNumber,
+    renderStatus: version.renderStatus,
+    ready,
+    pdfSha256: version.pdfSha256,
+    pdfUrl: ready ? `${base}/pdf` : null,
+    htmlUrl: ready ? `${base}/html` : null,
+  };
+}
+
+function reviewView({ review }: ReviewVersion) {
+  return {
+    state: review.state,
+    stateText: STATE_WORDS[review.state],
+    round: review.round,
+    lastComment: review.lastComment,
+    returned: review.state === 'returned',
+    signed: review.state === 'signed',
+    inReview: review.state === 'in_review',
+  };
+}
+
+/**
+ * Everything the review page shows and offers to `actor` for one version. Reads only, in three
+ * steps: the version, then what depends on it, then what depends on the policy's answer (the
+ * reviewer choice and the signing lock); the reads of one step run at the same time.
+ */
+export async function reviewPageModel(
+  db: Executor,
+  actor: SessionUser,
+  reportId: number,
+  versionNumber: number,
+  session: SigningSession,
+) {
+  const [subject, timeZone, meanings] = await Promise.all([
+    loadReviewVersion(db, actor.organisationId, reportId, versionNumber),
+    organisationTimeZone(db, actor.organisationId),
+    signatureMeanings(db, actor.organisationId),
+  ]);
+  const { report, version, review } = subject;
+  const [rounds, signatureList, signedOutput, authorName] = await Promise.all([
+    loadRounds(db, version.id, review.round),
+    loadSignatureList(db, version.id),
+    loadSignedOutput(db, version),
+    loadAuthorName(db, report.authorId),
+  ]);
+  const offers = reviewPageOffers(reviewFacts(subject, actor, rounds.assignments));
+  const [candidates, lock] = await Promise.all([
+    offers.canSubmit ? reviewerCandidates(db, actor.organisationId, authorsOf(subject)) : [],
+    offers.canAct ? signingLock(db, actor.id) : NOT_LOCKED,
+  ]);
+  return {
+    report: { id: report.id, number: report.reportNumber, title: report.title, author: authorName },
+    version: versionView(subject),
+    review: reviewView(subject),
+    assigned: rounds.current.map((person) => ({ ...person, isMe: person.id === actor.id })),
+    rounds: rounds.history,
+    isAuthor: report.authorId === actor.id,
+    ...offers,
+    candidates,
+    meanings,
+    needsIdentity: needsBothSignatureComponents(session),
+    lock,
+    timeZone,
+    signatures: signatureList,
+    signedOutput,
+  };
+}

@@ -1,0 +1,80 @@
+import type { KineticsErrorCode } from './numeric/kinetics-error.ts';
+import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
+import type { Q1eShelfLife } from './stability/q1e-shelf-life.ts';
+import type { StabilityTransform } from './stability/stability-batch.ts';
+import type { ArrheniusFit } from './temperature/arrhenius-fit.ts';
+import type { RateConstantPrediction } from './temperature/predict-rate-constant.ts';
+import type { TemperatureFitWeighting } from './temperature/rate-constant-measurement.ts';
+import type { AttributeDirection, ErrorModel, IntegerOrder } from './types.ts';
+
+/* The options and findings of `analyseDataset` (analyse-dataset.ts), apart from the computation so that
+   the method statement can describe them without importing the analysis. */
+
+export interface DatasetOptions extends Omit<SeriesOptions, 'errorModel'> {
+  errorModel?: 'auto' | ErrorModel;
+  /** Temperature (°C) at which k is predicted from the Arrhenius fit. */
+  storageTemperatureC?: number;
+  /** Direction of the attribute for Q1E; by default from the limits given. */
+  direction?: AttributeDirection;
+  arrheniusWeighting?: TemperatureFitWeighting;
+}
+
+export interface SeriesResult {
+  id: string;
+  batch: string | null;
+  temperatureC: number | null;
+  analysis: SeriesAnalysis | null;
+  error: { code: KineticsErrorCode; message: string } | null;
+}
+
+export interface TemperatureRateConstant {
+  temperatureC: number;
+  k: number;
+  kStandardError: number | null;
+  lnK: number;
+  seriesIds: string[];
+  pooling: 'single-series' | 'inverse-variance-mean-of-ln-k' | 'mean-of-ln-k';
+}
+
+export interface DatasetArrhenius {
+  order: IntegerOrder | null;
+  orderSource: 'analyst' | 'data' | null;
+  /** Summed AICc of orders 0, 1, 2 over the series where all three were compared. */
+  aiccTotals: [number | null, number | null, number | null];
+  kUnit: string | null;
+  rateConstants: TemperatureRateConstant[];
+  excludedSeries: { id: string; reason: string }[];
+  fit: ArrheniusFit | null;
+  notApplicableReason: string | null;
+  prediction:
+    | (RateConstantPrediction & {
+        t90: { estimate: number; ci: [number, number] | null } | null;
+        halfLife: { estimate: number; ci: [number, number] | null } | null;
+        derivedReason: string | null;
+      })
+    | null;
+}
+
+export interface ConditionShelfLife {
+  temperatureC: number | null;
+  seriesIds: string[];
+  transform: StabilityTransform;
+  transformReason: string;
+  result: Q1eShelfLife | null;
+  notApplicableReason: string | null;
+}
+
+export interface DatasetWarning {
+  code: 'series-not-analysed' | 'order-disagreement' | 'arrhenius-extrapolation' | 'non-finite-replaced';
+  message: string;
+}
+
+/** The result of `analyseDataset` before its method statement is written. */
+export interface DatasetFindings {
+  engineVersion: string;
+  confidenceLevel: number;
+  series: SeriesResult[];
+  arrhenius: DatasetArrhenius | null;
+  shelfLife: ConditionShelfLife[] | null;
+  warnings: DatasetWarning[];
+}
