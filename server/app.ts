@@ -51,6 +51,7 @@ export function createApp(
     options: settings,
     renderConfig,
     storage: reportStorage(renderConfig.reportsDir),
+    authenticator: createAuthenticator(database.db),
   };
   const app = express();
   app.disable('x-powered-by');
@@ -105,9 +106,8 @@ export function createApp(
       },
     }),
   );
-  const authenticator = createAuthenticator(database.db);
-  app.use(authenticator.initialize());
-  app.use(authenticator.session());
+  app.use(services.authenticator.initialize());
+  app.use(services.authenticator.session());
 
   app.use(requireJsonBody);
   app.use(express.json({ limit: '100kb' }));

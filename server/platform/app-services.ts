@@ -1,4 +1,5 @@
 import type pg from 'pg';
+import type { Authenticator } from './auth/passport-setup.ts';
 import type { RenderConfig } from './config/render-config.ts';
 import type { Database } from './db/client.ts';
 import type { ReportStorage } from './storage/report-storage.ts';
@@ -16,7 +17,7 @@ export interface AppOptions {
 
 /**
  * What route modules need from the running app, built once in `createApp`: the database, the app's
- * options, the render settings and the store of rendered PDFs. No route builds its own.
+ * options, the render settings, the store of rendered PDFs and the authenticator. No route builds its own.
  */
 export interface AppServices {
   db: Database;
@@ -24,4 +25,6 @@ export interface AppServices {
   options: AppOptions;
   renderConfig: RenderConfig;
   storage: ReportStorage;
+  /** Passport with the sign-in strategy; `initialize` and `session` are mounted by `createApp`. */
+  authenticator: Authenticator;
 }

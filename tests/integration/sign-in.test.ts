@@ -64,6 +64,14 @@ describe('sign-in', () => {
     expect(unknownEvents.map((event) => event.action)).toContain('sign-in.failed');
   });
 
+  it('a form without e-mail or password asks for both, keeps the typed e-mail, and signs no one in', async () => {
+    const { reviewer } = world.users;
+    const blankPassword = await signIn(world.app, reviewer!.email, '');
+    expect(blankPassword.response.status).toBe(401);
+    expect(blankPassword.response.text).toContain('Enter your e-mail address and your password.');
+    expect(blankPassword.response.text).toContain(`value="${reviewer!.email}"`);
+    expect((await blankPassword.agent.get('/')).status).toBe(303);
+  });
   it('locks the account after repeated failures, refuses even the right password, and audits it', async () => {
     const { locked } = world.users;
     for (let attempt = 0; attempt < 3; attempt += 1) await signIn(world.app, locked!.email, 'wrong');

@@ -1,7 +1,7 @@
 import type { Writable } from 'node:stream';
 import { resultRows } from '../../../shared/figures/results-table.ts';
 import { csvTable } from '../../platform/export/csv-writer.ts';
-import { collectStream, planSheet, writeWorkbook } from '../../platform/export/workbook-writer.ts';
+import { planSheet, writeWorkbook } from '../../platform/export/workbook-writer.ts';
 import { figureDataSheet } from './analysis-figure-data-sheet.ts';
 import { fitSheets } from './analysis-fit-sheets.ts';
 import { aboutSheet, dataSheet, methodStatementSheet } from './analysis-record-sheets.ts';
@@ -41,11 +41,6 @@ export async function writeAnalysisWorkbook(run: AnalysisRunRecord, stream: Writ
     methodStatementSheet(run),
   ];
   await writeWorkbook(sheets, { creator: 'Rateledger', created: run.runAt, modified: run.runAt }, stream);
-}
-
-/** The workbook as one buffer. */
-export function analysisWorkbook(run: AnalysisRunRecord): Promise<Buffer> {
-  return collectStream((stream) => writeAnalysisWorkbook(run, stream));
 }
 
 /**

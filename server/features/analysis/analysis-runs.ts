@@ -266,18 +266,3 @@ async function supersedingRun(db: Executor, runId: number): Promise<number | nul
     .limit(1);
   return newer?.id ?? null;
 }
-
-/** Runs of a study, newest first, for the study page and the demo. */
-export async function listStudyRuns(db: Executor, organisationId: number, studyId: number) {
-  return db
-    .select({
-      id: analysisRuns.id,
-      datasetId: analysisRuns.datasetId,
-      engineVersion: analysisRuns.engineVersion,
-      supersedesRunId: analysisRuns.supersedesRunId,
-      runAt: analysisRuns.runAt,
-    })
-    .from(analysisRuns)
-    .where(and(eq(analysisRuns.organisationId, organisationId), eq(analysisRuns.studyId, studyId)))
-    .orderBy(analysisRuns.id);
-}

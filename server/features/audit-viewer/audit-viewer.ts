@@ -95,20 +95,9 @@ const eventColumns = {
   hash: auditEvents.hash,
 };
 
-export type AuditEventRow = {
-  id: number;
-  occurredAt: Date;
-  actorUserId: number | null;
-  actorName: string | null;
-  actorLabel: string;
-  action: string;
-  recordType: string | null;
-  recordId: string | null;
-  beforeValue: unknown;
-  afterValue: unknown;
-  context: unknown;
-  previousHash: string;
-  hash: string;
+/** One event as the viewer reads it: the stored row (schema-inferred) with the actor's current name. */
+export type AuditEventRow = Omit<typeof auditEvents.$inferSelect, 'organisationId'> & {
+  actorName: (typeof users.$inferSelect)['fullName'] | null;
 };
 
 export interface AuditPage {

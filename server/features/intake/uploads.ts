@@ -94,11 +94,6 @@ export function forgetUploadSheets(upload: Pick<Upload, 'format' | 'fileName' | 
   sheetCache.delete(cacheKey(upload.content, upload.format as UploadFormat, upload.fileName, upload.sha256));
 }
 
-/** Empties the cache (benchmarks measure cold reads). */
-export function clearSheetCache(): void {
-  sheetCache.clear();
-}
-
 /** The sheets of a file, or a 422 naming why it cannot be read (empty sheets included). */
 export async function readUploadedSheets(
   bytes: Uint8Array,

@@ -4,8 +4,8 @@ import { z } from 'zod';
 import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
-import { attemptSignIn } from '../../platform/auth/accounts.ts';
 import { csrfToken } from '../../platform/auth/csrf.ts';
+import { MISSING_CREDENTIALS, PASSWORD_STRATEGY } from '../../platform/auth/passport-setup.ts';
 import { PostgresRateLimitStore } from '../../platform/auth/postgres-rate-limit-store.ts';
 import { publicRoute, signedIn } from '../../platform/auth/route-policy.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
@@ -50,27 +50,35 @@ export function authRoutes(services: AppServices): Router {
     });
   });
 
-  router.post('/signin', publicRoute(), signInLimiter, async (req, res, next) => {
+  router.post('/signin', publicRoute(), signInLimiter, (req, res, next) => {
     const form = signInForm.parse(req.body ?? {});
-    const outcome = await attemptSignIn(services.db, form.email, form.password, {
-      ip: req.ip,
-      userAgent: req.get('user-agent'),
-    });
-    if (!outcome.ok) {
-      return renderPage(
+    const refuse = (message: string) =>
+      renderPage(
         req,
         res,
         'signin',
-        { title: 'Sign in', error: outcome.message, email: form.email, next: form.next ?? '' },
+        { title: 'Sign in', error: message, email: form.email, next: form.next ?? '' },
         401,
       );
-    }
-    // passport 0.7 regenerates the session on login (session fixation defence); a new CSRF token follows.
-    req.login(outcome.user, (error) => {
+    const verdict = (error: unknown, user: Express.User | false, info?: { message?: string }) => {
       if (error) return next(error);
-      csrfToken(req);
-      req.session.save((saveError) => (saveError ? next(saveError) : res.redirect(303, safeNext(form.next))));
-    });
+      if (!user)
+        return refuse(
+          info?.message === 'Missing credentials'
+            ? MISSING_CREDENTIALS
+            : (info?.message ?? MISSING_CREDENTIALS),
+        );
+      // passport 0.7 regenerates the session on login (session fixation defence); a new CSRF token follows.
+      req.login(user, (loginError) => {
+        if (loginError) return next(loginError);
+        csrfToken(req);
+        req.session.save((saveError) =>
+          saveError ? next(saveError) : res.redirect(303, safeNext(form.next)),
+        );
+      });
+    };
+    req.body = { ...req.body, email: form.email, password: form.password };
+    services.authenticator.authenticate(PASSWORD_STRATEGY, { session: false }, verdict)(req, res, next);
   });
 
   router.post('/signout', signedIn(), async (req, res, next) => {
