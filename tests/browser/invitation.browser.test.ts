@@ -2,7 +2,7 @@ import path from 'node:path';
 import { eq, sql } from 'drizzle-orm';
 import type { Browser, Page } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { newLinkToken } from '../../server/features/people/invitations.ts';
+import { newLinkToken } from '../../server/features/people/link-tokens.ts';
 import { invitations, users } from '../../server/platform/db/schema/index.ts';
 import { launchChromium, newPage, SCREENSHOT_DIR, serve, TestContext } from '../support/browser.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';

@@ -43,6 +43,8 @@ describe('page locators', () => {
     expect(await ui().getByRole('navigation', { name: 'Main' }).getByRole('link').textContent()).toBe(
       'Audit trail',
     );
+    // Inside something that is not there is nothing, not the whole page.
+    expect(await ui().getByRole('navigation', { name: 'Footer' }).getByRole('link').count()).toBe(0);
     await ui().getByLabel('E-mail address').fill('ann@test.example');
     expect(await page.$eval('#email', (input) => (input as HTMLInputElement).value)).toBe('ann@test.example');
     expect(

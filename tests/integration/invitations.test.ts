@@ -1,7 +1,7 @@
 import { and, desc, eq, sql } from 'drizzle-orm';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { newLinkToken } from '../../server/features/people/invitations.ts';
+import { newLinkToken } from '../../server/features/people/link-tokens.ts';
 import { auditEvents, invitations, memberships, users } from '../../server/platform/db/schema/index.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';

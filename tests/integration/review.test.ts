@@ -10,10 +10,13 @@ import { checkAuditChain } from '../../server/features/audit-viewer/audit-viewer
 import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
 import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
 import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
+import { reviewPageModel } from '../../server/features/review/review-page-model.ts';
+import { loadReviewVersion, openReviewRecord } from '../../server/features/review/review-version.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
 import { verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
 import type { SessionUser } from '../../server/platform/auth/roles.ts';
 import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
+import type { Transaction } from '../../server/platform/db/client.ts';
 import {
   auditEvents,
   reportReviews,
@@ -111,10 +114,11 @@ async function post(agent: Agent, target: string, fields: Record<string, unknown
     .send({ _csrf: csrfFrom(page.text), ...fields });
 }
 
-const review = async () =>
+const reviewRow = async () =>
   (
     await world.database.db.select().from(reportReviews).where(eq(reportReviews.reportVersionId, versionId))
-  )[0]!;
+  )[0];
+const review = async () => (await reviewRow())!;
 
 describe('the review workflow', () => {
   it('a ready version starts in draft; only its author may submit it', async () => {
@@ -132,7 +136,8 @@ describe('the review workflow', () => {
     // Another analyst of the organisation is not the author; a reviewer-only member has no analyst role.
     expect((await post(agents.colleague!, `${url()}/submit`, { reviewerIds: id('first') })).status).toBe(403);
     expect((await post(agents.first!, `${url()}/submit`, { reviewerIds: id('second') })).status).toBe(403);
-    expect((await review()).state).toBe('draft');
+    // A refused submission writes nothing: the version has no review row until it is submitted.
+    expect(await reviewRow()).toBeUndefined();
   });
 
   it('offers only other reviewers, refuses an empty choice and the author themselves', async () => {
@@ -146,7 +151,7 @@ describe('the review workflow', () => {
     const self = await post(agents.author!, `${url()}/submit`, { reviewerIds: [id('first'), id('author')] });
     expect(self.status).toBe(400);
     expect(self.text).toContain('You cannot review your own report');
-    expect((await review()).state).toBe('draft');
+    expect(await reviewRow()).toBeUndefined();
     expect(
       await world.database.db
         .select()
@@ -315,6 +320,8 @@ describe('the audit trail of the flow', () => {
 });
 
 describe('reading the review page', () => {
+  let freshReportId: number;
+
   /** Rows of every table a review step writes, and of the audit trail. */
   async function rowCounts() {
     const { db } = world.database;
@@ -337,7 +344,7 @@ describe('reading the review page', () => {
       .set('x-csrf-token', token)
       .send({});
     expect(created.status).toBe(201);
-    const freshReportId = created.body.reportId as number;
+    freshReportId = created.body.reportId as number;
     const deadline = Date.now() + 60_000;
     for (;;) {
       const [row] = await world.database.db
@@ -363,5 +370,44 @@ describe('reading the review page', () => {
     expect((await agents.second!.get(url(1))).text).toContain('data-review-state="signed"');
     expect((await agents.second!.get('/review')).status).toBe(200);
     expect(await rowCounts()).toEqual(before);
+  });
+
+  /** Runs `read` in a READ ONLY transaction: PostgreSQL refuses any write there with SQLSTATE 25006. */
+  async function readOnly<T>(read: (tx: Transaction) => Promise<T>): Promise<T> {
+    return world.database.db.transaction(read, { accessMode: 'read only' });
+  }
+  const sqlState = (error: unknown) =>
+    (error as { cause?: { code?: string }; code?: string }).cause?.code ?? (error as { code?: string }).code;
+
+  it('loadReviewVersion and the page model do not write: they run in a READ ONLY transaction, where a write is refused', async () => {
+    const { organisationId } = world;
+    const never = { reportId: freshReportId, versionNumber: 1 };
+    const signed = { reportId, versionNumber: 1 };
+    const reviewer: SessionUser = {
+      id: world.users.first!.id,
+      email: world.users.first!.email,
+      fullName: 'Test first',
+      organisationId,
+      organisationName: 'test',
+      roles: ['reviewer'],
+    };
+    const neverLooked = await readOnly((tx) => loadReviewVersion(tx, organisationId, never));
+    expect(neverLooked.review).toMatchObject({ state: 'draft', round: 0 });
+    expect((await readOnly((tx) => loadReviewVersion(tx, organisationId, signed))).review.state).toBe(
+      'signed',
+    );
+    for (const target of [never, signed]) {
+      const model = await readOnly((db) => reviewPageModel({ db, actor: reviewer, target, session: {} }));
+      expect(model.version.number).toBe(1);
+    }
+    // The check can fail: the one write of the review record, in the same kind of transaction.
+    const write = await readOnly((tx) => openReviewRecord(tx, neverLooked)).catch((error: unknown) => error);
+    expect(sqlState(write)).toBe('25006');
+    expect(
+      await world.database.db
+        .select()
+        .from(reportReviews)
+        .where(eq(reportReviews.reportVersionId, neverLooked.version.id)),
+    ).toEqual([]);
   });
 });

@@ -15,6 +15,15 @@ import {
 import { closedLinkMessage, type LinkState, tokenDigest } from './link-tokens.ts';
 import { PasswordPolicyError } from './password-policy-error.ts';
 
+/**
+ * Opening and accepting an invitation link (`invite-member.ts` sends it). Accepting creates the
+ * account with the password the invitee chooses (checked against the organisation's policy) and
+ * the invited roles. Decision for an address that already has an account (in another
+ * organisation): no second account is created, and the link does not set a password — the
+ * person signs in with their existing account and joins; their password stays theirs (an
+ * invitation link must never let its holder take over an existing account).
+ */
+
 export interface InvitationView {
   state: LinkState;
   id: number;

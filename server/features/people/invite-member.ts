@@ -10,6 +10,16 @@ import { invitationMail } from '../../platform/mail/messages.ts';
 import { type AuditContext, ORGANISATION_ADMIN_LOCK } from '../settings/index.ts';
 import { newLinkToken } from './link-tokens.ts';
 
+/**
+ * Invitations: an administrator invites a person by e-mail with the roles they will hold; the
+ * message carries a link with a one-time token (`link-tokens.ts`: 32 random bytes, only its
+ * SHA-256 stored, so the table cannot be used to forge a link). The link works once and for
+ * `INVITATION_HOURS`; a database trigger refuses any change to an invitation once used. Inviting
+ * the same address again expires the earlier link, so only the newest works. Listing and
+ * withdrawing open invitations is `pending-invitations.ts`; opening and accepting the link is
+ * `accept-invitation.ts`.
+ */
+
 /** How long an invitation link works. */
 export const INVITATION_HOURS = 72;
 

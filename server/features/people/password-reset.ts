@@ -52,6 +52,21 @@ async function policyForUser(executor: Executor, userId: number): Promise<Passwo
   return strictestPolicy(policies);
 }
 
+/** Expires the member's open reset links (a new one replaces them). */
+async function expireOpenResets(tx: Transaction, userId: number) {
+  return tx
+    .update(passwordResets)
+    .set({ expiresAt: sql`now()` })
+    .where(
+      and(
+        eq(passwordResets.userId, userId),
+        isNull(passwordResets.usedAt),
+        gt(passwordResets.expiresAt, sql`now()`),
+      ),
+    )
+    .returning({ id: passwordResets.id });
+}
+
 /** Sends the member a reset link; returns when it expires and how the delivery went. */
 export async function requestPasswordReset(
   db: Database,
@@ -67,17 +82,7 @@ export async function requestPasswordReset(
         409,
         `${member.fullName}'s account is deactivated; reactivate it before resetting the password.`,
       );
-    const replaced = await tx
-      .update(passwordResets)
-      .set({ expiresAt: sql`now()` })
-      .where(
-        and(
-          eq(passwordResets.userId, userId),
-          isNull(passwordResets.usedAt),
-          gt(passwordResets.expiresAt, sql`now()`),
-        ),
-      )
-      .returning({ id: passwordResets.id });
+    const replaced = await expireOpenResets(tx, userId);
     const [reset] = await tx
       .insert(passwordResets)
       .values({
@@ -167,6 +172,32 @@ export async function openPasswordReset(db: Database, token: string): Promise<Pa
   };
 }
 
+/** Ends every open session of the account: whoever knew the old password is signed out. */
+async function endSessionsOf(tx: Transaction, userId: number) {
+  return tx
+    .delete(sessions)
+    .where(sql`(${sessions.sess}::jsonb #>> '{passport,user,userId}') = ${String(userId)}`)
+    .returning({ sid: sessions.sid });
+}
+
+/** The organisation a reset's audit event belongs to: the one whose administrator sent the link. */
+async function resetOrganisation(
+  tx: Transaction,
+  userId: number,
+  requestedBy: number | null,
+): Promise<number | null> {
+  const [membership] = await tx
+    .select({ organisationId: memberships.organisationId })
+    .from(memberships)
+    .where(eq(memberships.userId, userId))
+    .orderBy(
+      sql`(${memberships.organisationId} in (select organisation_id from memberships where user_id = ${requestedBy ?? 0})) desc`,
+      memberships.organisationId,
+    )
+    .limit(1);
+  return membership?.organisationId ?? null;
+}
+
 /**
  * Sets the new password through an open link. Throws HttpError 410 for a used or expired link,
  * PasswordPolicyError for a password the policy refuses (or the current one).
@@ -201,22 +232,9 @@ export async function completePasswordReset(
       .set({ usedAt: sql`now()` })
       .where(eq(passwordResets.id, reset.id))
       .returning({ usedAt: passwordResets.usedAt });
-    const ended = await tx
-      .delete(sessions)
-      .where(sql`(${sessions.sess}::jsonb #>> '{passport,user,userId}') = ${String(user.id)}`)
-      .returning({ sid: sessions.sid });
-    // The event belongs to the organisation whose administrator sent the link.
-    const [membership] = await tx
-      .select({ organisationId: memberships.organisationId })
-      .from(memberships)
-      .where(eq(memberships.userId, user.id))
-      .orderBy(
-        sql`(${memberships.organisationId} in (select organisation_id from memberships where user_id = ${reset.requestedBy ?? 0})) desc`,
-        memberships.organisationId,
-      )
-      .limit(1);
+    const ended = await endSessionsOf(tx, user.id);
     await appendAuditEvent(tx, {
-      organisationId: membership?.organisationId ?? null,
+      organisationId: await resetOrganisation(tx, user.id, reset.requestedBy),
       actorUserId: user.id,
       actorLabel: user.email,
       action: 'password.reset',

@@ -7,8 +7,6 @@ import { produceSignedPdf } from './signed-pdf-production.ts';
 import { checkMaySign, verifySignatureComponents } from './signing-checks.ts';
 import type { SigningContext, SignReportInput } from './signing-context.ts';
 
-export type { SigningContext, SigningSession, SignReportInput } from './signing-context.ts';
-
 /**
  * Electronic signing of a report version (21 CFR 11.50, 11.70, 11.200, 11.300(d); EU GMP
  * Annex 11 §14).
@@ -57,12 +55,7 @@ export async function signReportVersion({
   request,
   context,
 }: SignReportVersionOptions): Promise<SignOutcome> {
-  const subject = await loadReviewVersion(
-    context.db,
-    context.actor.organisationId,
-    target.reportId,
-    target.versionNumber,
-  );
+  const subject = await loadReviewVersion(context.db, context.actor.organisationId, target);
   const { reviewedPdfSha256 } = await checkMaySign(context, subject, request);
   const signer = await verifySignatureComponents(context, subject, request);
   const signed = await produceSignedPdf(context, subject, { signer, request });

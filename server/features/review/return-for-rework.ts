@@ -1,22 +1,15 @@
 import { eq, sql } from 'drizzle-orm';
-import { type ReturnForReworkRequest, returnForReworkSchema } from '../../../shared/api/review.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
-import type { Executor, Transaction } from '../../platform/db/client.ts';
+import type { Transaction } from '../../platform/db/client.ts';
 import { reportReviews } from '../../platform/db/schema/index.ts';
 import { commitThenMail } from '../../platform/mail/mail-transport.ts';
-import type { ReviewActionContext, ReviewTarget } from './review-action.ts';
+import type { ReturnForReworkInput, ReviewActionContext, ReviewTarget } from './review-action.ts';
+import { loadReviewFacts } from './review-facts.ts';
 import { reportReturnedMessage } from './review-mail.ts';
-import { currentAssignments, personName } from './review-people.ts';
+import { personName } from './review-people.ts';
 import { decideReturn } from './review-policy.ts';
 import { enforceDecision, throwIfRefused } from './review-refusals.ts';
-import { loadReviewVersion, type ReviewVersion, reviewFacts } from './review-version.ts';
-
-/** The policy's answer for `actor` and this version, with the current round's assignments. */
-async function returnDecision(db: Executor, context: ReviewActionContext, subject: ReviewVersion) {
-  const assigned = await currentAssignments(db, subject.version.id, subject.review.round);
-  const assignments = assigned.map((person) => ({ reviewerId: person.id, round: subject.review.round }));
-  return decideReturn(reviewFacts(subject, context.actor, assignments));
-}
+import { loadReviewVersion, type ReviewVersion } from './review-version.ts';
 
 /** Sets the version `returned` with the comment, and appends the audit event. */
 async function markReturned(
@@ -56,27 +49,23 @@ async function markReturned(
  */
 export async function returnForRework(options: {
   target: ReviewTarget;
-  request: ReturnForReworkRequest;
+  request: ReturnForReworkInput;
   context: ReviewActionContext;
 }): Promise<{ state: 'returned' }> {
-  const { target, context } = options;
-  const input = returnForReworkSchema.parse(options.request);
-  const { organisationId } = context.actor;
-  // A reviewer's refusal is recorded first, outside the transaction, so that it outlives the request.
-  const before = await loadReviewVersion(context.db, organisationId, target.reportId, target.versionNumber);
-  const early = await returnDecision(context.db, context, before);
-  if (!early.allowed && early.auditAction)
-    await enforceDecision(context, before, early, { attempted: 'return' });
-  const { result } = await commitThenMail(context.db, async (tx) => {
-    const subject = await loadReviewVersion(tx, organisationId, target.reportId, target.versionNumber, {
-      lock: true,
-    });
-    throwIfRefused(await returnDecision(tx, context, subject));
-    await markReturned(tx, context, subject, input.comment);
+  const { target, request, context } = options;
+  const { db, actor } = context;
+  // The policy is asked first outside the transaction, so that a refusal it records outlives the
+  // request; then again on the locked row, in case the review moved meanwhile.
+  const before = await loadReviewVersion(db, actor.organisationId, target);
+  await enforceDecision(context, before, decideReturn(await loadReviewFacts(db, before, actor)), {
+    attempted: 'return',
+  });
+  const { result } = await commitThenMail(db, async (tx) => {
+    const subject = await loadReviewVersion(tx, actor.organisationId, target, { lock: true });
+    throwIfRefused(decideReturn(await loadReviewFacts(tx, subject, actor)));
+    await markReturned(tx, context, subject, request.comment);
     const author = await personName(tx, subject.report.authorId);
-    const mail = [
-      reportReturnedMessage(subject, { author, reviewer: context.actor, comment: input.comment }),
-    ];
+    const mail = [reportReturnedMessage(subject, { author, reviewer: actor, comment: request.comment })];
     return { result: { state: 'returned' as const }, mail };
   });
   return result;

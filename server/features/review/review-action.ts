@@ -1,3 +1,5 @@
+import type { z } from 'zod';
+import type { returnForReworkSchema, submitForReviewSchema } from '../../../shared/api/review.ts';
 import type { AuditContext } from '../../platform/audit/audit-context.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database } from '../../platform/db/client.ts';
@@ -16,3 +18,9 @@ export interface ReviewActionContext {
   actor: SessionUser;
   audit: AuditContext;
 }
+
+/** The submit form as the route parsed it with `submitForReviewSchema` (trimmed, defaults filled in). */
+export type SubmitForReviewInput = z.output<typeof submitForReviewSchema>;
+
+/** The return form as the route parsed it with `returnForReworkSchema`. */
+export type ReturnForReworkInput = z.output<typeof returnForReworkSchema>;

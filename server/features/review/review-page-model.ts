@@ -1,10 +1,12 @@
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Executor } from '../../platform/db/client.ts';
 import { organisationTimeZone } from './organisation-record.ts';
+import type { ReviewTarget } from './review-action.ts';
+import { reviewFacts } from './review-facts.ts';
 import { loadAuthorName, loadRounds, loadSignatureList, loadSignedOutput } from './review-page-loaders.ts';
 import { reviewerCandidates } from './review-people.ts';
 import { authorsOf, isRendered, reviewPageOffers } from './review-policy.ts';
-import { loadReviewVersion, type ReviewVersion, reviewFacts } from './review-version.ts';
+import { loadReviewVersion, type ReviewVersion } from './review-version.ts';
 import { needsBothSignatureComponents } from './signature-components.ts';
 import { signatureMeanings } from './signature-meanings.ts';
 import type { SigningSession } from './signing-context.ts';
@@ -49,15 +51,15 @@ function reviewView({ review }: ReviewVersion) {
  * steps: the version, then what depends on it, then what depends on the policy's answer (the
  * reviewer choice and the signing lock); the reads of one step run at the same time.
  */
-export async function reviewPageModel(
-  db: Executor,
-  actor: SessionUser,
-  reportId: number,
-  versionNumber: number,
-  session: SigningSession,
-) {
+export async function reviewPageModel(options: {
+  db: Executor;
+  actor: SessionUser;
+  target: ReviewTarget;
+  session: SigningSession;
+}) {
+  const { db, actor, target, session } = options;
   const [subject, timeZone, meanings] = await Promise.all([
-    loadReviewVersion(db, actor.organisationId, reportId, versionNumber),
+    loadReviewVersion(db, actor.organisationId, target),
     organisationTimeZone(db, actor.organisationId),
     signatureMeanings(db, actor.organisationId),
   ]);

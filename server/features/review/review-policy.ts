@@ -189,7 +189,7 @@ export function decideReturn(facts: ReviewFacts): Decision {
 /**
  * May the actor sign this version? An author's attempt is refused first, whatever the state, and
  * recorded under its own action; so is a reviewer's who is not assigned to the current round.
- * The signing lock and the signature components are checked after this (`e-signature.ts`).
+ * The signing lock and the signature components are checked after this (`signing-checks.ts`).
  */
 export function decideSign(facts: ReviewFacts): Decision {
   const { report, version, review } = facts;

@@ -9,17 +9,14 @@ import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
-import { logger } from '../../platform/logging/logger.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
-import { sha256Hex } from '../reports/index.ts';
-import { latestSignedOutput } from '../signing/index.ts';
 import { signReportVersion } from './e-signature.ts';
 import { returnForRework } from './return-for-rework.ts';
-import type { ReviewActionContext } from './review-action.ts';
+import type { ReviewActionContext, ReviewTarget } from './review-action.ts';
 import { reviewPageModel } from './review-page-model.ts';
 import { reviewPath } from './review-paths.ts';
 import { returnedToMe, reviewQueue } from './review-queue.ts';
-import { loadReviewVersion } from './review-version.ts';
+import { signedPdfDownload } from './signed-pdf-download.ts';
 import { submitForReview } from './submit-for-review.ts';
 
 declare module 'express-session' {
@@ -35,6 +32,12 @@ declare module 'express-session' {
 }
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
+
+/** The version a review route is about, from its path parameters. */
+function reviewTarget(req: Request): ReviewTarget {
+  const { reportId, version } = reviewVersionParamSchema.parse(req.params);
+  return { reportId, versionNumber: version };
+}
 
 /** Field errors of a refused form, by field name, for the page to show beside the fields. */
 function fieldErrors(error: HttpError): Record<string, string> {
@@ -52,8 +55,7 @@ function fieldErrors(error: HttpError): Record<string, string> {
  */
 export function reviewRoutes(services: AppServices): Router {
   const router = Router();
-  const { storage } = services;
-  const { db } = services;
+  const { db, storage } = services;
   const actionContext = (req: Request): ReviewActionContext => ({
     db,
     actor: req.user!,
@@ -63,11 +65,11 @@ export function reviewRoutes(services: AppServices): Router {
   async function showPage(
     req: Request,
     res: Response,
-    params: { reportId: number; version: number },
+    target: ReviewTarget,
     extra: Record<string, unknown> = {},
     status = 200,
   ) {
-    const model = await reviewPageModel(db, req.user!, params.reportId, params.version, req.session);
+    const model = await reviewPageModel({ db, actor: req.user!, target, session: req.session });
     renderPage(
       req,
       res,
@@ -82,12 +84,12 @@ export function reviewRoutes(services: AppServices): Router {
     req: Request,
     res: Response,
     form: 'submit' | 'return' | 'sign',
-    action: (params: { reportId: number; version: number }) => Promise<string>,
+    action: (target: ReviewTarget) => Promise<string>,
   ) {
-    const params = reviewVersionParamSchema.parse(req.params);
+    const target = reviewTarget(req);
     try {
-      req.session.reviewNotice = await action(params);
-      res.redirect(303, reviewPath(params.reportId, params.version));
+      req.session.reviewNotice = await action(target);
+      res.redirect(303, reviewPath(target.reportId, target.versionNumber));
     } catch (error) {
       const known = error instanceof HttpError ? error : null;
       const zod =
@@ -102,7 +104,7 @@ export function reviewRoutes(services: AppServices): Router {
       await showPage(
         req,
         res,
-        params,
+        target,
         {
           formError: { [form]: known ? known.message : 'Some fields are not valid.' },
           errors: { [form]: errors },
@@ -131,16 +133,16 @@ export function reviewRoutes(services: AppServices): Router {
   });
 
   router.get('/review/reports/:reportId/versions/:version', requireRole(...READERS), async (req, res) => {
-    const params = reviewVersionParamSchema.parse(req.params);
+    const target = reviewTarget(req);
     const notice = req.session.reviewNotice ?? null;
     delete req.session.reviewNotice;
-    await showPage(req, res, params, { notice });
+    await showPage(req, res, target, { notice });
   });
 
   router.post('/review/reports/:reportId/versions/:version/submit', requireRole('analyst'), (req, res) =>
-    formAction(req, res, 'submit', async ({ reportId, version }) => {
+    formAction(req, res, 'submit', async (target) => {
       const outcome = await submitForReview({
-        target: { reportId, versionNumber: version },
+        target,
         request: submitForReviewSchema.parse(req.body ?? {}),
         context: actionContext(req),
       });
@@ -149,9 +151,9 @@ export function reviewRoutes(services: AppServices): Router {
   );
 
   router.post('/review/reports/:reportId/versions/:version/return', requireRole('reviewer'), (req, res) =>
-    formAction(req, res, 'return', async ({ reportId, version }) => {
+    formAction(req, res, 'return', async (target) => {
       await returnForRework({
-        target: { reportId, versionNumber: version },
+        target,
         request: returnForReworkSchema.parse(req.body ?? {}),
         context: actionContext(req),
       });
@@ -161,10 +163,10 @@ export function reviewRoutes(services: AppServices): Router {
 
   // Open to every member so that an author's attempt to sign is refused by the service and recorded.
   router.post('/review/reports/:reportId/versions/:version/sign', requireRole(...READERS), (req, res) =>
-    formAction(req, res, 'sign', async ({ reportId, version }) => {
+    formAction(req, res, 'sign', async (target) => {
       const input = signReportSchema.parse(req.body ?? {});
       const outcome = await signReportVersion({
-        target: { reportId, versionNumber: version },
+        target,
         request: input,
         context: { ...actionContext(req), storage, session: req.session },
       });
@@ -180,38 +182,21 @@ export function reviewRoutes(services: AppServices): Router {
     '/review/reports/:reportId/versions/:version/signed.pdf',
     requireRole(...READERS),
     async (req, res) => {
-      const { reportId, version } = reviewVersionParamSchema.parse(req.params);
-      const subject = await loadReviewVersion(db, req.user!.organisationId, reportId, version);
-      const output = await latestSignedOutput(db, subject.version.id);
-      if (!output)
-        throw new HttpError(
-          404,
-          `${subject.report.reportNumber} version ${version} has not been signed yet.`,
-        );
-      const pdf = await storage.readPdf(output.pdfSha256).catch(() => null);
-      if (pdf && sha256Hex(pdf) !== output.pdfSha256) {
-        logger.error(
-          { reqId: req.id, pdfSha256: output.pdfSha256 },
-          'stored signed PDF does not match its record',
-        );
-        throw new HttpError(
-          500,
-          'The stored signed PDF does not match its record; it has not been sent. Tell your administrator.',
-        );
-      }
-      if (!pdf)
-        throw new HttpError(
-          503,
-          `The signed PDF of ${subject.report.reportNumber} version ${version} is not in the report store.`,
-        );
+      const file = await signedPdfDownload({
+        db,
+        storage,
+        actor: req.user!,
+        target: reviewTarget(req),
+        requestId: req.id ?? null,
+      });
       res
         .set({
           'content-type': 'application/pdf',
-          'content-disposition': `attachment; filename="${subject.report.reportNumber}-v${version}-signed.pdf"`,
-          etag: `"${output.pdfSha256}"`,
+          'content-disposition': `attachment; filename="${file.fileName}"`,
+          etag: `"${file.sha256}"`,
           'cache-control': 'private, max-age=31536000, immutable',
         })
-        .send(pdf);
+        .send(file.pdf);
     },
   );
 

@@ -1,9 +1,8 @@
 import { and, eq } from 'drizzle-orm';
-import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Executor } from '../../platform/db/client.ts';
 import { reportReviews, reports, reportVersions } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
-import type { ReviewFacts } from './review-policy.ts';
+import type { ReviewTarget } from './review-action.ts';
 
 /** Where a version stands in review: the parts of its `report_reviews` row the workflow reads. */
 export type ReviewStanding = Pick<
@@ -19,7 +18,8 @@ export interface ReviewVersion {
 
 /**
  * A version that has no review row yet is in draft, round 0: the row's column defaults. The row
- * is written by the first attempt to submit (`openReviewRecord`), never by looking at the version.
+ * is written when the version is first submitted (`openReviewRecord`, in the submission's
+ * transaction), never by looking at the version.
  */
 const NOT_YET_SUBMITTED: ReviewStanding = {
   state: 'draft',
@@ -43,10 +43,10 @@ async function reviewStanding(db: Executor, versionId: number, lock: boolean): P
 export async function loadReviewVersion(
   db: Executor,
   organisationId: number,
-  reportId: number,
-  versionNumber: number,
+  target: ReviewTarget,
   options: { lock?: boolean } = {},
 ): Promise<ReviewVersion> {
+  const { reportId, versionNumber } = target;
   const [row] = await db
     .select({ report: reports, version: reportVersions })
     .from(reportVersions)
@@ -65,29 +65,12 @@ export async function loadReviewVersion(
 
 /**
  * The first step of submitting: creates the version's review row in draft (the column defaults)
- * if it has none. Idempotent; `submitForReview` commits it on its own, before the submission.
+ * if it has none, so that the submission can take it FOR UPDATE. Idempotent; runs in the
+ * submission's transaction, so a refused submission leaves nothing behind.
  */
 export async function openReviewRecord(db: Executor, subject: ReviewVersion): Promise<void> {
   await db
     .insert(reportReviews)
     .values({ reportVersionId: subject.version.id, organisationId: subject.report.organisationId })
     .onConflictDoNothing();
-}
-
-/**
- * The facts the review policy judges. A session user is an active account: `loadSessionUser`
- * ends the session of a deactivated one at its next request.
- */
-export function reviewFacts(
-  subject: ReviewVersion,
-  actor: SessionUser,
-  assignments: ReviewFacts['assignments'],
-): ReviewFacts {
-  return {
-    actor: { id: actor.id, organisationId: actor.organisationId, roles: actor.roles, active: true },
-    report: subject.report,
-    version: subject.version,
-    review: subject.review,
-    assignments,
-  };
 }

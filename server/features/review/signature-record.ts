@@ -29,9 +29,8 @@ export async function lockVersionForSigning(
   subject: ReviewVersion,
 ): Promise<void> {
   const { report, version, review } = subject;
-  const locked = await loadReviewVersion(tx, context.actor.organisationId, report.id, version.versionNumber, {
-    lock: true,
-  });
+  const target = { reportId: report.id, versionNumber: version.versionNumber };
+  const locked = await loadReviewVersion(tx, context.actor.organisationId, target, { lock: true });
   if (locked.review.state !== 'in_review' || locked.review.round !== review.round)
     throw new HttpError(
       409,
@@ -39,47 +38,42 @@ export async function lockVersionForSigning(
     );
 }
 
-/**
- * Inserts the signature (linked to the reviewed and the signed PDF's SHA-256, 21 CFR 11.70) and
- * the signed output, sets the review `signed` — after which the database refuses any change —,
- * clears the signer's failed attempts and appends `report.signed`. Returns the signature's id.
- */
-export async function recordSignature(
+/** The signature row (linked to the reviewed and the signed PDF's SHA-256, 21 CFR 11.70); returns its id. */
+async function insertSignature(
   tx: Transaction,
   context: SigningContext,
   subject: ReviewVersion,
   signature: SignatureBeingRecorded,
 ): Promise<number> {
-  const { actor } = context;
-  const { report, version, review } = subject;
   const { signer, request, signed } = signature;
-  const comment = request.comment || null;
   const [row] = await tx
     .insert(signatures)
     .values({
-      organisationId: actor.organisationId,
-      reportVersionId: version.id,
-      signerId: actor.id,
+      organisationId: context.actor.organisationId,
+      reportVersionId: subject.version.id,
+      signerId: context.actor.id,
       signerPrintedName: signer.fullName,
       meaning: request.meaning,
-      comment,
+      comment: request.comment || null,
       signedAt: signed.signedAt,
       timeZone: signed.timeZone,
       reviewedPdfSha256: signature.reviewedPdfSha256,
       signedPdfSha256: signed.sha256,
     })
     .returning({ id: signatures.id });
-  await tx.insert(signedOutputs).values({
-    reportVersionId: version.id,
-    pdfSha256: signed.sha256,
-    pdfByteSize: signed.byteSize,
-    signatureCount: signed.signatureCount,
-  });
-  await tx
-    .update(reportReviews)
-    .set({ state: 'signed', updatedAt: sql`now()` })
-    .where(eq(reportReviews.reportVersionId, version.id));
-  await clearSigningFailures(tx, actor.id);
+  return row!.id;
+}
+
+/** `report.signed`, with everything the signature row holds and which components were used. */
+async function appendSignedEvent(
+  tx: Transaction,
+  context: SigningContext,
+  subject: ReviewVersion,
+  signature: SignatureBeingRecorded & { id: number },
+): Promise<void> {
+  const { actor } = context;
+  const { report, version, review } = subject;
+  const { signer, request, signed } = signature;
   await appendAuditEvent(tx, {
     organisationId: actor.organisationId,
     actorUserId: actor.id,
@@ -92,10 +86,10 @@ export async function recordSignature(
       reportNumber: report.reportNumber,
       versionNumber: version.versionNumber,
       state: 'signed',
-      signatureId: row!.id,
+      signatureId: signature.id,
       signerPrintedName: signer.fullName,
       meaning: request.meaning,
-      comment,
+      comment: request.comment || null,
       signedAt: signed.signedAt.toISOString(),
       timeZone: signed.timeZone,
       reviewedPdfSha256: signature.reviewedPdfSha256,
@@ -107,7 +101,34 @@ export async function recordSignature(
     },
     context: context.audit,
   });
-  return row!.id;
+}
+
+/**
+ * Inserts the signature and the signed output, sets the review `signed` — after which the
+ * database refuses any change —, clears the signer's failed attempts and appends
+ * `report.signed`. Returns the signature's id.
+ */
+export async function recordSignature(
+  tx: Transaction,
+  context: SigningContext,
+  subject: ReviewVersion,
+  signature: SignatureBeingRecorded,
+): Promise<number> {
+  const versionId = subject.version.id;
+  const id = await insertSignature(tx, context, subject, signature);
+  await tx.insert(signedOutputs).values({
+    reportVersionId: versionId,
+    pdfSha256: signature.signed.sha256,
+    pdfByteSize: signature.signed.byteSize,
+    signatureCount: signature.signed.signatureCount,
+  });
+  await tx
+    .update(reportReviews)
+    .set({ state: 'signed', updatedAt: sql`now()` })
+    .where(eq(reportReviews.reportVersionId, versionId));
+  await clearSigningFailures(tx, context.actor.id);
+  await appendSignedEvent(tx, context, subject, { ...signature, id });
+  return id;
 }
 
 /** The message telling the author their version was signed (none if the author row is gone). */

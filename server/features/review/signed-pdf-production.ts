@@ -49,10 +49,13 @@ export async function produceSignedPdf(
   signature: { signer: Signer; request: SignReportInput },
 ): Promise<SignedPdf> {
   const { db } = context;
-  const organisation = await organisationOf(db, context.actor.organisationId);
-  const signedAt = await signingClock(db);
+  const [organisation, signedAt, earlier] = await Promise.all([
+    organisationOf(db, context.actor.organisationId),
+    signingClock(db),
+    earlierSignatures(db, subject.version.id),
+  ]);
   const entries: SignatureEntry[] = [
-    ...(await earlierSignatures(db, subject.version.id)),
+    ...earlier,
     {
       name: signature.signer.fullName,
       meaning: signature.request.meaning,

@@ -2,10 +2,10 @@ import { eq } from 'drizzle-orm';
 import { verifyPassword } from '../../platform/auth/passwords.ts';
 import { users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
-import { currentAssignments } from './review-people.ts';
+import { loadReviewFacts } from './review-facts.ts';
 import { decideSign } from './review-policy.ts';
 import { enforceDecision, recordRefusal } from './review-refusals.ts';
-import { type ReviewVersion, reviewFacts } from './review-version.ts';
+import type { ReviewVersion } from './review-version.ts';
 import { needsBothSignatureComponents, signatureComponentsProblem } from './signature-components.ts';
 import { signatureMeanings } from './signature-meanings.ts';
 import type { Signer, SigningContext, SignReportInput } from './signing-context.ts';
@@ -26,12 +26,13 @@ export async function checkMaySign(
   request: SignReportInput,
 ): Promise<{ reviewedPdfSha256: string }> {
   const { db, actor } = context;
-  const assigned = await currentAssignments(db, subject.version.id, subject.review.round);
-  const assignments = assigned.map((person) => ({ reviewerId: person.id, round: subject.review.round }));
-  await enforceDecision(context, subject, decideSign(reviewFacts(subject, actor, assignments)), {
-    attempted: 'sign',
-  });
-  const lock = await signingLock(db, actor.id);
+  // Independent reads at once; the refusals below still come in the order above.
+  const [facts, lock, meanings] = await Promise.all([
+    loadReviewFacts(db, subject, actor),
+    signingLock(db, actor.id),
+    signatureMeanings(db, actor.organisationId),
+  ]);
+  await enforceDecision(context, subject, decideSign(facts), { attempted: 'sign' });
   if (lock.locked)
     await recordRefusal(context, subject, {
       auditAction: 'signature.refused-locked',
@@ -41,7 +42,6 @@ export async function checkMaySign(
       ),
       detail: { lockedUntil: lock.until },
     });
-  const meanings = await signatureMeanings(db, actor.organisationId);
   if (!meanings.includes(request.meaning))
     throw invalidField('meaning', `Choose one of: ${meanings.join(', ')}.`);
   if (request.reviewedSha256 !== subject.version.pdfSha256)

@@ -27,6 +27,68 @@ export async function signingLock(db: Executor, userId: number) {
   return { locked: row?.locked === true, until: row?.until ?? null };
 }
 
+/** Adds one to the signer's failures in a row and records the failed attempt; returns the new count. */
+async function countFailure(
+  tx: Transaction,
+  context: ReviewActionContext,
+  subject: ReviewVersion,
+  reason: string,
+): Promise<number> {
+  const { actor } = context;
+  const [row] = await tx
+    .insert(signingLockouts)
+    .values({ userId: actor.id, failedAttempts: 1 })
+    .onConflictDoUpdate({
+      target: signingLockouts.userId,
+      set: { failedAttempts: sql`${signingLockouts.failedAttempts} + 1`, updatedAt: sql`now()` },
+    })
+    .returning({ failures: signingLockouts.failedAttempts });
+  const failures = row!.failures;
+  await appendAuditEvent(tx, {
+    organisationId: actor.organisationId,
+    actorUserId: actor.id,
+    actorLabel: actor.email,
+    action: 'signature.failed',
+    recordType: 'report_version',
+    recordId: subject.version.id,
+    after: {
+      reportNumber: subject.report.reportNumber,
+      versionNumber: subject.version.versionNumber,
+      reason,
+      consecutiveFailures: failures,
+    },
+    context: context.audit,
+  });
+  return failures;
+}
+
+/** Locks the signer's signing for `minutes` (the count starts again) and records the lock. */
+async function lockSigning(
+  tx: Transaction,
+  context: ReviewActionContext,
+  lock: { minutes: number; afterFailures: number },
+): Promise<void> {
+  const { actor } = context;
+  await tx
+    .update(signingLockouts)
+    .set({
+      failedAttempts: 0,
+      lockedUntil: sql`now() + make_interval(mins => ${lock.minutes})`,
+      updatedAt: sql`now()`,
+    })
+    .where(eq(signingLockouts.userId, actor.id));
+  await appendAuditEvent(tx, {
+    organisationId: actor.organisationId,
+    actorUserId: actor.id,
+    actorLabel: actor.email,
+    action: 'signature.locked',
+    recordType: 'user',
+    recordId: actor.id,
+    after: { afterFailures: lock.afterFailures, minutes: lock.minutes },
+    context: context.audit,
+  });
+}
+
 /** Counts a failed signing attempt; locks signing at the threshold. Returns the error to answer with. */
 export async function recordSigningFailure(
   context: ReviewActionContext,
@@ -34,63 +96,21 @@ export async function recordSigningFailure(
   reason: string,
 ): Promise<HttpError> {
   const { db, actor } = context;
-  const organisation = await organisationOf(db, actor.organisationId);
+  const { lockoutThreshold, lockoutMinutes } = await organisationOf(db, actor.organisationId);
   const outcome = await db.transaction(async (tx) => {
-    const [row] = await tx
-      .insert(signingLockouts)
-      .values({ userId: actor.id, failedAttempts: 1 })
-      .onConflictDoUpdate({
-        target: signingLockouts.userId,
-        set: { failedAttempts: sql`${signingLockouts.failedAttempts} + 1`, updatedAt: sql`now()` },
-      })
-      .returning({ failures: signingLockouts.failedAttempts });
-    const failures = row!.failures;
-    const audit = {
-      organisationId: actor.organisationId,
-      actorUserId: actor.id,
-      actorLabel: actor.email,
-      recordType: 'report_version',
-      recordId: subject.version.id,
-      context: context.audit,
-    };
-    await appendAuditEvent(tx, {
-      ...audit,
-      action: 'signature.failed',
-      after: {
-        reportNumber: subject.report.reportNumber,
-        versionNumber: subject.version.versionNumber,
-        reason,
-        consecutiveFailures: failures,
-      },
-    });
-    const lock = failures >= organisation.lockoutThreshold;
-    if (lock) {
-      await tx
-        .update(signingLockouts)
-        .set({
-          failedAttempts: 0,
-          lockedUntil: sql`now() + make_interval(mins => ${organisation.lockoutMinutes})`,
-          updatedAt: sql`now()`,
-        })
-        .where(eq(signingLockouts.userId, actor.id));
-      await appendAuditEvent(tx, {
-        ...audit,
-        action: 'signature.locked',
-        recordType: 'user',
-        recordId: actor.id,
-        after: { afterFailures: failures, minutes: organisation.lockoutMinutes },
-      });
-    }
+    const failures = await countFailure(tx, context, subject, reason);
+    const lock = failures >= lockoutThreshold;
+    if (lock) await lockSigning(tx, context, { minutes: lockoutMinutes, afterFailures: failures });
     return { failures, lock };
   });
   if (outcome.lock) {
-    await alertAdministrators(db, actor, organisation.lockoutMinutes, outcome.failures);
+    await alertAdministrators(db, actor, lockoutMinutes, outcome.failures);
     return new HttpError(
       423,
-      `Too many failed signing attempts: signing is locked for ${organisation.lockoutMinutes} minutes. Your administrators have been told.`,
+      `Too many failed signing attempts: signing is locked for ${lockoutMinutes} minutes. Your administrators have been told.`,
     );
   }
-  const left = organisation.lockoutThreshold - outcome.failures;
+  const left = lockoutThreshold - outcome.failures;
   return new HttpError(
     401,
     `The user ID or password is not right; nothing was signed. ${left} attempt${left === 1 ? '' : 's'} left before signing locks.`,

@@ -1,16 +1,16 @@
 import { eq, sql } from 'drizzle-orm';
-import { type SubmitForReviewRequest, submitForReviewSchema } from '../../../shared/api/review.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import type { Transaction } from '../../platform/db/client.ts';
 import { reportReviews, reviewAssignments } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { commitThenMail } from '../../platform/mail/mail-transport.ts';
-import type { ReviewActionContext, ReviewTarget } from './review-action.ts';
+import type { ReviewActionContext, ReviewTarget, SubmitForReviewInput } from './review-action.ts';
+import { reviewFacts } from './review-facts.ts';
 import { reviewRequestedMessage } from './review-mail.ts';
 import { type Reviewer, reviewerCandidates } from './review-people.ts';
 import { authorsOf, chosenReviewersProblem, decideSubmit } from './review-policy.ts';
 import { throwIfRefused } from './review-refusals.ts';
-import { loadReviewVersion, openReviewRecord, type ReviewVersion, reviewFacts } from './review-version.ts';
+import { loadReviewVersion, openReviewRecord, type ReviewVersion } from './review-version.ts';
 
 /** The reviewers chosen, checked against who may review this version; 400 naming the field otherwise. */
 async function chooseReviewers(tx: Transaction, subject: ReviewVersion, reviewerIds: number[]) {
@@ -28,19 +28,26 @@ async function startRound(
   tx: Transaction,
   context: ReviewActionContext,
   subject: ReviewVersion,
-  reviewers: Reviewer[],
-  note: string,
+  round: { reviewers: Reviewer[]; note: string },
 ): Promise<number> {
   const { actor } = context;
   const { report, version, review } = subject;
-  const round = review.round + 1;
+  const next = review.round + 1;
   await tx
     .update(reportReviews)
-    .set({ state: 'in_review', round, submittedBy: actor.id, submittedAt: sql`now()`, updatedAt: sql`now()` })
+    .set({
+      state: 'in_review',
+      round: next,
+      submittedBy: actor.id,
+      submittedAt: sql`now()`,
+      updatedAt: sql`now()`,
+    })
     .where(eq(reportReviews.reportVersionId, version.id));
   await tx
     .insert(reviewAssignments)
-    .values(reviewers.map((person) => ({ reportVersionId: version.id, round, reviewerId: person.id })));
+    .values(
+      round.reviewers.map((person) => ({ reportVersionId: version.id, round: next, reviewerId: person.id })),
+    );
   await appendAuditEvent(tx, {
     organisationId: actor.organisationId,
     actorUserId: actor.id,
@@ -53,42 +60,38 @@ async function startRound(
       reportNumber: report.reportNumber,
       versionNumber: version.versionNumber,
       state: 'in_review',
-      round,
-      reviewers: reviewers.map((person) => ({ id: person.id, name: person.fullName })),
+      round: next,
+      reviewers: round.reviewers.map((person) => ({ id: person.id, name: person.fullName })),
       pdfSha256: version.pdfSha256,
-      note: note || null,
+      note: round.note || null,
     },
     context: context.audit,
   });
-  return round;
+  return next;
 }
 
 /**
  * The author submits a ready version (draft or returned) to the chosen reviewers: a new round,
- * and a message to each. Throws 403 (not the report's author), 409 (not ready, or not in
- * draft/returned), 400 (a chosen person is not an eligible reviewer).
+ * and a message to each. One transaction; a refused submission writes nothing. Throws 403 (not
+ * the report's author, or no analyst role), 409 (not ready, or not in draft/returned), 400 (a
+ * chosen person is not an eligible reviewer).
  */
 export async function submitForReview(options: {
   target: ReviewTarget;
-  request: SubmitForReviewRequest;
+  request: SubmitForReviewInput;
   context: ReviewActionContext;
 }): Promise<{ round: number; reviewers: Reviewer[] }> {
-  const { target, context } = options;
-  const input = submitForReviewSchema.parse(options.request);
+  const { target, request, context } = options;
   const { db, actor } = context;
-  // Submitting needs the version's review record. Opening it is committed on its own, so it stays
-  // even when this attempt is refused: a draft record says only "not submitted yet".
-  const found = await loadReviewVersion(db, actor.organisationId, target.reportId, target.versionNumber);
-  await openReviewRecord(db, found);
   const { result } = await commitThenMail(db, async (tx) => {
-    const subject = await loadReviewVersion(tx, actor.organisationId, target.reportId, target.versionNumber, {
-      lock: true,
-    });
+    // A version never submitted has no review row: open it (in draft), then take it FOR UPDATE.
+    await openReviewRecord(tx, await loadReviewVersion(tx, actor.organisationId, target));
+    const subject = await loadReviewVersion(tx, actor.organisationId, target, { lock: true });
     throwIfRefused(decideSubmit(reviewFacts(subject, actor, [])));
-    const reviewers = await chooseReviewers(tx, subject, input.reviewerIds);
-    const round = await startRound(tx, context, subject, reviewers, input.note);
+    const reviewers = await chooseReviewers(tx, subject, request.reviewerIds);
+    const round = await startRound(tx, context, subject, { reviewers, note: request.note });
     const mail = reviewers.map((reviewer) =>
-      reviewRequestedMessage(subject, { author: context.actor, reviewer, note: input.note }),
+      reviewRequestedMessage(subject, { author: actor, reviewer, note: request.note }),
     );
     return { result: { round, reviewers }, mail };
   });

@@ -48,7 +48,7 @@ describe('the local certificate authority', () => {
     expect(leaf).toMatch(/Signature Algorithm: sha256WithRSAEncryption/);
     expect(leaf).toMatch(/Basic Constraints: critical\s+CA:FALSE/);
     expect(leaf).toMatch(/Key Usage: critical\s+Digital Signature, Non Repudiation/);
-    expect(leaf).not.toContain('Extended Key Usage'); // NSS rejects emailProtection (STACK.md §7)
+    expect(leaf).not.toContain('Extended Key Usage'); // NSS rejects emailProtection (see issue-certificates.ts)
     expect(leaf).toContain(`Subject: CN = ${organisationName}, O = ${organisationName}`);
     expect(tool('openssl', ['verify', '-CAfile', path.join(signingDir, 'ca.pem'), leafFile])).toContain(
       ': OK',
@@ -171,6 +171,25 @@ describe('a configured certificate', () => {
 
   it('a P12 path without its passphrase is a configuration error naming the variable', () => {
     expect(() => signingConfigFromEnv({ SIGNING_P12_PATH: '/x.p12' })).toThrow(/SIGNING_P12_PASSPHRASE/);
+  });
+});
+
+describe('certificate names', () => {
+  it('write an organisation name outside ASCII as UTF8String, and the issuer as the CA spells it', async () => {
+    const authority = await createCertificateAuthority({
+      commonName: 'Autorité locale (invented)',
+      organisation: 'Laboratoire Œstrogène',
+    });
+    const organisation = 'Laboratoire de Stabilité Süd (invented)';
+    const signer = await issueSigningCertificate({ authority, organisation });
+    const leaf = new X509Certificate(signer.certificatePem);
+    const ca = new X509Certificate(authority.certificatePem);
+    expect(leaf.subject).toBe(`CN=${organisation}\nO=${organisation}`);
+    expect(leaf.issuer).toBe(ca.subject);
+    expect(leaf.checkIssued(ca) && leaf.verify(ca.publicKey)).toBe(true);
+    const file = path.join(fresh('utf8-name'), 'leaf.pem');
+    writeFileSync(file, signer.certificatePem);
+    expect(tool('openssl', ['asn1parse', '-in', file])).toMatch(/UTF8STRING\s+:Laboratoire de Stabilit/);
   });
 });
 

@@ -20,6 +20,13 @@ import { pkijsEngine as engine, toArrayBuffer } from './pkijs-engine.ts';
  * @signpdf's own P12Signer makes a CMS with node-forge that lacks signing-certificate-v2, which
  * is only "ETSI subfilter", not B-B. This class plugs into `SignPdf.sign()` the same way.
  *
+ * Why pkijs here, when node-forge makes the certificates and PKCS#12 files (`pkcs12.ts`): the
+ * PKCS#7 of node-forge 1.4 writes only three signed attributes (content-type, message-digest,
+ * signing-time: any other, such as signing-certificate-v2, comes out without a value), signs
+ * with RSA keys only (a laboratory's certificate may be EC), and cannot verify a signature
+ * ("PKCS#7 signature verification not yet implemented"), which `check-signature-contents.ts`
+ * needs. pkijs (with asn1js, its ASN.1 layer) does all three on Node's WebCrypto.
+ *
  * Reference: RFC 5652 (CMS) §5.3–5.4; RFC 5035 §3 (SigningCertificateV2, ESSCertIDv2 with the
  * default hash algorithm SHA-256 left out); ETSI EN 319 142-1 V1.1.1 §5.2 and §6.3.
  *

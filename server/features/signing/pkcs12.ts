@@ -2,20 +2,19 @@ import { createPrivateKey, type KeyObject, X509Certificate } from 'node:crypto';
 import forge from 'node-forge';
 
 /**
- * PKCS#12 (.p12/.pfx) files in and out, with node-forge — the one part of signing that is not
- * done with pkijs, for two reasons:
- * - Reading a certificate a laboratory brings (`SIGNING_P12_PATH`) must also open files in the
- *   legacy format: certificates encrypted with pbeWithSHAAnd40BitRC2-CBC and the key with
+ * PKCS#12 (.p12/.pfx) files in and out, with node-forge — the one library for keys,
+ * certificates and their files here (`issue-certificates.ts` makes the certificates with it
+ * too). pkijs, which the seal itself needs (`pades-signer.ts` says why), could write these files
+ * but cannot read every file a laboratory brings:
+ * - A laboratory's own certificate (`SIGNING_P12_PATH`) may come in the legacy format:
+ *   certificates encrypted with pbeWithSHAAnd40BitRC2-CBC and the key with
  *   pbeWithSHAAnd3-KeyTripleDES-CBC (RFC 7292 Appendix C), what OpenSSL 1.x writes by default
  *   and OpenSSL 3 with `pkcs12 -export -legacy` (tested in local-certificate-authority.test.ts).
  *   pkijs 4 decrypts PBES2 only (it refuses OID 1.2.840.113549.1.12.1.6 as an unknown
  *   "contentEncryptionAlgorithm"), WebCrypto has neither RC2 nor 3DES, and Node's OpenSSL 3
  *   offers RC2 only with the legacy provider, which Node does not load. node-forge implements
- *   both ciphers and the PKCS#12 key derivation in JavaScript.
- * - Writing the local CA's files stays beside reading, because the reader above must open
- *   them: a PKCS#12 file written with pkijs 4 (PBES2, AES-256-CBC, HMAC-SHA-256), which OpenSSL 3
- *   opens, is refused by node-forge 1.4 ("ASN.1 object is not a supported
- *   EncryptedPrivateKeyInfo"), whatever the passphrase.
+ *   both ciphers and the PKCS#12 key derivation.
+ * - Writing stays with the reader, so the local CA's files are opened by the code that made them.
  *
  * `readPkcs12` returns the private key and the certificates, the signing certificate (the one
  * whose public key matches the key) first, then the rest of the chain. RSA and EC keys are both
@@ -26,7 +25,7 @@ import forge from 'node-forge';
  * `writePkcs12` packs an RSA key and its chain (leaf first): the key bag encrypted with PBES2
  * (PBKDF2-HMAC-SHA-1, 10 000 iterations, AES-256-CBC), the certificates (public) unencrypted,
  * the whole under an HMAC-SHA-1 integrity check — node-forge's format, which `openssl pkcs12`
- * also opens.
+ * also opens (tested).
  *
  * Reference: RFC 7292 (PKCS #12 v1.1) §4.2 (SafeBag types), Appendix B (key derivation).
  *
