@@ -11,10 +11,9 @@ import {
 import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
-import { HttpError } from '../../platform/http/http-error.ts';
-import { logger } from '../../platform/logging/logger.ts';
 import { openRenderQueue } from './queue/render-queue.ts';
-import { getReportDetail, getVersionOutput, listReports, reportFilterOptions } from './report-history.ts';
+import { versionHtml, versionPdf } from './report-download.ts';
+import { getReportDetail, listReports, reportFilterOptions } from './report-history.ts';
 import { type CreatedReport, createReport, createReportVersion } from './reports.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -89,58 +88,41 @@ export function reportRoutes(services: AppServices): Router {
 
   router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), async (req, res) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
-    const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
-    if (output.renderStatus !== 'ready' || !output.pdfSha256)
-      throw notReady(output.reportNumber, version, output.renderStatus);
-    const pdf = await storage.readVersionPdf(output.versionId, output.pdfSha256);
-    if (!pdf) {
-      if (await storage.hasPdf(output.pdfSha256)) {
-        logger.error(
-          { reqId: req.id, pdfSha256: output.pdfSha256, reportId: id, version },
-          'stored PDF does not match its record',
-        );
-        throw new HttpError(
-          500,
-          'The stored PDF does not match its record; it has not been sent. Tell your administrator.',
-        );
-      }
-      throw new HttpError(
-        503,
-        `The PDF of ${output.reportNumber} version ${version} is not in the report store.`,
-      );
-    }
+    const file = await versionPdf({
+      db: services.db,
+      storage,
+      organisationId: req.user!.organisationId,
+      reportId: id,
+      versionNumber: version,
+      requestId: req.id ?? null,
+    });
     res
       .set({
         'content-type': 'application/pdf',
-        'content-disposition': `attachment; filename="${output.reportNumber}-v${version}.pdf"`,
-        etag: `"${output.pdfSha256}"`,
+        'content-disposition': `attachment; filename="${file.fileName}"`,
+        etag: `"${file.sha256}"`,
         'cache-control': 'private, max-age=31536000, immutable',
       })
-      .send(pdf);
+      .send(file.pdf);
   });
 
   router.get('/api/reports/:id/versions/:version/html', requireRole(...READERS), async (req, res) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
-    const output = await getVersionOutput(services.db, req.user!.organisationId, id, version);
-    if (output.renderStatus !== 'ready' || output.html === null)
-      throw notReady(output.reportNumber, version, output.renderStatus);
+    const page = await versionHtml({
+      db: services.db,
+      organisationId: req.user!.organisationId,
+      reportId: id,
+      versionNumber: version,
+    });
     res
       .set({
         'content-type': 'text/html; charset=utf-8',
         'content-security-policy': PREVIEW_CSP,
-        'content-disposition': `inline; filename="${output.reportNumber}-v${version}.html"`,
+        'content-disposition': `inline; filename="${page.fileName}"`,
         'cache-control': 'private, no-cache',
       })
-      .send(output.html);
+      .send(page.html);
   });
 
   return router;
-}
-
-function notReady(reportNumber: string, version: number, status: string) {
-  const what =
-    status === 'failed'
-      ? 'failed to render, so it has no output; render a new version'
-      : `is ${status}; its output is available once it is ready`;
-  return new HttpError(409, `${reportNumber} version ${version} ${what}.`);
 }
