@@ -15,9 +15,10 @@ import { studyRoutes } from './features/studies/index.ts';
 import { templateAdminRoutes } from './features/templates/index.ts';
 import { verificationRoutes } from './features/verification/index.ts';
 import type { AppOptions, AppServices } from './platform/app-services.ts';
-import { csrfProtection } from './platform/auth/csrf.ts';
+import { createCsrf } from './platform/auth/csrf.ts';
 import { createAuthenticator } from './platform/auth/passport-setup.ts';
 import { parseRenderConfig } from './platform/config/render-config.ts';
+import type { TrustProxy } from './platform/config/trust-proxy.ts';
 import type { DatabaseHandle } from './platform/db/client.ts';
 import { errorHandler, notFound } from './platform/http/error-handler.ts';
 import { healthRoutes } from './platform/http/health-routes.ts';
@@ -35,15 +36,25 @@ export const DEFAULT_OPTIONS: Omit<AppOptions, 'sessionSecret'> = {
   idleMinutes: 30,
 };
 
+/** What `createApp` takes beyond the app options every route sees. */
+export interface CreateAppOptions extends Partial<AppOptions> {
+  sessionSecret: string;
+  /**
+   * Express's `trust proxy`: which proxies' X-Forwarded-For/-Proto to believe (TRUST_PROXY).
+   * Off by default, so that nobody can choose their own address for the sign-in limits.
+   */
+  trustProxy?: TrustProxy;
+  /** The minimum duration of a refused sign-in (default `REFUSAL_FLOOR_MS`). */
+  refusalFloorMs?: number;
+}
+
 /**
  * Builds the Express app. No state lives in process memory: sessions, rate-limit counters and
  * everything else are in PostgreSQL, so several instances can serve behind a load balancer.
  */
-export function createApp(
-  database: DatabaseHandle,
-  options: Partial<AppOptions> & { sessionSecret: string },
-): Express {
-  const settings: AppOptions = { ...DEFAULT_OPTIONS, ...options };
+export function createApp(database: DatabaseHandle, options: CreateAppOptions): Express {
+  const { trustProxy = false, refusalFloorMs, ...appOptions } = options;
+  const settings: AppOptions = { ...DEFAULT_OPTIONS, ...appOptions };
   const renderConfig = parseRenderConfig();
   const services: AppServices = {
     db: database.db,
@@ -51,11 +62,17 @@ export function createApp(
     options: settings,
     renderConfig,
     storage: reportStorage(renderConfig.reportsDir),
-    authenticator: createAuthenticator(database.db),
+    authenticator: createAuthenticator(database.db, {
+      secret: settings.sessionSecret,
+      cookieSecure: settings.cookieSecure,
+      counterPrefix: settings.rateLimitPrefix,
+      ...(refusalFloorMs === undefined ? {} : { refusalFloorMs }),
+    }),
   };
+  const csrf = createCsrf({ secret: settings.sessionSecret, secure: settings.cookieSecure });
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.set('trust proxy', trustProxy);
   const views = viewFolders();
   app.engine('hbs', createViewEngine(views));
   app.set('view engine', 'hbs');
@@ -89,6 +106,8 @@ export function createApp(
   app.use(healthRoutes(services));
   app.use(requestLog);
 
+  // Before the session, so that even a page answering a failed session load carries its token.
+  app.use(csrf.tokens);
   const PgStore = connectPgSimple(session);
   app.use(
     session({
@@ -112,7 +131,7 @@ export function createApp(
   app.use(requireJsonBody);
   app.use(express.json({ limit: '100kb' }));
   app.use(express.urlencoded({ extended: false, limit: '100kb' }));
-  app.use(csrfProtection);
+  app.use(csrf.protect);
 
   app.use(authRoutes(services));
   app.use(pageRoutes(services));

@@ -15,6 +15,7 @@ const app = createApp(database, {
   sessionSecret: environment.SESSION_SECRET,
   cookieSecure: environment.COOKIE_SECURE,
   signInRateLimit: environment.SIGN_IN_RATE_LIMIT,
+  trustProxy: environment.TRUST_PROXY,
 });
 
 // Mail: the local SMTP server on loopback unless SMTP_URL names a real one (see .env.example).

@@ -11,6 +11,14 @@
 import { parseArgs } from 'node:util';
 import { parseNumberCell } from '../../shared/intake/parse-number-cell.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
+import {
+  DECLARED_ANSWERS,
+  DECLARED_CHANGES,
+  type DeclaredAnswer,
+  type DeclaredChange,
+  STORAGE_CATEGORIES,
+  type StorageCategory,
+} from '../../shared/kinetics/stability/q1e-declaration.ts';
 import type { IntegerOrder } from '../../shared/kinetics/types.ts';
 import {
   parseTimeUnit,
@@ -37,6 +45,16 @@ export interface FitOptions {
   errorModel: 'auto' | 'constant' | 'proportional';
   confidence: number;
   storageTemperature?: number;
+  /** The ICH Q1E declaration; every fact left out is unknown and takes the most conservative branch. */
+  q1e: {
+    storage: StorageCategory;
+    intermediateTemperatureC?: number;
+    acceleratedTemperatureC?: number;
+    acceleratedChange: DeclaredChange;
+    intermediateChange: DeclaredChange;
+    littleChange: DeclaredAnswer;
+    supportingData: DeclaredAnswer;
+  };
   json: boolean;
 }
 
@@ -66,7 +84,17 @@ Optional:
   --order 0|1|2            fix the reaction order instead of choosing it
   --error-model M          auto, constant or proportional (default auto)
   --confidence P           confidence level, e.g. 0.95 (default 0.95)
-  --storage-temperature T  predict k at this temperature (°C) from the Arrhenius fit
+  --storage-temperature T  the long-term storage temperature (°C): k is predicted there from the
+                           Arrhenius fit, and only that condition proposes a shelf life
+ICH Q1E extrapolation limit (what is not given is unknown: the most conservative branch, named
+as an assumption in the output):
+  --storage S              label storage: room-temperature, refrigerated or frozen
+  --accelerated-temperature T   the accelerated condition (°C), e.g. 40 (25 when refrigerated)
+  --intermediate-temperature T  the intermediate condition (°C), e.g. 30
+  --accelerated-change C   significant change at accelerated, any attribute: none or significant
+  --intermediate-change C  significant change at intermediate, any attribute: none or significant
+  --little-change yes|no   long-term data show little or no change and variability
+  --supporting-data yes|no relevant supporting data exist
   --json                   print one JSON document instead of tables
   --help                   show this text`;
 
@@ -100,6 +128,13 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
         'error-model': { type: 'string' },
         confidence: { type: 'string' },
         'storage-temperature': { type: 'string' },
+        storage: { type: 'string' },
+        'accelerated-temperature': { type: 'string' },
+        'intermediate-temperature': { type: 'string' },
+        'accelerated-change': { type: 'string' },
+        'intermediate-change': { type: 'string' },
+        'little-change': { type: 'string' },
+        'supporting-data': { type: 'string' },
         json: { type: 'boolean', default: false },
         help: { type: 'boolean', default: false },
       },
@@ -132,8 +167,29 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
     const headerRow = number('header-row', values['header-row']) ?? 1;
     if (!Number.isInteger(headerRow) || headerRow < 0)
       return { ok: false, message: '--header-row must be 0 or a row number.' };
+    const choice = <T extends string>(name: string, allowed: readonly T[]): T => {
+      const text = (values as Record<string, string | boolean | undefined>)[name];
+      if (text === undefined) return 'unknown' as T;
+      if (typeof text === 'string' && (allowed as readonly string[]).includes(text)) return text as T;
+      throw new KineticsError(
+        'invalid-input',
+        `--${name} must be ${allowed.filter((value) => value !== 'unknown').join(', ')} (or left out: unknown).`,
+      );
+    };
+    const q1e: FitOptions['q1e'] = {
+      storage: choice('storage', STORAGE_CATEGORIES),
+      acceleratedChange: choice('accelerated-change', DECLARED_CHANGES),
+      intermediateChange: choice('intermediate-change', DECLARED_CHANGES),
+      littleChange: choice('little-change', DECLARED_ANSWERS),
+      supportingData: choice('supporting-data', DECLARED_ANSWERS),
+    };
+    const accelerated = number('accelerated-temperature', values['accelerated-temperature']);
+    const intermediate = number('intermediate-temperature', values['intermediate-temperature']);
+    if (accelerated !== undefined) q1e.acceleratedTemperatureC = accelerated;
+    if (intermediate !== undefined) q1e.intermediateTemperatureC = intermediate;
     const options: FitOptions = {
       file: positionals[0] as string,
+      q1e,
       time: values.time,
       value: values.value,
       timeFormat: values.dates ? 'datetime' : 'elapsed',

@@ -167,10 +167,38 @@ function arrheniusEntry(analysis: DatasetAnalysis, temperatureColumnGiven: boole
   };
 }
 
+/** The proposal of a condition, flat in the entry: the documented `fit --json` contract. */
+function proposalFields(condition: ConditionShelfLife) {
+  const { proposal } = condition;
+  const limit = proposal.extrapolationLimit;
+  return {
+    proposedShelfLife: proposal.proposedShelfLife,
+    proposedShelfLifeMonths: proposal.proposedShelfLifeMonths,
+    proposedReason: proposal.proposedReason,
+    proposalLimitedBy: proposal.limitedBy,
+    estimateExceedsLimit: proposal.estimateExceedsLimit,
+    proposalStatement: proposal.statement,
+    extrapolationLimit: {
+      value: limit.value,
+      valueMonths: limit.valueMonths,
+      longTermMonths: limit.longTermMonths,
+      rule: limit.rule,
+      branch: limit.branch,
+      branchText: limit.branchText,
+      section: limit.section,
+      assumptions: limit.assumptions,
+      findings: limit.findings,
+      notes: limit.notes,
+    },
+  };
+}
+
 function shelfLifeEntries(conditions: ConditionShelfLife[] | null) {
   if (conditions === null) return null;
   return conditions.map((condition) => ({
     temperatureC: condition.temperatureC,
+    role: condition.role,
+    roleReason: condition.roleReason,
     seriesIds: condition.seriesIds,
     transform: condition.transform,
     transformReason: condition.transformReason,
@@ -194,6 +222,7 @@ function shelfLifeEntries(conditions: ConditionShelfLife[] | null) {
       status: line.status,
     })),
     notApplicableReason: condition.notApplicableReason,
+    ...proposalFields(condition),
   }));
 }
 
@@ -208,6 +237,7 @@ export function fitDocument(analysis: DatasetAnalysis, context: FitDocumentConte
     series: analysis.series.map((result) => seriesEntry(result, analysis.shelfLife)),
     arrhenius: arrheniusEntry(analysis, context.temperatureColumnGiven),
     shelfLife: shelfLifeEntries(analysis.shelfLife),
+    q1eDeclaration: analysis.q1eDeclaration,
     warnings: [...context.intakeWarnings, ...analysis.warnings.map((warning) => warning.message)],
     methodStatement: analysis.methodStatement,
   };

@@ -99,7 +99,7 @@ function seriesBlock(entry: SeriesEntry, confidence: string, timeUnit: string): 
     const { estimate, model, line } = entry.shelfLife;
     const basis = model === null ? entry.shelfLife.reason : `model ${model}, line ${line ?? '—'}`;
     lines.push(
-      `  Shelf life (ICH Q1E): ${estimate === null ? 'not reached' : `${formatNumber(estimate)} ${timeUnit}`} (${basis})`,
+      `  ICH Q1E statistical estimate of its line: ${estimate === null ? 'not reached' : `${formatNumber(estimate)} ${timeUnit}`} (${basis}; the proposal is per condition, below)`,
     );
   }
   // The verdict already says when the order is not identified.
@@ -157,13 +157,30 @@ export function fitReport(document: FitDocument): string {
   }
   for (const condition of document.shelfLife ?? []) {
     const where = condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`;
+    const role = condition.role === 'not-declared' ? 'not declared' : condition.role;
+    lines.push(`Shelf life (ICH Q1E), ${where} (${role})`);
     lines.push(
-      `Shelf life (ICH Q1E), ${where}: ${condition.shelfLife === null ? 'not reached' : `${formatNumber(condition.shelfLife)} ${document.timeUnit}`}`,
+      `  Statistical estimate: ${condition.shelfLife === null ? 'not reached' : `${formatNumber(condition.shelfLife)} ${document.timeUnit}`}`,
     );
     lines.push(
       `  ${condition.seriesIds.join(', ')}; scale ${condition.transform}; model ${condition.model ?? '—'}`,
     );
-    lines.push(`  ${condition.notApplicableReason ?? condition.reason ?? ''}`, '');
+    lines.push(`  ${condition.notApplicableReason ?? condition.reason ?? ''}`);
+    const limit = condition.extrapolationLimit;
+    if (condition.role === 'long-term') {
+      lines.push(
+        `  Extrapolation limit: ${limit.valueMonths === null ? '—' : `${formatNumber(limit.valueMonths)} months`} (${limit.rule}${limit.section ? `; ${limit.section}` : ''})`,
+      );
+      if (limit.branchText) lines.push(`  Branch: ${limit.branchText}`);
+      for (const finding of limit.findings) lines.push(`  Data: ${finding}`);
+      for (const assumption of limit.assumptions) lines.push(`  Assumption: ${assumption}`);
+      for (const note of limit.notes) lines.push(`  Note: ${note}`);
+    }
+    lines.push(
+      `  Proposed shelf life: ${condition.proposedShelfLifeMonths === null ? `none (${condition.proposedReason ?? ''})` : `${condition.proposedShelfLifeMonths} months`}`,
+    );
+    if (condition.proposedShelfLifeMonths !== null) lines.push(`  ${condition.proposalStatement}`);
+    lines.push('');
   }
   if (document.warnings.length > 0) {
     lines.push('Warnings');

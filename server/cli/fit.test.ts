@@ -23,6 +23,93 @@ type Json = any;
 const STABILITY = ['--time', 'Month', '--value', 'Assay (% label claim)', '--series', 'Batch'];
 
 describe('fit command', () => {
+  // Invented: three batches of a fictional product ("Pellorine") over 9 months at 25 °C, losing
+  // 0.137 % per month, and one batch at 40 °C; the Q1E estimate at 25 °C is about 34 months.
+  const nineMonths = path.join(scratch, 'pellorine-9-months.csv');
+  const scatter = [0.12, -0.1, 0.08, -0.06, 0.1];
+  writeFileSync(
+    nineMonths,
+    [
+      'Batch,Temperature (°C),Month,Assay (% label claim)',
+      ...[100.2, 100.0, 100.4].flatMap((start, batch) =>
+        [0, 3, 6, 9].map(
+          (month, i) =>
+            `PL-250${batch + 1},25,${month},${(start - 0.137 * month + (scatter[(i + batch) % 5] ?? 0)).toFixed(2)}`,
+        ),
+      ),
+      ...[0, 1, 2, 3, 6].map(
+        (month, i) => `PL-2501,40,${month},${(100.2 - 0.5 * month + (scatter[(i + 3) % 5] ?? 0)).toFixed(2)}`,
+      ),
+    ].join('\n'),
+  );
+  const NINE = [
+    ...STABILITY,
+    '--temperature',
+    'Temperature (°C)',
+    '--lower-limit',
+    '95',
+    '--storage-temperature',
+    '25',
+  ];
+
+  it(
+    'proposes at most 18 months from 9 months of data whose estimate is 34 (ICH Q1E Appendix A, §2.4.1.2.2)',
+    () => {
+      const run = runFit(
+        ...NINE,
+        '--storage',
+        'room-temperature',
+        '--accelerated-temperature',
+        '40',
+        '--accelerated-change',
+        'none',
+        '--supporting-data',
+        'yes',
+        '--json',
+        nineMonths,
+      );
+      expect(run.status).toBe(0);
+      const [longTerm, accelerated]: Json[] = JSON.parse(run.stdout).shelfLife;
+      expect(longTerm.shelfLife).toBeCloseTo(34, 0);
+      // X = 9 months: up to 2X = 18, not more than X + 12 = 21.
+      expect(longTerm).toMatchObject({
+        role: 'long-term',
+        proposedShelfLife: 18,
+        proposedReason: null,
+        estimateExceedsLimit: true,
+        extrapolationLimit: {
+          value: 18,
+          rule: 'up to 2X, not more than X + 12 months',
+          branch: 'room-temperature.statistics-and-supporting-data',
+          section: 'ICH Q1E §2.4.1.2.2',
+          assumptions: [expect.stringMatching(/^Little or no change and variability not stated/)],
+        },
+      });
+      expect(longTerm.proposedShelfLife).toBeLessThanOrEqual(longTerm.shelfLife);
+      // Accelerated conditions propose nothing of their own (ICH Q1E §2.3–2.5).
+      expect(accelerated).toMatchObject({ role: 'accelerated', proposedShelfLife: null });
+      expect(accelerated.proposedReason).toMatch(/proposed from long-term data only/);
+    },
+    TIMEOUT,
+  );
+
+  it(
+    'with nothing stated, takes the most conservative branch and names the assumption in the text',
+    () => {
+      const json = runFit(...NINE, '--json', nineMonths);
+      const [longTerm]: Json[] = JSON.parse(json.stdout).shelfLife;
+      expect(longTerm.proposedShelfLife).toBe(9);
+      expect(longTerm.extrapolationLimit.branch).toBe('storage-not-stated');
+      const text = runFit(...NINE, nineMonths);
+      expect(text.stdout).toMatch(/Assumption: Storage category .* not stated: no extrapolation/);
+      expect(text.stdout).toMatch(/Proposed shelf life: 9 months/);
+      const refused = runFit(...NINE, '--accelerated-change', 'maybe', nineMonths);
+      expect(refused.status).toBe(2);
+      expect(refused.stderr).toMatch(/--accelerated-change must be none, significant/);
+    },
+    TIMEOUT,
+  );
+
   it(
     'prints one JSON document with series, models, plots, shelf life and Arrhenius',
     () => {

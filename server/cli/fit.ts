@@ -91,6 +91,7 @@ async function main(options: FitOptions): Promise<number> {
     ...(options.lowerLimit === undefined ? {} : { lowerLimit: options.lowerLimit }),
     ...(options.upperLimit === undefined ? {} : { upperLimit: options.upperLimit }),
     ...(options.storageTemperature === undefined ? {} : { storageTemperatureC: options.storageTemperature }),
+    q1e: options.q1e,
   });
   const document = fitDocument(analysis, {
     file: path.basename(options.file),

@@ -150,8 +150,19 @@ export async function createDemoDataset(
         upperLimit: 105,
         storageTemperatureC: 25,
         storageHumidityPercent: 60,
+        // The Q1E declaration (invented): 25 °C long-term, 40 °C accelerated; 50 and 60 °C are
+        // stress conditions for the kinetics only. No intermediate study, so its outcome stays
+        // unknown — and the analysis names that assumption.
+        storageCategory: 'room-temperature',
+        acceleratedTemperatureC: 40,
+        acceleratedChange: 'significant',
+        littleChange: 'no',
+        supportingData: 'yes',
+        declarationBasis:
+          'Invented demo statements: assay fell more than 5 % within 6 months at 40 °C (accelerated report AR-QT-07); supporting data from development batches QT-D01 to QT-D03.',
         batches: [...DEMO_BATCHES],
-        notes: 'Invented demo data: long-term 25 °C/60 % RH with accelerated 40, 50 and 60 °C.',
+        notes:
+          'Invented demo data: long-term 25 °C/60 % RH, accelerated 40 °C, stress conditions 50 and 60 °C.',
         createdBy: context.analystUserId,
       })
       .returning();

@@ -11,9 +11,20 @@
  * Example: `studyFormSchema.parse({ title: 'Long-term 25 °C', product: 'Veltrazine 10 mg',
  * attribute: 'Assay', unit: '% of label claim', direction: 'decreasing', lowerLimit: '95,0',
  * batches: 'VZ-001, VZ-002' })` gives `lowerLimit: 95`, `upperLimit: null`,
- * `batches: ['VZ-001', 'VZ-002']`.
+ * `batches: ['VZ-001', 'VZ-002']`, and every Q1E statement `unknown`.
+ *
+ * The Q1E declaration (storage category, the intermediate and accelerated temperatures beside the
+ * long-term storage temperature, significant change at each, little change, supporting data) is
+ * optional field by field: what is not stated stays `unknown`, which the engine reads as the most
+ * conservative answer. A declared intermediate or accelerated temperature must lie above the
+ * long-term one, and the accelerated above the intermediate.
  */
 import { z } from 'zod';
+import {
+  DECLARED_ANSWERS,
+  DECLARED_CHANGES,
+  STORAGE_CATEGORIES,
+} from '../kinetics/stability/q1e-declaration.ts';
 
 export const STUDY_DIRECTIONS = ['decreasing', 'increasing', 'either'] as const;
 export const MAX_BATCHES = 100;
@@ -59,6 +70,12 @@ const limitsSchema = z.object({
   upperLimit: optionalNumber('Upper limit', -1e12, 1e12),
 });
 
+const temperaturesSchema = z.object({
+  storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
+  intermediateTemperatureC: optionalNumber('Intermediate temperature', -273.15, 200),
+  acceleratedTemperatureC: optionalNumber('Accelerated temperature', -273.15, 200),
+});
+
 /** Run the criterion checks whenever both limits read as numbers, even if other fields failed. */
 const whenLimitsRead = {
   when: (payload: { value: unknown }) => limitsSchema.safeParse(payload.value).success,
@@ -74,6 +91,20 @@ export const studyFormSchema = z
     ...limitsSchema.shape,
     storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
     storageHumidityPercent: optionalNumber('Relative humidity', 0, 100),
+    storageCategory: z
+      .enum(STORAGE_CATEGORIES, { error: 'Choose not stated, room temperature, refrigerated or frozen.' })
+      .default('unknown'),
+    intermediateTemperatureC: optionalNumber('Intermediate temperature', -273.15, 200),
+    acceleratedTemperatureC: optionalNumber('Accelerated temperature', -273.15, 200),
+    acceleratedChange: z
+      .enum(DECLARED_CHANGES, { error: 'Choose not stated, none or significant.' })
+      .default('unknown'),
+    intermediateChange: z
+      .enum(DECLARED_CHANGES, { error: 'Choose not stated, none or significant.' })
+      .default('unknown'),
+    littleChange: z.enum(DECLARED_ANSWERS, { error: 'Choose not stated, yes or no.' }).default('unknown'),
+    supportingData: z.enum(DECLARED_ANSWERS, { error: 'Choose not stated, yes or no.' }).default('unknown'),
+    declarationBasis: z.string().trim().max(2000, 'The basis can be at most 2000 characters.').default(''),
     batches: batchList,
     notes: z.string().trim().max(4000, 'Notes can be at most 4000 characters.').default(''),
   })
@@ -88,6 +119,30 @@ export const studyFormSchema = z
       path: ['upperLimit'],
       message: 'The upper limit must be above the lower limit.',
       ...whenLimitsRead,
+    },
+  )
+  .refine(
+    (study) =>
+      study.storageTemperatureC === null ||
+      study.intermediateTemperatureC === null ||
+      study.intermediateTemperatureC > study.storageTemperatureC,
+    {
+      path: ['intermediateTemperatureC'],
+      message: 'The intermediate condition must be warmer than the long-term storage temperature.',
+      when: (payload) => temperaturesSchema.safeParse(payload.value).success,
+    },
+  )
+  .refine(
+    (study) =>
+      study.acceleratedTemperatureC === null ||
+      ((study.storageTemperatureC === null || study.acceleratedTemperatureC > study.storageTemperatureC) &&
+        (study.intermediateTemperatureC === null ||
+          study.acceleratedTemperatureC > study.intermediateTemperatureC)),
+    {
+      path: ['acceleratedTemperatureC'],
+      message:
+        'The accelerated condition must be warmer than the long-term storage temperature and the intermediate condition.',
+      when: (payload) => temperaturesSchema.safeParse(payload.value).success,
     },
   );
 
@@ -105,6 +160,14 @@ export const STUDY_FIELDS = [
   'upperLimit',
   'storageTemperatureC',
   'storageHumidityPercent',
+  'storageCategory',
+  'intermediateTemperatureC',
+  'acceleratedTemperatureC',
+  'acceleratedChange',
+  'intermediateChange',
+  'littleChange',
+  'supportingData',
+  'declarationBasis',
   'batches',
   'notes',
 ] as const satisfies readonly (keyof StudyInput)[];

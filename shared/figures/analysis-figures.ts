@@ -91,7 +91,7 @@ export function analysisFigures(
   const claimed = conditions.filter((condition) => condition.temperatureC === storageTemperatureC);
   for (const condition of claimed.length > 0 ? claimed : conditions) {
     if (condition.seriesIds.length < 2) continue;
-    const spec = q1ePlotSpec(condition, seriesList, limits);
+    const spec = q1ePlotSpec(condition, seriesList, limits, analysis.series);
     if (!spec) continue;
     figures.push({
       id: `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`,

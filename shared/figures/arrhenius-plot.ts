@@ -24,6 +24,12 @@ import { MODEL_NAMES } from './results-table.ts';
  */
 
 const KELVIN_OFFSET = 273.15;
+/** The analysis screen's words for where the common order comes from. */
+const ORDER_SOURCE_WORDS: Record<string, string> = {
+  data: 'lowest summed AICc',
+  // Issue 12 §3: a working order declared by the study.
+  study: 'working order from the study',
+};
 const LINE_POINTS = 25;
 
 export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unknown> | null {
@@ -31,9 +37,12 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
   const fit = arrhenius?.fit;
   if (!arrhenius || !fit || arrhenius.order === null) return null;
   const inverse = (celsius: number) => 1000 / (celsius + KELVIN_OFFSET);
+  // Only the series the fit used: a series the table lists as left out stays off the plot.
+  const used = new Set(arrhenius.rateConstants.flatMap((point) => point.seriesIds));
   const seriesPoints = analysis.series.flatMap((result) => {
     const model = result.analysis?.models.find((candidate) => candidate.order === arrhenius.order);
-    if (result.temperatureC === null || !model || model.k === null || !(model.k > 0)) return [];
+    if (!used.has(result.id) || result.temperatureC === null || !model || model.k === null || !(model.k > 0))
+      return [];
     return [
       {
         x: inverse(result.temperatureC),
@@ -117,7 +126,7 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
         lnK: prediction.lnRateConstant,
         low: interval ? Math.log(interval[0]) : prediction.lnRateConstant,
         high: interval ? Math.log(interval[1]) : prediction.lnRateConstant,
-        label: `predicted at ${prediction.temperatureC} °C`,
+        label: `predicted at ${prediction.temperatureC} °C${prediction.extrapolation === null ? '' : ' (extrapolated)'}`,
       },
     ];
     layers.push(
@@ -157,14 +166,33 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
   }
   return {
     $schema: VEGA_LITE_SCHEMA,
-    description: 'Arrhenius plot: ln k against 1000/T with the fitted line and the predicted rate constant.',
+    description: `Arrhenius plot: ln k of the ${MODEL_NAMES[String(arrhenius.order)]} law (${orderNote(analysis)}) against 1000/T with the fitted line${prediction ? ' and the predicted rate constant' : ''}.`,
     config: FIGURE_CONFIG,
     width: 560,
     height: 300,
     title: {
       text: 'Arrhenius plot',
-      subtitle: `${MODEL_NAMES[String(arrhenius.order)]} rate constants; diamonds: pooled per temperature${prediction ? '; red: prediction with its confidence interval' : ''}`,
+      subtitle: [
+        `${capitalised(MODEL_NAMES[String(arrhenius.order)] ?? '')} rate constants (${orderNote(analysis)}).`,
+        `Diamonds: pooled per temperature${prediction ? '; red: prediction with its confidence interval' : ''}.`,
+      ],
     },
     layer: layers,
   };
+}
+
+const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}`;
+
+/**
+ * Which order the rate constants come from and why, in the table's words ("fixed by the analyst",
+ * "lowest summed AICc"), and how many series named that order themselves — "no series named it"
+ * when none did, so the plot never reads as if the data had decided the order.
+ */
+function orderNote(analysis: DatasetAnalysis): string {
+  const arrhenius = analysis.arrhenius!;
+  if (arrhenius.orderSource === 'analyst') return 'order fixed by the analyst';
+  const analysed = analysis.series.filter((result) => result.analysis);
+  const naming = analysed.filter((result) => result.analysis!.reportedOrder === arrhenius.order).length;
+  const source = ORDER_SOURCE_WORDS[String(arrhenius.orderSource)] ?? 'order of the analysis';
+  return `${source}; ${naming === 0 ? 'no series named it' : `named by ${naming} of ${analysed.length} series`}`;
 }

@@ -10,17 +10,28 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
+import {
+  type LawEmphasis,
+  lawLabels,
+  type NamedLaw,
+  namedLaw,
+  PLAUSIBLE_DELTA_AICC,
+  PLAUSIBLE_WEIGHT,
+} from './law-standing.ts';
 import { plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 import type { ConfidenceBand } from './stored-result.ts';
 
 /**
- * The data of one series on its original scale with each fitted rate law's curve and the
- * confidence band of the chosen law, as a Vega-Lite spec.
+ * The data of one series on its original scale with each fitted rate law's curve and, when the
+ * results table names an order, the confidence band of that law, as a Vega-Lite spec.
  *
  * Why: the curves side by side show how little (or how much) the laws differ over the measured
- * span — the honest picture behind the AICc weights — and the band shows how well the chosen
- * curve is known. Excluded points stay on the plot, drawn as red crosses, so nothing vanishes.
+ * span — the honest picture behind the AICc weights — and the band shows how well the named
+ * curve is known. The figure claims no more than the table (`law-standing.ts`): a law is
+ * "chosen" (or "fixed by the analyst") only when the table names it; when it says "none named"
+ * the plausible laws are drawn alike with their weights and nothing is shaded. Excluded points
+ * stay on the plot, drawn as red crosses, so nothing vanishes.
  *
  * Formula in words: each law's curve is its integrated rate law C(t; C0, k, n) with the fitted
  * parameters (`rateLawValue`), evaluated on `CURVE_POINTS` even times across the observed span;
@@ -30,10 +41,19 @@ import type { ConfidenceBand } from './stored-result.ts';
  * Throws nothing; pure and deterministic.
  *
  * Example: a series fitted by all four laws with first order chosen gives four curves (the
- * first-order one thicker), a shaded band around it, and one point per observation.
+ * first-order one thicker, labelled "first order (chosen)"), a shaded band around it, and one
+ * point per observation; with no order named, the same curves labelled e.g. "first order
+ * (plausible, weight 0.355)" and no band.
  */
 
 export const CURVE_POINTS = 41;
+
+/** Line width and dash of each kind of law: the named one bold, plausible ones solid, the rest dashed. */
+const EMPHASIS: Record<LawEmphasis, { width: number; dash: number[] }> = {
+  named: { width: 2.75, dash: [1, 0] },
+  plausible: { width: 2, dash: [1, 0] },
+  other: { width: 1.25, dash: [5, 3] },
+};
 
 export function fittedCurvesSpec(
   analysis: SeriesAnalysis,
@@ -41,25 +61,24 @@ export function fittedCurvesSpec(
   band: ConfidenceBand | undefined,
 ): Record<string, unknown> {
   const [start, end] = analysis.timeSpan;
-  const chosen = band
-    ? String(band.order)
-    : analysis.reportedOrder === null
-      ? null
-      : String(analysis.reportedOrder);
-  const curves = analysis.models.flatMap((model) => {
-    if (!model.applicable || model.k === null || model.c0 === null) return [];
-    const name = String(model.order);
-    const label = `${MODEL_NAMES[name] ?? name}${name === chosen ? ' (chosen)' : ''}`;
+  const named = namedLaw(analysis);
+  const labels = lawLabels(analysis);
+  const curves = labels.flatMap(({ model: name, label, emphasis }) => {
+    const model = analysis.models.find((candidate) => String(candidate.order) === name)!;
     return timeGrid(start, end, CURVE_POINTS).flatMap((time) => {
       const value = rateLawValue(model.order, model.c0!, model.k!, model.n ?? Number(name), time, null);
-      return Number.isFinite(value) ? [{ time, value, law: label, chosen: name === chosen }] : [];
+      return Number.isFinite(value) ? [{ time, value, law: label, emphasis }] : [];
     });
   });
-  const lawLabels = [...new Set(curves.map((point) => point.law))];
-  const lawColours = lawLabels.map((label) => {
-    const name = Object.entries(MODEL_NAMES).find(([, words]) => label.startsWith(words))?.[0] ?? '1';
-    return MODEL_COLOURS[name] ?? PALETTE.ledger;
-  });
+  const drawn = new Set(curves.map((point) => point.law));
+  const legend = labels.filter((entry) => drawn.has(entry.label));
+  const lawLabelsDrawn = legend.map((entry) => entry.label);
+  const lawColours = legend.map((entry) => MODEL_COLOURS[entry.model] ?? PALETTE.ledger);
+  // The band belongs to the law the table names. A run stores the lowest-AICc law's band when no
+  // order is named; it is not drawn, since shading one law would single it out as the answer.
+  // One column without a named order: the labels then carry the weights and are long.
+  const lawLegend = named ? { columns: 4 } : { columns: 1, labelLimit: 360 };
+  const namedBand = named && band && String(band.order) === named.model ? band : undefined;
   const sample = plotSample(series.observations, (observation) => observation.excluded !== undefined);
   const points = sample.points.map((observation) => ({
     time: observation.time,
@@ -67,13 +86,15 @@ export function fittedCurvesSpec(
     status: observation.excluded ? 'excluded' : 'used',
     reason: observation.excluded?.reason ?? '—',
   }));
-  const bandValues = (band?.points ?? []).filter((point) => point.lower !== null && point.upper !== null);
-  const percent = Math.round((band?.confidenceLevel ?? analysis.confidenceLevel) * 100);
+  const bandValues = (namedBand?.points ?? []).filter(
+    (point) => point.lower !== null && point.upper !== null,
+  );
+  const percent = Math.round((namedBand?.confidenceLevel ?? analysis.confidenceLevel) * 100);
   const layers: Record<string, unknown>[] = [];
   if (bandValues.length > 1) {
     layers.push({
       data: { values: bandValues },
-      mark: { type: 'area', color: MODEL_COLOURS[chosen ?? '1'] ?? PALETTE.ledger, opacity: 0.16 },
+      mark: { type: 'area', color: MODEL_COLOURS[named?.model ?? '1'] ?? PALETTE.ledger, opacity: 0.16 },
       encoding: {
         x: { field: 'time', type: 'quantitative' },
         y: { field: 'lower', type: 'quantitative' },
@@ -102,10 +123,25 @@ export function fittedCurvesSpec(
           field: 'law',
           type: 'nominal',
           title: 'Rate law',
-          scale: { domain: lawLabels, range: lawColours },
+          scale: { domain: lawLabelsDrawn, range: lawColours },
+          legend: lawLegend,
         },
-        strokeWidth: { condition: { test: 'datum.chosen', value: 2.75 }, value: 1.25 },
-        strokeDash: { condition: { test: 'datum.chosen', value: [1, 0] }, value: [5, 3] },
+        // Width and dash by law too, so the legend's symbols show which lines are solid.
+        strokeWidth: {
+          field: 'law',
+          type: 'nominal',
+          sort: lawLabelsDrawn,
+          title: 'Rate law',
+          scale: { domain: lawLabelsDrawn, range: legend.map((entry) => EMPHASIS[entry.emphasis].width) },
+          legend: lawLegend,
+        },
+        strokeDash: {
+          field: 'law',
+          type: 'nominal',
+          title: 'Rate law',
+          scale: { domain: lawLabelsDrawn, range: legend.map((entry) => EMPHASIS[entry.emphasis].dash) },
+          legend: lawLegend,
+        },
       },
     },
     {
@@ -141,21 +177,49 @@ export function fittedCurvesSpec(
       },
     },
   );
+  const note = curvesNote(analysis, named, bandValues.length > 1, percent);
   return {
     $schema: VEGA_LITE_SCHEMA,
-    description: `Data of ${series.id} with the fitted curve of each rate law and the ${percent} % confidence band of the chosen one.`,
+    description: `Data of ${series.id} with the fitted curve of each rate law. ${note.join(' ')}`,
     config: FIGURE_CONFIG,
     width: 620,
     height: 300,
     title: {
       text: 'Data and fitted curves',
-      subtitle: `${
-        band
-          ? `Shaded: ${percent} % confidence band of the ${MODEL_NAMES[String(band.order)]} curve`
-          : 'No confidence band (no law chosen)'
-      }${sampleNote(sample)}`,
+      subtitle: sampleNote(sample) === '' ? note : [...note, sampleNote(sample).replace(/^ · s/, 'S')],
     },
     layer: layers,
-    resolve: { scale: { color: 'independent', shape: 'independent' } },
+    resolve: {
+      scale: {
+        color: 'independent',
+        shape: 'independent',
+        strokeDash: 'independent',
+        strokeWidth: 'independent',
+      },
+    },
   };
+}
+
+/** The subtitle lines: which law the table names and what is shaded, or why no law is singled out. */
+function curvesNote(
+  analysis: SeriesAnalysis,
+  named: NamedLaw | null,
+  shaded: boolean,
+  percent: number,
+): string[] {
+  if (named) {
+    const words = `Order named: ${MODEL_NAMES[named.model]} (${named.because}).`;
+    return shaded
+      ? [`${words} Shaded: ${percent} % confidence band of its curve.`]
+      : [`${words} No confidence band (${analysis.derivedReason ?? 'no interval for its curve'}).`];
+  }
+  const ranked = analysis.models.some((model) => model.applicable && model.aicc !== null);
+  return ranked
+    ? [
+        `No order named. Solid: the plausible laws (Akaike weight ≥ ${PLAUSIBLE_WEIGHT} or ΔAICc ≤ ${PLAUSIBLE_DELTA_AICC});`,
+        'dashed: the others. No confidence band, since no law is chosen.',
+      ]
+    : [
+        'No order named: too few points to rank the laws by AICc. No confidence band, since no law is chosen.',
+      ];
 }

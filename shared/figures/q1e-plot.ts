@@ -1,4 +1,4 @@
-import type { ConditionShelfLife } from '../kinetics/analyse-dataset.ts';
+import type { ConditionShelfLife, SeriesResult } from '../kinetics/analyse-dataset.ts';
 import type { Series } from '../kinetics/types.ts';
 import {
   FIGURE_CONFIG,
@@ -26,12 +26,35 @@ import { formatSignificant } from './significant-figures.ts';
  * Throws nothing; returns null when the condition has no Q1E result.
  *
  * Example: three pooled batches with a lower limit of 95 give one mean line, its lower 95 %
- * confidence limit, the limit at 95 and a rule at the crossing, e.g. "shelf life 31.4 month".
+ * confidence limit, the limit at 95 and a rule at the crossing, e.g. "shelf life estimate 31.4 month".
  */
+/** The scale words of the analysis screen, and the order each scale stands for. */
+const SCALES: Record<string, { words: string; order: number; law: string }> = {
+  none: { words: 'values', order: 0, law: 'zero order' },
+  ln: { words: 'ln(value)', order: 1, law: 'first order' },
+  '1/x': { words: '1/value', order: 2, law: 'second order' },
+};
+
+/**
+ * The regression scale and why, as the table gives it: the order's scale when the analyst fixed
+ * it or every batch named it; otherwise the values, as Q1E's default — not a zero-order claim.
+ */
+function scaleNote(condition: ConditionShelfLife, results: readonly SeriesResult[]): string {
+  const scale = SCALES[condition.transform];
+  if (!scale) return `Scale: ${condition.transform}`;
+  const members = results.filter((result) => condition.seriesIds.includes(result.id));
+  if (members.some((result) => result.analysis?.orderSource === 'analyst'))
+    return `Scale: ${scale.words} (${scale.law}, fixed by the analyst)`;
+  if (members.length > 0 && members.every((result) => result.analysis?.reportedOrder === scale.order))
+    return `Scale: ${scale.words} (${scale.law}, named by every batch)`;
+  return `Scale: ${scale.words} (ICH Q1E default: no order named for every batch)`;
+}
+
 export function q1ePlotSpec(
   condition: ConditionShelfLife,
   seriesList: readonly Series[],
   limits: { lower?: number; upper?: number },
+  results: readonly SeriesResult[] = [],
 ): Record<string, unknown> | null {
   const result = condition.result;
   if (!result) return null;
@@ -152,8 +175,13 @@ export function q1ePlotSpec(
     },
   ];
   if (result.shelfLife !== null) {
+    // The statistical estimate, as the table's row; past the last result it says so, as the table does.
+    const beyond = result.extrapolation.beyondObservedData === true ? ' (beyond the data)' : '';
     const crossing = [
-      { time: result.shelfLife, label: `shelf life ${formatSignificant(result.shelfLife, 3)} ${timeUnit}` },
+      {
+        time: result.shelfLife,
+        label: `shelf life estimate ${formatSignificant(result.shelfLife, 3)} ${timeUnit}${beyond}`,
+      },
     ];
     layers.push(
       {
@@ -177,7 +205,10 @@ export function q1ePlotSpec(
     height: 300,
     title: {
       text: `Q1E shelf life${where}`,
-      subtitle: `${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}; dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion${sampleNote({ shown, total })}`,
+      subtitle: [
+        `${scaleNote(condition, results)}; ${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}.`,
+        `Dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion${sampleNote({ shown, total })}.`,
+      ],
     },
     layer: layers,
   };

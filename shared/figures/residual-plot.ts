@@ -1,11 +1,14 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import type { Series } from '../kinetics/types.ts';
 import { FIGURE_CONFIG, PALETTE, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import { namedLaw } from './law-standing.ts';
 import { plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 
 /**
  * Residuals of the diagnosed fit against time, as a Vega-Lite spec, with possible outliers in red.
+ * The diagnosed law is the one the results table names; when it names none, the engine diagnoses
+ * the lowest-AICc integer law, and the subtitle says so rather than calling it chosen.
  *
  * Why: a curved or trending band of residuals says the law misses the shape of the data; a lone
  * point far from zero is a possible outlier to investigate (never dropped by the program).
@@ -31,15 +34,30 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
     flag: outlier ? 'possible outlier' : 'within threshold',
   }));
   const scale = analysis.errorModel === 'proportional' ? 'ln scale' : series.valueUnit;
+  const model = String(diagnostics.model);
+  const named = namedLaw(analysis);
+  // The engine diagnoses the lowest-AICc integer law (lowest RSS when AICc is undefined) when the
+  // named law could not be fitted or none is named.
+  const ranking =
+    analysis.selection.aicc[diagnostics.model === 'n' ? 3 : diagnostics.model] == null
+      ? 'smallest residual sum of squares of the integer laws'
+      : 'lowest AICc of the integer laws';
+  const law =
+    named?.model === model
+      ? `${MODEL_NAMES[model]} fit (${named.because})`
+      : `${MODEL_NAMES[model]} fit (${ranking}; ${named ? `the named ${MODEL_NAMES[named.model]} law could not be fitted` : 'no order named'})`;
   return {
     $schema: VEGA_LITE_SCHEMA,
-    description: `Residuals of the ${MODEL_NAMES[String(diagnostics.model)]} fit of ${series.id} against time.`,
+    description: `Residuals of the ${law} of ${series.id} against time.`,
     config: FIGURE_CONFIG,
     width: 620,
     height: 180,
     title: {
       text: 'Residuals against time',
-      subtitle: `${MODEL_NAMES[String(diagnostics.model)]} fit; red: |studentised residual| > ${diagnostics.outlierThreshold}${sampleNote(sample)}`,
+      subtitle: [
+        `${law.charAt(0).toUpperCase()}${law.slice(1)}.`,
+        `Red: |studentised residual| > ${diagnostics.outlierThreshold}${sampleNote(sample)}.`,
+      ],
     },
     layer: [
       {

@@ -15,7 +15,10 @@ export interface StoredAnalysisResult {
 /** Mean-curve confidence band of one series' chosen law, over the observed time span. */
 export interface ConfidenceBand {
   seriesId: string;
-  /** The reported order, else the best integer order by AICc (the band of the curve drawn bold). */
+  /**
+   * The reported order, else the best integer order by AICc. Figures shade only the band of the
+   * order the results table names (`chosenBecause` 'reported-order'); the other is kept in the record.
+   */
   order: IntegerOrder;
   chosenBecause: 'reported-order' | 'lowest-aicc';
   confidenceLevel: number;

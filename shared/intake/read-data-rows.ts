@@ -3,7 +3,9 @@
  *
  * A row whose mapped cells are all blank is skipped (blank separator rows are common in lab
  * sheets). A row with a time but no value is a planned pull point not yet tested: it is skipped
- * with a warning. Every other unreadable cell is a problem tied to its cell reference; reading
+ * with a warning. A negative value in a unit that cannot be negative (`valueCannotBeNegative`)
+ * is kept as written with a warning on its cell (the first `MAX_NEGATIVE_VALUE_NOTES`, then one
+ * line counting the rest). Every other unreadable cell is a problem tied to its cell reference; reading
  * goes on so the analyst sees all problems at once. Cells inside a merged block read the block's
  * content (a batch name or a time written once over several replicate rows).
  *
@@ -16,6 +18,7 @@ import { toCelsius } from '../kinetics/units.ts';
 import { columnLetter, sheetPrefix } from './cell-reference.ts';
 import type { ColumnMapping } from './column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
+import { valueCannotBeNegative } from './non-negative-unit.ts';
 import { parseDateCell } from './parse-date-cell.ts';
 import { FORMULA_WITHOUT_VALUE_REASON, parseNumberCell } from './parse-number-cell.ts';
 import { cellText } from './resolve-column.ts';
@@ -26,6 +29,9 @@ import {
   type MergedRange,
   type SheetGrid,
 } from './sheet-grid.ts';
+
+/** Negative values named cell by cell; the rest are counted in one line. */
+export const MAX_NEGATIVE_VALUE_NOTES = 20;
 
 export interface MappedColumns {
   time: number;
@@ -94,6 +100,8 @@ export function readDataRows(
   const datetime = mapping.timeFormat === 'datetime';
   const lowestTemperature = mapping.temperatureUnit === 'K' ? 0 : -273.15;
   const temperatureSymbol = mapping.temperatureUnit === 'K' ? 'K' : '°C';
+  const nonNegative = valueCannotBeNegative(mapping.valueUnit);
+  const negativeRows: number[] = [];
   let rowProblems: IntakeProblem[] = [];
   let rowIndex = 0;
   const cell = (column: number) => cellAt(sheet, merges, rowIndex, column);
@@ -173,6 +181,27 @@ export function readDataRows(
     if (temperatureC !== undefined) row.temperatureC = temperatureC;
     if (replicateLabel !== undefined) row.replicateLabel = replicateLabel;
     rows.push(row);
+    if (nonNegative && valueResult.value < 0) {
+      negativeRows.push(rowIndex);
+      if (negativeRows.length <= MAX_NEGATIVE_VALUE_NOTES) {
+        warnings.push(
+          intakeProblem(
+            row.valueCell,
+            `value ${valueResult.value} is negative, but an amount in "${mapping.valueUnit}" cannot be: check the cell (a typing error, or a result below the quantitation limit written as a number); it is imported as written`,
+          ),
+        );
+      }
+    }
+  }
+  if (negativeRows.length > MAX_NEGATIVE_VALUE_NOTES) {
+    const rest = negativeRows.slice(MAX_NEGATIVE_VALUE_NOTES);
+    const letter = letters.get(columns.value) ?? columnLetter(columns.value);
+    warnings.push(
+      intakeProblem(
+        `${prefix}${letter}${rest[0]! + 1}:${letter}${rest[rest.length - 1]! + 1}`,
+        `${rest.length} more negative values in this column, each imported as written; check them as above`,
+      ),
+    );
   }
   return { rows, problems, warnings };
 }

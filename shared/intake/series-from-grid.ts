@@ -7,7 +7,8 @@
  * all kept. Date-times become elapsed time since the earliest sample of their series. The result
  * is all-or-nothing: one unreadable cell anywhere means no series, and the analyst gets the full
  * list of problems with cell references, so a file is fixed in one pass rather than one error at
- * a time.
+ * a time. A time column that reads cleanly but does not look like time (`time-column-checks.ts`)
+ * gets warnings naming the column and rows, or a problem when every series would sit at one time.
  *
  * Series ids: the batch name; "batch @ 40 °C" when the sheet holds several temperatures;
  * "40 °C" when only a temperature column is mapped; the value column's header otherwise.
@@ -19,13 +20,14 @@
  * observations at 0 (100.2) and 3 (98.7) months.
  */
 import type { Observation, Series } from '../kinetics/types.ts';
-import { sheetPrefix } from './cell-reference.ts';
+import { columnLetter, sheetPrefix } from './cell-reference.ts';
 import type { ColumnMapping } from './column-mapping.ts';
 import { elapsedTime } from './elapsed-time.ts';
 import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
 import { type DataRow, type MappedColumns, readDataRows } from './read-data-rows.ts';
 import { headerTexts, resolveColumn } from './resolve-column.ts';
 import { isBlankCell, type SheetGrid } from './sheet-grid.ts';
+import { timeColumnChecks } from './time-column-checks.ts';
 
 export type IntakeResult =
   | { ok: true; series: Series[]; warnings: IntakeProblem[] }
@@ -56,6 +58,23 @@ function findColumns(
   if (problems.length > 0 || time === undefined || value === undefined) return null;
   if (time === value) {
     problems.push(intakeProblem(where, 'the time and value columns are the same column'));
+    return null;
+  }
+  // Rows are grouped by batch and temperature, so a time taken from either column is one time
+  // per series: no rate can be read. Refused with the column named, before anything is read.
+  for (const [column, role] of [
+    [temperature, 'temperature'],
+    [series, 'batch'],
+  ] as const) {
+    if (column !== time) continue;
+    const header = headerTexts(sheet, mapping.headerRow)[time] ?? '';
+    const named = `${columnLetter(time)}${header === '' ? '' : ` ("${header}")`}`;
+    problems.push(
+      intakeProblem(
+        where,
+        `column ${named} is mapped as both the time and the ${role}, so each series would have a single time: choose the column that holds the time of each pull`,
+      ),
+    );
     return null;
   }
   return {
@@ -171,9 +190,12 @@ export function seriesFromGrid(sheets: readonly SheetGrid[], mapping: ColumnMapp
     problems.push(intakeProblem(where, `no data rows below header row ${mapping.headerRow}`));
   }
   const fallbackId = headerTexts(sheet, mapping.headerRow)[columns.value] || sheet.name;
-  const series = [...groupRows(read.rows, fallbackId)].map(([id, rows]) =>
-    buildSeries(id, rows, mapping, problems),
-  );
+  const groups = groupRows(read.rows, fallbackId);
+  const series = [...groups].map(([id, rows]) => buildSeries(id, rows, mapping, problems));
   if (problems.length > 0) return { ok: false, problems, warnings: read.warnings };
-  return { ok: true, series, warnings: read.warnings };
+  // Whether the time column is plausible as time: its findings come first, they matter most.
+  const timeChecks = timeColumnChecks({ sheet, mapping, columns, groups });
+  const warnings = [...timeChecks.warnings, ...read.warnings];
+  if (timeChecks.problems.length > 0) return { ok: false, problems: timeChecks.problems, warnings };
+  return { ok: true, series, warnings };
 }

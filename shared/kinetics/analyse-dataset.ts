@@ -1,6 +1,5 @@
 import { analyseSeries } from './analyse-series.ts';
 import type {
-  ConditionShelfLife,
   DatasetArrhenius,
   DatasetFindings,
   DatasetOptions,
@@ -9,12 +8,12 @@ import type {
 } from './dataset-analysis.ts';
 import { type MethodStatement, methodStatement } from './method-statement.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
-import { q1eShelfLife } from './stability/q1e-shelf-life.ts';
-import type { StabilityTransform } from './stability/stability-batch.ts';
+import { conditionShelfLives } from './stability/condition-shelf-lives.ts';
+import { type Q1eDeclaration, UNSTATED_DECLARATION } from './stability/q1e-declaration.ts';
 import { arrheniusFit } from './temperature/arrhenius-fit.ts';
 import { predictRateConstant } from './temperature/predict-rate-constant.ts';
 import type { AttributeDirection, IntegerOrder, Series } from './types.ts';
-import { convertTime, rateConstantUnit, tryParseTimeUnit } from './units.ts';
+import { rateConstantUnit } from './units.ts';
 import { ENGINE_VERSION } from './version.ts';
 
 /**
@@ -41,6 +40,10 @@ import { ENGINE_VERSION } from './version.ts';
  *   is known), on the scale of the analyst's order; else of the order every batch of that
  *   condition named; else linear on the values (zero order), the Q1E default. The direction is
  *   `decreasing` with a lower limit only, `increasing` with an upper limit only, `either` with both.
+ *   The long-term condition the study declares (`q1e`, by default the storage temperature)
+ *   proposes a shelf life: the smaller of the statistical estimate and the ICH Q1E extrapolation
+ *   limit, rounded down to a whole month; every fact the study leaves unstated takes the most
+ *   conservative branch, named as an assumption (`conditionShelfLives`).
  *
  * Throws only what `analyseSeries` throws for the options themselves ('invalid-input' for a
  * confidence outside (0, 1)); every data problem is reported in the result. The result has no NaN
@@ -66,7 +69,6 @@ export interface DatasetAnalysis extends DatasetFindings {
 }
 
 const ORDER_WORDS = ['zero', 'first', 'second'] as const;
-const ORDER_SCALES: readonly StabilityTransform[] = ['none', 'ln', '1/x'];
 
 function kineticsFailure<T>(compute: () => T): { value: T } | { error: KineticsError } {
   try {
@@ -242,67 +244,20 @@ function datasetArrhenius(
   return base;
 }
 
-function conditionShelfLives(
-  results: readonly SeriesResult[],
-  seriesList: readonly Series[],
-  options: DatasetOptions,
-): ConditionShelfLife[] {
-  const direction: AttributeDirection =
-    options.direction ??
-    (options.lowerLimit !== undefined && options.upperLimit !== undefined
-      ? 'either'
-      : options.lowerLimit !== undefined
-        ? 'decreasing'
-        : 'increasing');
-  const groups = new Map<number | null, number[]>();
-  for (const [index, result] of results.entries()) {
-    groups.set(result.temperatureC, [...(groups.get(result.temperatureC) ?? []), index]);
-  }
-  return [...groups].map(([temperatureC, indices]) => {
-    const members = indices.map((index) => ({
-      result: results[index] as SeriesResult,
-      series: seriesList[index] as Series,
-    }));
-    const named = members.map((member) =>
-      member.result.analysis?.selection ? member.result.analysis.selectedOrder : null,
-    );
-    let order: IntegerOrder = 0;
-    let transformReason =
-      'the reaction order was not named for every batch, so the values are regressed linearly on time (ICH Q1E default)';
-    if (options.order !== undefined) {
-      order = options.order;
-      transformReason = `the analyst fixed ${ORDER_WORDS[order]} order`;
-    } else if (named.every((value) => value !== null && value === named[0])) {
-      order = named[0] as IntegerOrder;
-      transformReason = `every batch of this condition named ${ORDER_WORDS[order]} order`;
-    }
-    const transform = ORDER_SCALES[order] as StabilityTransform;
-    const timeUnit = tryParseTimeUnit(members[0]?.series.timeUnit ?? '');
-    const batches = members.map(({ series }) => ({
-      batch: series.id,
-      observations: series.observations
-        .filter((observation) => !observation.excluded)
-        .map(({ time, value }) => ({ time, value })),
-    }));
-    const evaluated = kineticsFailure(() =>
-      q1eShelfLife(batches, {
-        direction,
-        transform,
-        confidence: options.confidenceLevel ?? 0.95,
-        ...(options.lowerLimit === undefined ? {} : { lowerLimit: options.lowerLimit }),
-        ...(options.upperLimit === undefined ? {} : { upperLimit: options.upperLimit }),
-        ...(timeUnit === null ? {} : { monthsPerTimeUnit: convertTime(1, timeUnit, 'month') }),
-      }),
-    );
-    return {
-      temperatureC,
-      seriesIds: members.map(({ series }) => series.id),
-      transform,
-      transformReason,
-      result: 'value' in evaluated ? evaluated.value : null,
-      notApplicableReason: 'error' in evaluated ? evaluated.error.message : null,
-    };
-  });
+/** The declaration the Q1E proposals use: the study's statements, unknown where it states nothing. */
+function resolvedDeclaration(options: DatasetOptions): Q1eDeclaration {
+  const stated = options.q1e ?? {};
+  return {
+    ...UNSTATED_DECLARATION,
+    ...Object.fromEntries(Object.entries(stated).filter(([, value]) => value !== undefined)),
+    longTermTemperatureC: stated.longTermTemperatureC ?? options.storageTemperatureC ?? null,
+  };
+}
+
+function attributeDirection(options: DatasetOptions): AttributeDirection {
+  if (options.direction) return options.direction;
+  if (options.lowerLimit !== undefined && options.upperLimit !== undefined) return 'either';
+  return options.lowerLimit !== undefined ? 'decreasing' : 'increasing';
 }
 
 /** Replaces non-finite numbers by null, with one warning naming where. */
@@ -343,6 +298,7 @@ export function analyseDataset(seriesList: readonly Series[], options: DatasetOp
     storageTemperatureC: _storage,
     direction: _direction,
     arrheniusWeighting: _weighting,
+    q1e: _declaration,
     ...seriesOptions
   } = options;
   const warnings: DatasetWarning[] = [];
@@ -361,13 +317,31 @@ export function analyseDataset(seriesList: readonly Series[], options: DatasetOp
   });
   const arrhenius = datasetArrhenius(results, seriesList, options, warnings);
   const hasLimit = options.lowerLimit !== undefined || options.upperLimit !== undefined;
-  const shelfLife = hasLimit ? conditionShelfLives(results, seriesList, options) : null;
+  const q1eDeclaration = hasLimit ? resolvedDeclaration(options) : null;
+  const shelfLife =
+    q1eDeclaration === null
+      ? null
+      : conditionShelfLives(
+          results.map((result, index) => ({
+            series: seriesList[index] as Series,
+            namedOrder: result.analysis?.selectedOrder ?? null,
+          })),
+          {
+            direction: attributeDirection(options),
+            confidence: confidenceLevel,
+            declaration: q1eDeclaration,
+            ...(options.order === undefined ? {} : { order: options.order }),
+            ...(options.lowerLimit === undefined ? {} : { lowerLimit: options.lowerLimit }),
+            ...(options.upperLimit === undefined ? {} : { upperLimit: options.upperLimit }),
+          },
+        );
   const partial = {
     engineVersion: ENGINE_VERSION,
     confidenceLevel,
     series: results,
     arrhenius,
     shelfLife,
+    q1eDeclaration,
     warnings,
   };
   const cleaned = finiteOnly(partial, warnings);

@@ -1,7 +1,7 @@
 import type { KineticsErrorCode } from './numeric/kinetics-error.ts';
 import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
-import type { Q1eShelfLife } from './stability/q1e-shelf-life.ts';
-import type { StabilityTransform } from './stability/stability-batch.ts';
+import type { ConditionShelfLife } from './stability/condition-shelf-lives.ts';
+import type { Q1eDeclaration } from './stability/q1e-declaration.ts';
 import type { ArrheniusFit } from './temperature/arrhenius-fit.ts';
 import type { RateConstantPrediction } from './temperature/predict-rate-constant.ts';
 import type { TemperatureFitWeighting } from './temperature/rate-constant-measurement.ts';
@@ -17,6 +17,11 @@ export interface DatasetOptions extends Omit<SeriesOptions, 'errorModel'> {
   /** Direction of the attribute for Q1E; by default from the limits given. */
   direction?: AttributeDirection;
   arrheniusWeighting?: TemperatureFitWeighting;
+  /**
+   * What the study declares for the ICH Q1E extrapolation limit. Anything left out is unknown and
+   * takes the most conservative branch; the long-term condition defaults to `storageTemperatureC`.
+   */
+  q1e?: Partial<Q1eDeclaration>;
 }
 
 export interface SeriesResult {
@@ -55,14 +60,7 @@ export interface DatasetArrhenius {
     | null;
 }
 
-export interface ConditionShelfLife {
-  temperatureC: number | null;
-  seriesIds: string[];
-  transform: StabilityTransform;
-  transformReason: string;
-  result: Q1eShelfLife | null;
-  notApplicableReason: string | null;
-}
+export type { ConditionShelfLife };
 
 export interface DatasetWarning {
   code: 'series-not-analysed' | 'order-disagreement' | 'arrhenius-extrapolation' | 'non-finite-replaced';
@@ -76,5 +74,7 @@ export interface DatasetFindings {
   series: SeriesResult[];
   arrhenius: DatasetArrhenius | null;
   shelfLife: ConditionShelfLife[] | null;
+  /** The Q1E declaration the shelf-life proposals used, unknowns included; null without a limit. */
+  q1eDeclaration: Q1eDeclaration | null;
   warnings: DatasetWarning[];
 }

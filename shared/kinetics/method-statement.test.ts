@@ -76,4 +76,38 @@ describe('methodStatement', () => {
     expect(statement.shelfLife).toContain('significance 0.25');
     expect(statement.shelfLife).toContain('regressed on ln(value) (the analyst fixed first order)');
   });
+
+  it('states the Q1E declaration, the branch and every assumption of the proposal (ICH Q1E §2.2, Appendix A)', () => {
+    // Invented long-term data: three batches over 9 months at 25 °C, a slow linear loss.
+    const batches: Series[] = [100.2, 100.0, 100.4].map((start, index) => ({
+      id: `PL-250${index + 1}`,
+      batch: `PL-250${index + 1}`,
+      temperatureC: 25,
+      timeUnit: 'month',
+      valueUnit: '% of label claim',
+      observations: [0, 3, 6, 9].map((time, i) => ({
+        time,
+        value: start - 0.137 * time + [0.1, -0.1, 0.05, -0.05][(i + index) % 4]!,
+      })),
+    }));
+    const unstated = analyseDataset(batches, { lowerLimit: 95, storageTemperatureC: 25 }).methodStatement;
+    expect(unstated.shelfLifeProposal).toContain(
+      'Declared by the study: storage not stated; long-term 25 °C',
+    );
+    expect(unstated.shelfLifeProposal).toMatch(
+      /Assumptions: Storage category .* not stated: no extrapolation/,
+    );
+    expect(unstated.text).toContain('Shelf-life proposal. ');
+    expect(unstated.references).toContain(
+      'ICH Q1E Evaluation of Stability Data (2003), §2.3–2.5 and Appendix A (extrapolation)',
+    );
+    const stated = analyseDataset(batches, {
+      lowerLimit: 95,
+      storageTemperatureC: 25,
+      q1e: { storage: 'room-temperature', acceleratedChange: 'none', supportingData: 'yes' },
+    }).methodStatement;
+    expect(stated.shelfLifeProposal).toMatch(/Proposed: 18 months, the allowance rounded down/);
+    expect(stated.shelfLifeProposal).toContain('(ICH Q1E §2.4.1.2.2)');
+    expect(stated.shelfLifeProposal).toContain('Assumptions: Little or no change and variability not stated');
+  });
 });

@@ -9,6 +9,7 @@ import {
 } from './order/order-decision-thresholds.ts';
 import { OUTLIER_THRESHOLD } from './order/residual-diagnostics.ts';
 import { Q1E_POOLABILITY_SIGNIFICANCE } from './stability/poolability.ts';
+import { q1eProposalText } from './stability/q1e-proposal-text.ts';
 import { MOLAR_GAS_CONSTANT } from './temperature/physical-constants.ts';
 import type { Series } from './types.ts';
 import { DAYS_PER_MONTH, DAYS_PER_YEAR } from './units.ts';
@@ -70,6 +71,8 @@ export interface MethodStatement {
   intervals: string;
   temperature: string | null;
   shelfLife: string | null;
+  /** The proposed shelf life under the ICH Q1E extrapolation limit: declaration, rule, branch, assumptions. */
+  shelfLifeProposal: string | null;
   references: string[];
   text: string;
 }
@@ -197,17 +200,28 @@ export function methodStatement(
       const outcome = condition.notApplicableReason
         ? `; not evaluated: ${condition.notApplicableReason}`
         : '';
-      return `${where}: ${condition.seriesIds.join(', ')} regressed on ${scale} (${condition.transformReason})${model}${outcome}.`;
+      const role =
+        condition.role === undefined || condition.role === 'not-declared' ? '' : ` (${condition.role})`;
+      return `${where}${role}: ${condition.seriesIds.join(', ')} regressed on ${scale} (${condition.transformReason})${model}${outcome}.`;
     });
     shelfLife =
       `ICH Q1E shelf life against ${limits.join(' and ')}: the earliest time at which the ${confidence} confidence limit of the mean regression line meets the limit ` +
-      `(one-sided for a one-sided limit, two-sided for both), batch poolability by ANCOVA at significance ${Q1E_POOLABILITY_SIGNIFICANCE} (slopes first, then intercepts); the minimum over batches when they are not pooled. ` +
+      `(one-sided for a one-sided limit, two-sided for both): the statistical estimate; batch poolability by ANCOVA at significance ${Q1E_POOLABILITY_SIGNIFICANCE} (slopes first, then intercepts); the minimum over batches when they are not pooled. ` +
       conditions.join(' ');
   }
 
+  const shelfLifeProposal =
+    analysis.shelfLife && analysis.q1eDeclaration
+      ? q1eProposalText(analysis.q1eDeclaration, analysis.shelfLife)
+      : null;
+
   const references = [
     'ICH Q1E Evaluation of Stability Data (2003), App. B',
+    ...(shelfLifeProposal === null
+      ? []
+      : ['ICH Q1E Evaluation of Stability Data (2003), §2.3–2.5 and Appendix A (extrapolation)']),
     'ICH Q1A(R2) Stability Testing of New Drug Substances and Products (2003), 2.2.9',
+    ...(shelfLifeProposal === null ? [] : ['ICH Q1A(R2) (2003), 2.1.7.1 and 2.2.7.1 (significant change)']),
     'K. P. Burnham & D. R. Anderson, Model Selection and Multimodel Inference, 2nd ed. (2002)',
     'D. W. Marquardt, J. Soc. Ind. Appl. Math. 11 (1963) 431–441',
     'IUPAC Gold Book, "Arrhenius equation", doi 10.1351/goldbook.A00446',
@@ -232,6 +246,7 @@ export function methodStatement(
     `Intervals. ${intervals}`,
     temperature === null ? null : `Temperature dependence. ${temperature}`,
     shelfLife === null ? null : `Shelf life. ${shelfLife}`,
+    shelfLifeProposal === null ? null : `Shelf-life proposal. ${shelfLifeProposal}`,
     `Engine. Rateledger kinetics engine ${analysis.engineVersion}.`,
   ]
     .filter((paragraph) => paragraph !== null)
@@ -249,6 +264,7 @@ export function methodStatement(
     intervals,
     temperature,
     shelfLife,
+    shelfLifeProposal,
     references,
     text,
   };

@@ -131,15 +131,6 @@ console.log(
     ` = min(agreement ${overall.parameterDigits.toFixed(1)}, NIST-checked solver on lower/average NIST StRD ${certifiedParameterDigits.toFixed(1)}).`,
 );
 
-const restarts = comparisons.flatMap((c) =>
-  c.fastFromReferenceAnswer === undefined ? [] : [c.fastFromReferenceAnswer],
-);
-console.log(
-  `fitRateLaw started at the NIST-checked minimum (${restarts.length} fits): at most ${Math.max(...restarts.map((r) => r.iterations))}` +
-    ` iterations, parameters to ${Math.min(...restarts.map((r) => r.parameterDigits)).toFixed(1)} digits, standard errors to` +
-    ` ${Math.min(...restarts.map((r) => r.standardErrorDigits ?? 0)).toFixed(1)} digits (the same objective and covariance; only the stopping point differs).`,
-);
-
 function describe(comparison: SolverComparison | null): string {
   if (comparison === null) return '-';
   const law = comparison.model === 'n' ? 'free order' : `order ${comparison.model}`;

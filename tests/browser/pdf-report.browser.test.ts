@@ -123,9 +123,15 @@ describe('the default report as a PDF', () => {
     expect(text).toContain(`${formatSignificant(first.t90!.estimate, 3)} month`);
     const shelfLife = analysis.shelfLife!.find((condition) => condition.temperatureC === 25)!.result!
       .shelfLife!;
+    // ICH Q1E §2.4.1.2.2: 24 months of long-term data, no significant change at accelerated → at most
+    // min(2X, X + 12) = 36 months; the proposal is the smaller of that and the estimate, rounded down
+    // to a whole month (common practice: never rounded up).
+    const proposed = Math.floor(Math.min(shelfLife, 36));
     expect(text).toContain(
-      `ICH Q1E shelf life at 25 °C (storage condition): ${formatSignificant(shelfLife, 3)} month`,
+      `Proposed shelf life at 25 °C (long-term): ${proposed} month${proposed === 1 ? '' : 's'}.`,
     );
+    expect(text).toContain(`The statistical estimate (${formatSignificant(shelfLife, 4)} month)`);
+    expect(text).toContain('36 months (up to 2X, not more than X + 12 months; ICH Q1E §2.4.1.2.2)');
     expect(text).toContain(
       `${formatSignificant(analysis.arrhenius!.fit!.activationEnergy / 1000, 4)} kJ/mol`,
     );

@@ -81,6 +81,7 @@ describe('the exported workbook', () => {
       'Linearised',
       'Verdicts',
       'Arrhenius and Q1E',
+      'Shelf-life proposal',
       'Figure data',
       'Method statement',
     ]);
@@ -124,6 +125,17 @@ describe('the exported workbook', () => {
     });
     expect(excludedRows).toBe(1);
     expect(data.rowCount - 1).toBe(72);
+
+    // The proposal of the long-term condition: the same number as the screen's, never above the estimate.
+    const proposals = workbook.getWorksheet('Shelf-life proposal')!;
+    const heads = (proposals.getRow(1).values as unknown[]).slice(1);
+    const cell = (row: number, name: string) => proposals.getRow(row).getCell(heads.indexOf(name) + 1).value;
+    expect(cell(2, 'Role')).toBe('long-term');
+    const proposed = cell(2, 'Proposed shelf life, in the time unit');
+    expect(typeof proposed).toBe('number');
+    expect(pageHtml).toContain(`data-proposed-value="${proposed}"`);
+    expect(proposed as number).toBeLessThanOrEqual(cell(2, 'Statistical estimate') as number);
+    expect(cell(3, 'Proposed shelf life (months)')).toBeNull();
 
     const method = workbook.getWorksheet('Method statement')!;
     const text = (method.getColumn(1).values as unknown[])

@@ -244,6 +244,85 @@ describe('running an analysis', () => {
   });
 });
 
+describe('the proposed shelf life (ICH Q1E)', () => {
+  it('uses the study declaration, records it with the run, and never proposes above the estimate or the limit', async () => {
+    const response = await analyst
+      .post(`/api/datasets/${datasetId}/analyses`)
+      .set('x-csrf-token', analystToken)
+      .send({ options: { order: 1 } });
+    const runId = response.body.runId as number;
+    const [run] = await world.database.db.select().from(analysisRuns).where(eq(analysisRuns.id, runId));
+    // The demo study declares room temperature, accelerated 40 °C with significant change, no intermediate.
+    expect(run!.options).toMatchObject({
+      engine: {
+        q1e: {
+          storage: 'room-temperature',
+          longTermTemperatureC: 25,
+          acceleratedTemperatureC: 40,
+          acceleratedChange: 'significant',
+          intermediateChange: 'unknown',
+        },
+      },
+    });
+    const conditions = (run!.result as StoredAnalysisResult).analysis.shelfLife!;
+    expect(conditions.map((condition) => [condition.temperatureC, condition.role])).toEqual([
+      [25, 'long-term'],
+      [40, 'accelerated'],
+      [50, 'not-declared'],
+      [60, 'not-declared'],
+    ]);
+    const [longTerm] = conditions;
+    const limit = longTerm!.proposal.extrapolationLimit;
+    // Significant change at accelerated; intermediate not stated → taken as significant → ICH Q1E §2.4.2.2.
+    expect(limit.branch).toBe('room-temperature.accelerated-and-intermediate-change');
+    expect(limit.section).toBe('ICH Q1E §2.4.2.2');
+    expect(limit.assumptions).toEqual([
+      expect.stringMatching(/^Significant change at the intermediate condition not stated/),
+    ]);
+    expect(limit.valueMonths).toBe(36); // X = 36 months of long-term data, no extrapolation
+    const proposed = longTerm!.proposal.proposedShelfLife!;
+    expect(Number.isInteger(proposed)).toBe(true);
+    expect(proposed).toBeLessThanOrEqual(longTerm!.result!.shelfLife!);
+    expect(proposed).toBeLessThanOrEqual(36);
+    expect(conditions.slice(1).every((condition) => condition.proposal.proposedShelfLife === null)).toBe(
+      true,
+    );
+
+    const page = await analyst.get(`/analyses/${runId}`);
+    expect(page.status).toBe(200);
+    expect(page.text).toContain(`Proposed shelf life at 25 °C: ${proposed} months.`);
+    expect(page.text).toMatch(
+      /id="q1e-assumptions"[^>]*><li>Significant change at the intermediate condition not stated/,
+    );
+    expect(page.text).toContain('room-temperature storage; significant change at the accelerated condition');
+    expect(page.text).toContain('These statistical estimates support, but do not replace');
+    expect(run!.methodStatement).toContain(
+      'Shelf-life proposal. Declared by the study: storage room temperature',
+    );
+  });
+
+  it('a run recorded before proposals existed still shows, and says how to get one', async () => {
+    const [latest] = await world.database.db
+      .select()
+      .from(analysisRuns)
+      .where(eq(analysisRuns.organisationId, world.organisationId))
+      .limit(1);
+    const stored = structuredClone(latest!.result) as StoredAnalysisResult;
+    for (const condition of stored.analysis.shelfLife ?? []) {
+      delete (condition as Partial<typeof condition>).proposal;
+      delete (condition as Partial<typeof condition>).role;
+    }
+    const [old] = await world.database.db
+      .insert(analysisRuns)
+      .values({ ...latest!, id: undefined, result: stored, supersedesRunId: null, runAt: undefined })
+      .returning({ id: analysisRuns.id });
+    const page = await analyst.get(`/analyses/${old!.id}`);
+    expect(page.status).toBe(200);
+    expect(page.text).toContain('recorded before shelf-life proposals');
+    expect(page.text).toContain('no extrapolation limit was applied in this run');
+  });
+});
+
 describe('who may do what', () => {
   it('reviewers and admins read; only analysts run and exclude; other organisations see nothing', async () => {
     const [run] = await world.database.db

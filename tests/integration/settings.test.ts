@@ -208,7 +208,15 @@ describe('saving', () => {
       expect((await signIn(world.app, member.email, 'wrong-password')).response.text).toContain('not right');
     // The third failure locks (it took five before the change), for the new 20 minutes.
     const third = await signIn(world.app, member.email, 'wrong-password');
-    expect(third.response.text).toContain('locked for 20 minutes');
+    // The refusal says nothing of the lock (no account enumeration); the audit trail records it.
+    expect(third.response.status).toBe(401);
+    expect(third.response.text).toContain('not right');
+    expect(third.response.text).not.toContain('20 minutes');
+    const [locked] = await world.database.db
+      .select()
+      .from(auditEvents)
+      .where(and(eq(auditEvents.actorUserId, member.id), eq(auditEvents.action, 'account.locked')));
+    expect(locked?.afterValue).toMatchObject({ afterFailures: 3, minutes: 20 });
     expect((await signIn(world.app, member.email, member.password)).response.status).toBe(401);
     // The policy shown to administrators follows too.
     expect((await admin.get('/admin/people')).text).toContain('At least 14 characters.');

@@ -148,6 +148,104 @@ describe('studies', () => {
     );
   });
 
+  it('the Q1E declaration is stored, shown, and each change is audited with its before and after values', async () => {
+    const { agent } = await signInAs('analyst');
+    const created = await postStudy(agent, '/studies', { ...VALID, title: 'Study with a declaration' });
+    const id = Number(/\/studies\/(\d+)/.exec(created.headers.location ?? '')?.[1]);
+    const [fresh] = await world.database.db.select().from(studies).where(eq(studies.id, id));
+    // Nothing stated: every answer unknown (the engine takes the most conservative branch).
+    expect(fresh).toMatchObject({
+      storageCategory: 'unknown',
+      acceleratedTemperatureC: null,
+      acceleratedChange: 'unknown',
+      intermediateChange: 'unknown',
+      littleChange: 'unknown',
+      supportingData: 'unknown',
+    });
+    const form = await agent.get(`/studies/${id}/edit`);
+    expect(form.text).toContain(
+      '<option value="unknown" selected>not stated (taken as significant)</option>',
+    );
+    const declared = {
+      ...VALID,
+      title: 'Study with a declaration',
+      storageCategory: 'room-temperature',
+      acceleratedTemperatureC: '40',
+      intermediateTemperatureC: '30',
+      acceleratedChange: 'none',
+      supportingData: 'yes',
+      declarationBasis: 'Accelerated report AR-17 (invented).',
+    };
+    expect((await postStudy(agent, `/studies/${id}`, declared)).headers.location).toContain('saved=updated');
+    const events = await world.database.db
+      .select()
+      .from(auditEvents)
+      .where(
+        and(
+          eq(auditEvents.organisationId, world.organisationId),
+          eq(auditEvents.recordType, 'study'),
+          eq(auditEvents.recordId, String(id)),
+        ),
+      )
+      .orderBy(asc(auditEvents.id));
+    expect(events.map((event) => event.action)).toEqual(['study.created', 'study.updated']);
+    expect(events[0]!.afterValue).toMatchObject({ storageCategory: 'unknown', supportingData: 'unknown' });
+    expect(events[1]!.beforeValue).toEqual({
+      storageCategory: 'unknown',
+      intermediateTemperatureC: null,
+      acceleratedTemperatureC: null,
+      acceleratedChange: 'unknown',
+      supportingData: 'unknown',
+      declarationBasis: '',
+    });
+    expect(events[1]!.afterValue).toEqual({
+      storageCategory: 'room-temperature',
+      intermediateTemperatureC: 30,
+      acceleratedTemperatureC: 40,
+      acceleratedChange: 'none',
+      supportingData: 'yes',
+      declarationBasis: 'Accelerated report AR-17 (invented).',
+    });
+    const page = await agent.get(`/studies/${id}`);
+    expect(page.text).toContain('room temperature (ICH Q1E §2.4)');
+    expect(page.text).toContain('long-term 25 °C · intermediate 30 °C · accelerated 40 °C');
+    expect(page.text).toContain('not stated (taken as no)');
+  });
+
+  it('a bad declaration is refused beside its field (400, never 500) and nothing is stored', async () => {
+    const { agent } = await signInAs('analyst');
+    const before = await world.database.db.$count(studies, eq(studies.organisationId, world.organisationId));
+    const response = await postStudy(agent, '/studies', {
+      ...VALID,
+      storageCategory: 'cellar',
+      acceleratedChange: 'maybe',
+      littleChange: '1',
+      acceleratedTemperatureC: '20',
+    });
+    expect(response.status).toBe(400);
+    expect(response.text).toMatch(
+      /id="storageCategory-error"[^>]*>Choose not stated, room temperature, refrigerated or frozen\./,
+    );
+    expect(response.text).toMatch(
+      /id="acceleratedChange-error"[^>]*>Choose not stated, none or significant\./,
+    );
+    expect(response.text).toMatch(/id="littleChange-error"[^>]*>Choose not stated, yes or no\./);
+    const colder = await postStudy(agent, '/studies', { ...VALID, acceleratedTemperatureC: '20' });
+    expect(colder.status).toBe(400);
+    expect(colder.text).toMatch(
+      /id="acceleratedTemperatureC-error"[^>]*>The accelerated condition must be warmer/,
+    );
+    const intermediate = await postStudy(agent, '/studies', {
+      ...VALID,
+      intermediateTemperatureC: '45',
+      acceleratedTemperatureC: '40',
+    });
+    expect(intermediate.text).toMatch(/id="acceleratedTemperatureC-error"/);
+    expect(await world.database.db.$count(studies, eq(studies.organisationId, world.organisationId))).toBe(
+      before,
+    );
+  });
+
   it('a reviewer and an admin may read studies but not create or edit them (403)', async () => {
     const { agent: analyst } = await signInAs('analyst');
     const created = await postStudy(analyst, '/studies', { ...VALID, title: 'Read-only for reviewers' });

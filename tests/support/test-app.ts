@@ -1,7 +1,7 @@
 import { randomBytes } from 'node:crypto';
 import type { Express } from 'express';
 import request from 'supertest';
-import { createApp } from '../../server/app.ts';
+import { type CreateAppOptions, createApp } from '../../server/app.ts';
 import type { AppOptions } from '../../server/platform/app-services.ts';
 import { hashPassword } from '../../server/platform/auth/passwords.ts';
 import type { Role } from '../../server/platform/auth/roles.ts';
@@ -29,9 +29,14 @@ export interface TestWorld {
  */
 export async function createTestWorld(
   people: Record<string, Role[]>,
-  options: Partial<AppOptions> & { lockoutThreshold?: number } = {},
+  options: Partial<AppOptions> &
+    Omit<CreateAppOptions, 'sessionSecret'> & {
+      lockoutThreshold?: number;
+      /** Another database than the test database (e.g. a throwaway cluster a test stops). */
+      databaseUrl?: string;
+    } = {},
 ): Promise<TestWorld> {
-  const database = openDatabase(process.env.DATABASE_URL!);
+  const database = openDatabase(options.databaseUrl ?? process.env.DATABASE_URL!);
   const tag = randomBytes(4).toString('hex');
   const [organisation] = await database.db
     .insert(organisations)
@@ -55,7 +60,7 @@ export async function createTestWorld(
         .values({ userId: user!.id, organisationId: organisation!.id, role });
     created[name] = { id: user!.id, email, password, roles };
   }
-  const { lockoutThreshold: _ignored, ...appOptions } = options;
+  const { lockoutThreshold: _ignored, databaseUrl: _database, ...appOptions } = options;
   const app = createApp(database, {
     sessionSecret: 'test-secret-for-this-file-only',
     rateLimitPrefix: `${tag}:`,

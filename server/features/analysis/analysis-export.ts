@@ -4,6 +4,7 @@ import { csvTable } from '../../platform/export/csv-writer.ts';
 import { planSheet, writeWorkbook } from '../../platform/export/workbook-writer.ts';
 import { figureDataSheet } from './analysis-figure-data-sheet.ts';
 import { fitSheets } from './analysis-fit-sheets.ts';
+import { proposalSheet } from './analysis-proposal-sheet.ts';
 import { aboutSheet, dataSheet, methodStatementSheet } from './analysis-record-sheets.ts';
 import { RESULT_COLUMNS } from './analysis-result-columns.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
@@ -11,7 +12,7 @@ import { temperatureSheet } from './analysis-temperature-sheet.ts';
 
 /**
  * The exports of an analysis run: an .xlsx workbook (data used and excluded, fits per series and
- * model, derived figures, Arrhenius and Q1E results, the figures' data, the method statement and
+ * model, derived figures, Arrhenius and Q1E results, the shelf-life proposal, the figures' data, the method statement and
  * the caution) and a CSV of the tidy results table. Both are written from the stored result through
  * `resultRows`, like the screen, so every number matches what the analysis page shows; numbers are
  * stored as numbers (full double precision), never as text. Each sheet is a list of column
@@ -37,6 +38,7 @@ export async function writeAnalysisWorkbook(run: AnalysisRunRecord, stream: Writ
     dataSheet(run),
     ...fitSheets(analysis),
     temperatureSheet(run),
+    proposalSheet(run),
     figureDataSheet(run),
     methodStatementSheet(run),
   ];

@@ -46,6 +46,17 @@ export function engineOptions(options: AnalysisOptions, study: Study): DatasetOp
     ...(study.upperLimit === null ? {} : { upperLimit: study.upperLimit }),
     ...(study.storageTemperatureC === null ? {} : { storageTemperatureC: study.storageTemperatureC }),
     direction: study.direction,
+    // The study's Q1E declaration; the long-term condition is its storage temperature.
+    q1e: {
+      storage: study.storageCategory,
+      longTermTemperatureC: study.storageTemperatureC,
+      intermediateTemperatureC: study.intermediateTemperatureC,
+      acceleratedTemperatureC: study.acceleratedTemperatureC,
+      acceleratedChange: study.acceleratedChange,
+      intermediateChange: study.intermediateChange,
+      littleChange: study.littleChange,
+      supportingData: study.supportingData,
+    },
   };
 }
 

@@ -37,6 +37,14 @@ interface ShelfLifeEntry {
   limiting: string | null;
   accelerated: boolean;
   cell: NumberCell;
+  proposal: {
+    recorded: boolean;
+    isLongTerm: boolean;
+    proposed: string;
+    statement: string;
+    reason: string;
+    assumptions: string[];
+  };
 }
 
 interface ArrheniusEntry {
@@ -53,14 +61,28 @@ export function verdictSummary(
 ): string[] {
   const summary: string[] = [];
   for (const entry of shelfLife) {
-    if (entry.accelerated || !entry.cell.value) continue;
+    if (entry.proposal.recorded && !entry.proposal.isLongTerm) continue;
+    if (entry.proposal.recorded) {
+      const count = entry.proposal.assumptions.length;
+      summary.push(
+        `Proposed shelf life at ${entry.condition}: ${entry.proposal.proposed === '—' ? 'none' : entry.proposal.proposed}. ${entry.proposal.statement}${count === 0 ? '' : ` It rests on ${count} assumption${count === 1 ? '' : 's'} about what the study does not state (see Shelf life).`}`,
+      );
+      continue;
+    }
+    if (entry.accelerated) continue;
     summary.push(
-      `Shelf life at ${entry.condition} (ICH Q1E, ${entry.scale}, ${entry.model}): ${entry.cell.text} ${entry.cell.unit}${entry.limiting ? `, limited by ${entry.limiting}` : ''}${entry.beyondData ? ', beyond the observed data' : ''}.`,
+      entry.cell.value
+        ? `Statistical shelf-life estimate at ${entry.condition} (ICH Q1E, ${entry.scale}, ${entry.model}): ${entry.cell.text} ${entry.cell.unit}${entry.limiting ? `, limited by ${entry.limiting}` : ''}${entry.beyondData ? ', beyond the observed data' : ''}; no extrapolation limit was applied in this run.`
+        : `No Q1E shelf life at ${entry.condition}: ${entry.reason}`,
     );
   }
-  for (const entry of shelfLife) {
-    if (!entry.accelerated && !entry.cell.value)
-      summary.push(`No Q1E shelf life at ${entry.condition}: ${entry.reason}`);
+  if (
+    shelfLife.length > 0 &&
+    shelfLife.every((entry) => entry.proposal.recorded && !entry.proposal.isLongTerm)
+  ) {
+    summary.push(
+      'No shelf life is proposed: no condition of the data is the long-term condition the study declares (its storage temperature).',
+    );
   }
   const ea = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|activation-energy'));
   const predicted = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|predicted-k'));

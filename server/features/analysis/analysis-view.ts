@@ -7,6 +7,7 @@ import {
   formatSignificant,
   NOT_ESTIMABLE,
 } from '../../../shared/figures/significant-figures.ts';
+import { proposalView } from './analysis-proposal-view.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
 import { groupedWarnings, readableNumbers, verdictSummary } from './analysis-verdict.ts';
 import type { NumberCell } from './number-cell.ts';
@@ -191,8 +192,12 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     );
     const result = condition.result;
     const figureId = `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`;
+    const timeUnit =
+      analysis.series.find((entry) => condition.seriesIds.includes(entry.id))?.analysis?.timeUnit ?? '';
+    const proposal = proposalView(condition, timeUnit);
     return {
       condition: condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`,
+      proposal,
       series: condition.seriesIds.join(', '),
       scale: { none: 'values (zero order)', ln: 'ln(value) (first order)', '1/x': '1/value (second order)' }[
         condition.transform
@@ -204,10 +209,12 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         result?.poolability?.explanation ?? result?.poolabilityNotApplicableReason ?? '',
       ),
       reason: readableNumbers(result?.reason ?? condition.notApplicableReason ?? ''),
-      accelerated:
-        study.storageTemperatureC !== null &&
-        condition.temperatureC !== null &&
-        condition.temperatureC !== study.storageTemperatureC,
+      // Only the declared long-term condition proposes a shelf life; runs recorded before roles use the storage temperature.
+      accelerated: proposal.recorded
+        ? !proposal.isLongTerm
+        : study.storageTemperatureC !== null &&
+          condition.temperatureC !== null &&
+          condition.temperatureC !== study.storageTemperatureC,
       beyondData: result?.extrapolation.beyondObservedData === true,
       limiting: result?.limitingLine ?? null,
       figure: figureIds.has(figureId) ? figure(figureId) : null,

@@ -48,17 +48,19 @@ export function mapSheets(sheets: readonly SheetGrid[], mapping: ColumnMapping):
   if (!result.ok) return { ok: false, series: [], problems: result.problems, warnings: result.warnings };
   const warnings = [...result.warnings];
   const singleTime = result.series.filter((series) => distinctTimes(series) < 2);
-  const describe = (series: Series) => {
+  const describe = (series: Series, hint = '') => {
     const first = series.observations[0];
     const count = series.observations.length;
     const what = count === 1 ? 'has a single result' : `has ${count} results, all`;
     return intakeProblem(
       first?.source?.cell,
-      `series "${series.id}" ${what} at time ${first?.time ?? '?'} ${series.timeUnit}; a rate needs results at two or more different times`,
+      `series "${series.id}" ${what} at time ${first?.time ?? '?'} ${series.timeUnit}; a rate needs results at two or more different times${hint}`,
     );
   };
   if (singleTime.length === result.series.length) {
-    return { ok: false, series: [], problems: singleTime.map(describe), warnings };
+    // No series has two times: the file holds no rate, or the time column is not the time.
+    const hint = `; check that the time column "${mapping.timeColumn}" holds the time of each pull`;
+    return { ok: false, series: [], problems: singleTime.map((series) => describe(series, hint)), warnings };
   }
   for (const series of singleTime) {
     const problem = describe(series);

@@ -40,19 +40,17 @@ async function expireOpenInvitations(tx: Transaction, organisationId: number, em
 }
 
 /**
- * Refuses an address that is already a member (409, field `email`) or whose account is
- * deactivated; returns whether the address has an account (in another organisation).
+ * Refuses an address that is already a member of this organisation (409, field `email`; the
+ * administrator sees their members anyway). Whether the address has an account elsewhere — or
+ * a deactivated one — is never said: an invitation must not tell an administrator which
+ * addresses are known to Rateledger. Such a person joins with their account when they accept.
  */
-async function checkInvitable(tx: Transaction, organisationId: number, email: string): Promise<boolean> {
-  const [existing] = await tx
-    .select({ id: users.id, active: users.active })
-    .from(users)
-    .where(eq(users.email, email));
-  if (!existing) return false;
+async function checkInvitable(tx: Transaction, organisationId: number, email: string): Promise<void> {
   const [member] = await tx
     .select({ id: memberships.id })
     .from(memberships)
-    .where(and(eq(memberships.userId, existing.id), eq(memberships.organisationId, organisationId)))
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(users.email, email), eq(memberships.organisationId, organisationId)))
     .limit(1);
   if (member)
     throw new HttpError(
@@ -65,11 +63,6 @@ async function checkInvitable(tx: Transaction, organisationId: number, email: st
         },
       ],
     );
-  if (!existing.active)
-    throw new HttpError(409, `The account of ${email} is deactivated.`, [
-      { field: 'email', message: `The account of ${email} is deactivated; it cannot be invited.` },
-    ]);
-  return true;
 }
 
 /**
@@ -84,13 +77,12 @@ export async function inviteMember(
 ): Promise<{
   invitationId: number;
   expiresAt: Date;
-  existingAccount: boolean;
   delivery: MailDelivery | null;
 }> {
   const { token, digest } = newLinkToken();
   const { result, deliveries } = await commitThenMail(db, async (tx) => {
     await tx.execute(sql`select pg_advisory_xact_lock(${ORGANISATION_ADMIN_LOCK}, ${actor.organisationId})`);
-    const existingAccount = await checkInvitable(tx, actor.organisationId, input.email);
+    await checkInvitable(tx, actor.organisationId, input.email);
     const replaced = await expireOpenInvitations(tx, actor.organisationId, input.email);
     const [organisation] = await tx
       .select()
@@ -120,7 +112,6 @@ export async function inviteMember(
         fullName: input.fullName,
         roles: input.roles,
         expiresAt: invitation!.expiresAt,
-        existingAccount,
         replacesInvitations: replaced.map((row) => row.id),
       },
       context,
@@ -134,7 +125,7 @@ export async function inviteMember(
       timeZone: organisation!.timeZone,
     });
     return {
-      result: { invitationId: invitation!.id, expiresAt: invitation!.expiresAt, existingAccount },
+      result: { invitationId: invitation!.id, expiresAt: invitation!.expiresAt },
       mail: [
         {
           organisationId: actor.organisationId,

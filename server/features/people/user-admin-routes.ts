@@ -89,15 +89,12 @@ export function userAdminRoutes(services: AppServices): Router {
     try {
       const invited = await inviteMember(db, req.user!, parsed.data, auditContext(req));
       const who = `${parsed.data.fullName} <${parsed.data.email}>`;
-      const joining = invited.existingAccount
-        ? ' This address already has a Rateledger account: the person signs in with it to join.'
-        : '';
       noticeAndBack(
         req,
         res,
         '/admin/people',
         invited.delivery?.status === 'sent' ? 'done' : 'error',
-        `Invitation for ${who} recorded.${joining} ${deliveryNote(invited.delivery)}`,
+        `Invitation for ${who} recorded. ${deliveryNote(invited.delivery)}`,
       );
     } catch (error) {
       if (error instanceof HttpError && error.status === 409) {

@@ -11,6 +11,7 @@ import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { createStudy, findStudy, listStudies, type Study, studyOverview, updateStudy } from './studies.ts';
+import { declarationSelects, declarationSummary } from './study-declaration-fields.ts';
 
 /** Who may read studies: every duty of the product. Only analysts create and change them. */
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -29,6 +30,14 @@ function formValuesOf(study: Study): FormValues {
     upperLimit: number(study.upperLimit),
     storageTemperatureC: number(study.storageTemperatureC),
     storageHumidityPercent: number(study.storageHumidityPercent),
+    storageCategory: study.storageCategory,
+    intermediateTemperatureC: number(study.intermediateTemperatureC),
+    acceleratedTemperatureC: number(study.acceleratedTemperatureC),
+    acceleratedChange: study.acceleratedChange,
+    intermediateChange: study.intermediateChange,
+    littleChange: study.littleChange,
+    supportingData: study.supportingData,
+    declarationBasis: study.declarationBasis,
     batches: study.batches.join('\n'),
     notes: study.notes,
   };
@@ -49,7 +58,7 @@ interface FieldSpec {
   decimal?: boolean;
 }
 
-const FIELD_GROUPS: Record<'study' | 'criterion' | 'storage', FieldSpec[]> = {
+const FIELD_GROUPS: Record<'study' | 'criterion' | 'storage' | 'roles', FieldSpec[]> = {
   study: [
     {
       name: 'title',
@@ -74,6 +83,20 @@ const FIELD_GROUPS: Record<'study' | 'criterion' | 'storage', FieldSpec[]> = {
       decimal: true,
     },
   ],
+  roles: [
+    {
+      name: 'intermediateTemperatureC',
+      label: 'Intermediate condition (°C)',
+      hint: 'e.g. 30; blank when the study has none',
+      decimal: true,
+    },
+    {
+      name: 'acceleratedTemperatureC',
+      label: 'Accelerated condition (°C)',
+      hint: 'e.g. 40 for room temperature, 25 for a refrigerated product',
+      decimal: true,
+    },
+  ],
 };
 
 function formLocals(values: FormValues, errors: Record<string, string>, action: string, study?: Study) {
@@ -84,7 +107,9 @@ function formLocals(values: FormValues, errors: Record<string, string>, action: 
       study: fill(FIELD_GROUPS.study),
       criterion: fill(FIELD_GROUPS.criterion),
       storage: fill(FIELD_GROUPS.storage),
+      roles: fill(FIELD_GROUPS.roles),
     },
+    declaration: declarationSelects(values).map((entry) => ({ ...entry, error: errors[entry.name] })),
     title: study ? `Edit ${study.title}` : 'New study',
     heading: study ? 'Edit study' : 'New study',
     action,
@@ -166,6 +191,7 @@ export function studyRoutes(services: AppServices): Router {
         }[saved] ?? '',
       criterion: criterion(study.lowerLimit, study.upperLimit, study.unit),
       condition: condition(study.storageTemperatureC, study.storageHumidityPercent),
+      declaration: declarationSummary(study),
       canEdit: req.user!.roles.includes('analyst'),
       uploadLimit: formatBytes(UPLOAD_SIZE_LIMIT_BYTES),
       uploads: overview.uploads.map((upload) => ({

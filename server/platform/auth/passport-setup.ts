@@ -1,7 +1,9 @@
+import { setTimeout as sleep } from 'node:timers/promises';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import type { Database } from '../db/client.ts';
 import { attemptSignIn, loadSessionUser } from './accounts.ts';
+import { knownBrowserCookie } from './known-browser.ts';
 import type { SessionUser } from './roles.ts';
 
 declare global {
@@ -24,21 +26,56 @@ export const MISSING_CREDENTIALS = 'Enter your e-mail address and your password.
 export type Authenticator = InstanceType<typeof passport.Passport>;
 
 /**
- * Passport with one strategy, passport-local over `attemptSignIn` (which owns lockout, the
- * constant-time answer for unknown e-mails and the audit events of every attempt; 21 CFR 11.300(d)).
- * The session keeps only {userId, organisationId} and the user is reloaded with their roles on
- * every request, so a deactivation or role change takes effect at once.
+ * Every refused sign-in is answered no sooner than this after the attempt began. The work of
+ * the different refusals (unknown e-mail, wrong password, locked, deactivated) is alike but not
+ * identical — a few database statements more or less beside one Argon2id verification of some
+ * 7–10 ms — and a patient attacker can average out small differences; a floor well above the
+ * slowest of them leaves nothing to measure. A successful sign-in is not held back.
  */
-export function createAuthenticator(db: Database): Authenticator {
+export const REFUSAL_FLOOR_MS = 250;
+
+export interface AuthenticatorSettings {
+  /** Signs the known-browser cookie (a key derived from it, `known-browser.ts`). */
+  secret: string;
+  cookieSecure: boolean;
+  /** Separates the sign-in counters of app instances that must not share them (tests). */
+  counterPrefix: string;
+  refusalFloorMs?: number;
+}
+
+/**
+ * Passport with one strategy, passport-local over `attemptSignIn` (which owns the per-client
+ * locks, the uniform answer and the audit events of every attempt; 21 CFR 11.300(d), 11.10(e)).
+ * A successful sign-in renews the known-browser cookie. The session keeps only {userId,
+ * organisationId} and the user is reloaded with their roles on every request, so a deactivation
+ * or role change takes effect at once.
+ */
+export function createAuthenticator(db: Database, settings: AuthenticatorSettings): Authenticator {
   const authenticator = new passport.Passport();
+  const browsers = knownBrowserCookie({ secret: settings.secret, secure: settings.cookieSecure });
+  const floorMs = settings.refusalFloorMs ?? REFUSAL_FLOOR_MS;
   authenticator.use(
     PASSWORD_STRATEGY,
     new LocalStrategy(
       { usernameField: 'email', passwordField: 'password', passReqToCallback: true },
       (req, email, password, done) => {
-        attemptSignIn(db, email, password, { ip: req.ip, userAgent: req.get('user-agent') }).then(
-          (outcome) =>
-            outcome.ok ? done(null, outcome.user) : done(null, false, { message: outcome.message }),
+        const started = performance.now();
+        const knownBrowser = browsers.read(req);
+        attemptSignIn(
+          db,
+          email,
+          password,
+          { ip: req.ip, userAgent: req.get('user-agent'), knownBrowser },
+          { counterPrefix: settings.counterPrefix },
+        ).then(
+          async (outcome) => {
+            if (outcome.ok) {
+              if (req.res) browsers.issue(req.res, outcome.user.id, knownBrowser);
+              return done(null, outcome.user);
+            }
+            await sleep(Math.max(0, started + floorMs - performance.now()));
+            done(null, false, { message: outcome.message });
+          },
           (error) => done(error),
         );
       },

@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import { logger } from '../logging/logger.ts';
 import { renderPage } from '../web/render-page.ts';
+import { DATABASE_UNREACHABLE_MESSAGE, isDatabaseUnreachable } from './database-unreachable.ts';
 import { HttpError } from './http-error.ts';
 
 const HEADINGS: Record<number, string> = {
@@ -13,7 +14,11 @@ const HEADINGS: Record<number, string> = {
   415: 'Unsupported content type',
   429: 'Too many requests',
   500: 'Something went wrong',
+  503: 'The database is not reachable',
 };
+
+/** Seconds a client is told to wait before trying again while the database is away. */
+const RETRY_AFTER_SECONDS = 60;
 
 /** The catch-all for paths no route matched. */
 export const notFound: RequestHandler = (req, _res, next) => {
@@ -23,6 +28,7 @@ export const notFound: RequestHandler = (req, _res, next) => {
 /** body-parser and multer errors carry a status and a type; translate them to safe messages. */
 function fromFrameworkError(error: unknown): HttpError | null {
   if (error instanceof HttpError) return error;
+  if (isDatabaseUnreachable(error)) return new HttpError(503, DATABASE_UNREACHABLE_MESSAGE);
   if (error instanceof ZodError) {
     return new HttpError(
       400,
@@ -70,7 +76,14 @@ export const errorHandler: ErrorRequestHandler = (error, req, res, _next) => {
       { err: error, reqId: req.id, method: req.method, route: req.route?.path ?? null },
       'request failed',
     );
+  else if (status === 503)
+    // One line, no stack: while the database is away every request would otherwise log one.
+    logger.warn(
+      { reqId: req.id, method: req.method, code: (error as { code?: string }).code ?? null },
+      'database not reachable',
+    );
   if (res.headersSent) return;
+  if (status === 503) res.set('Retry-After', String(RETRY_AFTER_SECONDS));
   if (req.originalUrl.startsWith('/api/') || req.originalUrl.startsWith('/healthz') || !req.accepts('html')) {
     res
       .status(status)

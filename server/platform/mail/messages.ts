@@ -24,7 +24,9 @@ export type MailKind =
   | 'report-returned'
   | 'report-signed'
   | 'invitation'
-  | 'password-reset';
+  | 'password-reset'
+  | 'sign-in-locked'
+  | 'sign-in-locked-admin';
 
 interface ReportMailBase {
   reportNumber: string;
@@ -174,5 +176,51 @@ export function passwordResetMail(input: {
     'Someone (we hope you) asked to reset the password of your Rateledger account.',
     { label: 'Choose a new password', href: absoluteLink(input.actionPath) },
     `The link works once and until ${mailTime(input.expiresAt, input.timeZone)}. If you did not ask for this, ignore this message: your password stays as it is.`,
+  ]);
+}
+
+interface SignInLockMail {
+  /** Where the failures came from, e.g. "from the address 192.0.2.7". */
+  where: string;
+  /** What the lock refuses, e.g. "sign-in from that address". */
+  refused: string;
+  /** Who can still sign in, e.g. "Sign-in from anywhere else is not affected." */
+  unaffected: string;
+  failures: number;
+  lockedUntil: Date;
+  /** Further locks within this many minutes are recorded without another message. */
+  quietMinutes: number;
+  timeZone?: string;
+}
+
+/**
+ * To the owner of an account whose sign-in was locked after failed attempts; `unlockPath` is a
+ * one-time password-reset link (choosing a new password also lifts the lock).
+ */
+export function signInLockedOwnerMail(
+  input: SignInLockMail & { recipientName: string; email: string; unlockPath: string; linkExpiresAt: Date },
+): MailContent {
+  return compose('Sign-in to your Rateledger account was locked', `Dear ${input.recipientName},`, [
+    `${input.failures} attempts to sign in to your Rateledger account (${input.email}) with a wrong password came ${input.where}. Rateledger has locked ${input.refused} until ${mailTime(input.lockedUntil, input.timeZone)}.`,
+    input.unaffected,
+    'If it was you: wait until then, or choose a new password with the link below — that also unlocks your account at once.',
+    'If it was not you: nobody signed in, and your administrators have been told. If your password is one you also use elsewhere, choose a new one with the link.',
+    { label: 'Choose a new password and unlock your account', href: absoluteLink(input.unlockPath) },
+    `The link works once and until ${mailTime(input.linkExpiresAt, input.timeZone)}. Further locks of your account in the next ${input.quietMinutes} minutes are recorded without another message.`,
+  ]);
+}
+
+/**
+ * To an organisation's administrators (21 CFR 11.300(d): attempts at unauthorised use are reported
+ * at once to those responsible): a member's sign-in was locked after failed attempts.
+ */
+export function signInLockedAdminMail(
+  input: SignInLockMail & { memberName: string; memberEmail: string; personPath: string },
+): MailContent {
+  return compose(`Failed sign-ins: ${input.memberName}'s account locked`, 'Hello,', [
+    `${input.failures} attempts to sign in to the account of ${input.memberName} (${input.memberEmail}) with a wrong password came ${input.where}. Rateledger has locked ${input.refused} until ${mailTime(input.lockedUntil, input.timeZone)}. ${input.unaffected}`,
+    "The owner was told by e-mail, with a one-time link to choose a new password that also unlocks the account. Every attempt is in the audit trail (actions sign-in.failed, sign-in.refused-locked and account.locked). You can unlock the account sooner on the person's page.",
+    { label: `Open ${input.memberName}'s page`, href: absoluteLink(input.personPath) },
+    `Further locks of this account in the next ${input.quietMinutes} minutes are recorded in the audit trail without another message.`,
   ]);
 }

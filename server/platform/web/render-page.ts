@@ -1,8 +1,12 @@
 import type { Request, Response } from 'express';
-import { csrfToken } from '../auth/csrf.ts';
 import type { ClientAssets } from './assets.ts';
 
-/** Renders a page with what every page needs: the user, the CSRF token and the client assets. */
+/**
+ * Renders a page with what every page needs: the user, the CSRF token and the client assets.
+ * The token comes from the CSRF middleware (the session's when signed in, a signed cookie's for an
+ * anonymous visitor, so that a page view never creates a session); a page rendered before that
+ * middleware ran (an early error) gets none.
+ */
 export function renderPage(
   req: Request,
   res: Response,
@@ -15,7 +19,7 @@ export function renderPage(
   res.status(status).render(view, {
     assets,
     user: req.user,
-    csrfToken: req.session ? csrfToken(req) : '',
+    csrfToken: req.pageCsrfToken?.() ?? '',
     nav: {
       admin: roles.includes('admin'),
       reviewer: roles.includes('reviewer'),

@@ -1,5 +1,6 @@
 import { euclideanNorm } from './euclidean-norm.ts';
 import { applyQTranspose, householderQr } from './householder-qr.ts';
+import { solveSmallSymmetric } from './small-cholesky.ts';
 import { solveUpperTriangular } from './solve-upper-triangular.ts';
 
 /** At most this many polishing steps; each normally gains several digits. */
@@ -14,6 +15,16 @@ const SUM_OF_SQUARES_NOISE = 64 * Number.EPSILON;
  * it is the difference of, and the sum of squares a rounding noise of 2·Σ|rᵢ|·(that error).
  */
 const MODEL_ROUNDING_UNITS = 8;
+/**
+ * Successive Gauss–Newton steps that shrink by a steady factor above this, in nearly the same direction
+ * (|cos| ≥ `PARALLEL_STEPS`), show linear convergence, which eight steps would not finish; near a
+ * minimum of a well-fitting model the factor is far smaller (the convergence is nearly quadratic), and
+ * where only rounding is left the directions are unrelated.
+ */
+const LINEAR_CONVERGENCE_RATIO = 0.1;
+const PARALLEL_STEPS = 0.9;
+/** Relative step of the central differences of the Jacobian in a Newton step: ε^(1/3), the usual balance of truncation and rounding. */
+const HESSIAN_DIFFERENCE_STEP = Math.cbrt(Number.EPSILON);
 /** Polishing ends when the scaled step is this small relative to the scaled parameters. */
 const POLISH_STEP_TOLERANCE = 4 * Number.EPSILON;
 /** Columns whose scaled diagonal falls below this fraction of the largest end the polishing. */
@@ -56,15 +67,23 @@ export function gaussNewtonPolish(
   jacobianColumns: (parameters: readonly number[]) => Float64Array[],
   rows: number,
   valueScales: ArrayLike<number>,
+  analyticJacobian: boolean,
 ): { parameters: number[]; residualNorm: number; steps: number; evaluations: number } {
   let parameters = [...start];
   let residualNorm = startNorm;
   let previousStep = Number.POSITIVE_INFINITY;
   let steps = 0;
   let evaluations = 0;
-  const residualVector = new Float64Array(rows);
+  // The residuals at the current and at the trial point, swapped when a step is kept.
+  let residualVector = new Float64Array(rows);
+  let trialResiduals = new Float64Array(rows);
+  const transformed = new Float64Array(rows);
   residuals(parameters, residualVector);
   evaluations++;
+  // Switched on when a Gauss–Newton step shrinks by less than half: from then on, Newton steps.
+  let newton = false;
+  let firstNewtonStep = false;
+  const previousScaledStep = new Float64Array(start.length);
   for (let pass = 0; pass < MAX_POLISH_STEPS; pass++) {
     const columns = jacobianColumns(parameters);
     evaluations++;
@@ -72,31 +91,58 @@ export function gaussNewtonPolish(
     if (scales.some((scale) => !(scale > 0 && Number.isFinite(scale)))) {
       break;
     }
-    columns.forEach((column, j) => {
-      for (let i = 0; i < rows; i++) {
-        column[i] = column[i]! / scales[j]!;
-      }
-    });
-    const qr = householderQr(columns, rows, true);
-    const largest = Math.abs(qr.diagonal[0]!);
-    if (qr.diagonal.some((value) => !(Math.abs(value) > POLISH_RANK_TOLERANCE * largest))) {
-      break;
-    }
-    const transformed = Float64Array.from(residualVector);
-    applyQTranspose(qr, transformed);
-    const scaledStep = solveUpperTriangular(qr, transformed);
-    const step = new Float64Array(parameters.length);
-    for (let k = 0; k < parameters.length; k++) {
-      const j = qr.permutation[k]!;
-      step[j] = -scaledStep[k]! / scales[j]!;
-    }
-    const stepLength = euclideanNorm(scaledStep);
     const parameterLength = euclideanNorm(parameters.map((value, j) => value * scales[j]!));
-    if (!(stepLength <= REQUIRED_STEP_CONTRACTION * previousStep) || !Number.isFinite(stepLength)) {
-      break;
+    const step = new Float64Array(parameters.length);
+    let stepLength = Number.NaN;
+    if (!newton) {
+      columns.forEach((column, j) => {
+        for (let i = 0; i < rows; i++) {
+          column[i] = column[i]! / scales[j]!;
+        }
+      });
+      const qr = householderQr(columns, rows, true);
+      const largest = Math.abs(qr.diagonal[0]!);
+      if (qr.diagonal.some((value) => !(Math.abs(value) > POLISH_RANK_TOLERANCE * largest))) {
+        break;
+      }
+      transformed.set(residualVector);
+      applyQTranspose(qr, transformed);
+      const scaledStep = solveUpperTriangular(qr, transformed);
+      for (let k = 0; k < parameters.length; k++) {
+        const j = qr.permutation[k]!;
+        step[j] = -scaledStep[k]! / scales[j]!;
+      }
+      stepLength = euclideanNorm(scaledStep);
+      if (!Number.isFinite(stepLength)) {
+        break;
+      }
+      const ratio = stepLength / previousStep;
+      if (
+        analyticJacobian &&
+        ratio > LINEAR_CONVERGENCE_RATIO &&
+        parallel(step, previousScaledStep, scales)
+      ) {
+        // Gauss–Newton converges only linearly here (large residuals against the curvature of the
+        // model): Newton steps instead, the first one from this point.
+        newton = true;
+        firstNewtonStep = true;
+      } else if (!(ratio <= REQUIRED_STEP_CONTRACTION)) {
+        break;
+      }
+    }
+    if (newton) {
+      const newtonEvaluations = newtonStep(parameters, residualVector, jacobianColumns, step);
+      evaluations += newtonEvaluations;
+      if (newtonEvaluations === 0) {
+        break;
+      }
+      stepLength = euclideanNorm(Array.from(step, (value, j) => value * scales[j]!));
+      if (!firstNewtonStep && !(stepLength <= REQUIRED_STEP_CONTRACTION * previousStep)) {
+        break;
+      }
+      firstNewtonStep = false;
     }
     const trial = parameters.map((value, j) => value + step[j]!);
-    const trialResiduals = new Float64Array(rows);
     residuals(trial, trialResiduals);
     evaluations++;
     const trialNorm = euclideanNorm(trialResiduals);
@@ -109,14 +155,82 @@ export function gaussNewtonPolish(
     }
     parameters = trial;
     residualNorm = trialNorm;
-    residualVector.set(trialResiduals);
+    [residualVector, trialResiduals] = [trialResiduals, residualVector];
     previousStep = stepLength;
+    for (let j = 0; j < step.length; j++) previousScaledStep[j] = step[j]! * scales[j]!;
     steps++;
     if (stepLength <= POLISH_STEP_TOLERANCE * parameterLength) {
       break;
     }
   }
   return { parameters, residualNorm, steps, evaluations };
+}
+
+/**
+ * The Newton step −H⁻¹·Jᵀf for ½‖f‖² at `parameters`, written into `step`, with the Hessian
+ * H = JᵀJ + Σ fᵢ·∇²fᵢ: the second term as central differences, along each parameter, of Jᵀf with f
+ * held at its current value (Jacobians at θ ± hⱼ·eⱼ, hⱼ = ε^(1/3)·|θⱼ|). Returns the Jacobian
+ * evaluations used, or 0 when a differenced Jacobian is not finite or H is not positive definite.
+ */
+function newtonStep(
+  parameters: readonly number[],
+  residualVector: Float64Array,
+  jacobianColumns: (parameters: readonly number[]) => Float64Array[],
+  step: Float64Array,
+): number {
+  const n = parameters.length;
+  const hessian = new Float64Array(n * n);
+  const gradient = new Float64Array(n);
+  const columns = jacobianColumns(parameters);
+  for (let a = 0; a < n; a++) {
+    gradient[a] = -dot(columns[a]!, residualVector);
+    for (let b = 0; b <= a; b++) {
+      hessian[a * n + b] = dot(columns[a]!, columns[b]!);
+    }
+  }
+  for (let a = 0; a < n; a++) for (let b = 0; b < a; b++) hessian[b * n + a] = hessian[a * n + b]!;
+  const second = new Float64Array(n * n);
+  const shifted = [...parameters];
+  for (let b = 0; b < n; b++) {
+    const value = parameters[b]!;
+    const step = value + HESSIAN_DIFFERENCE_STEP * (value === 0 ? 1 : Math.abs(value)) - value;
+    for (const sign of [1, -1]) {
+      shifted[b] = value + sign * step;
+      const moved = jacobianColumns(shifted);
+      for (let a = 0; a < n; a++) {
+        const product = dot(moved[a]!, residualVector);
+        if (!Number.isFinite(product)) return 0;
+        second[a * n + b] = second[a * n + b]! + (sign * product) / (2 * step);
+      }
+    }
+    shifted[b] = value;
+  }
+  for (let a = 0; a < n; a++) {
+    for (let b = 0; b < n; b++) {
+      hessian[a * n + b] = hessian[a * n + b]! + (second[a * n + b]! + second[b * n + a]!) / 2;
+    }
+  }
+  return solveSmallSymmetric(hessian, gradient, step, n) ? 1 + 2 * n : 0;
+}
+
+/** |cos| of the angle between `step` (scaled by `scales`) and `previous` is at least `PARALLEL_STEPS`. */
+function parallel(step: Float64Array, previous: Float64Array, scales: readonly number[]): boolean {
+  let product = 0;
+  let stepSquared = 0;
+  let previousSquared = 0;
+  for (let j = 0; j < step.length; j++) {
+    const scaled = step[j]! * scales[j]!;
+    product += scaled * previous[j]!;
+    stepSquared += scaled * scaled;
+    previousSquared += previous[j]! * previous[j]!;
+  }
+  return Math.abs(product) >= PARALLEL_STEPS * Math.sqrt(stepSquared * previousSquared);
+}
+
+function dot(left: Float64Array, right: Float64Array): number {
+  let sum = 0;
+  for (let i = 0; i < left.length; i++) sum += left[i]! * right[i]!;
+  return sum;
 }
 
 /** Rounding noise 2·Σ|rᵢ|·eᵢ of a sum of squared residuals, eᵢ = `MODEL_ROUNDING_UNITS`·ε·(sᵢ + |rᵢ|). */

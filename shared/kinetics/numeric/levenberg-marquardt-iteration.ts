@@ -13,6 +13,8 @@ export interface LevenbergMarquardtSettings {
   initialStepFactor: number;
   /** √wᵢ·|yᵢ| per observation: the size of what each residual is a difference of (rounding noise). */
   valueScales: ArrayLike<number>;
+  /** The Jacobian is analytic, so the polish may difference it for Newton steps (`gaussNewtonPolish`). */
+  analyticJacobian: boolean;
 }
 
 /** Where a run stopped. */
@@ -55,7 +57,21 @@ export function runLevenbergMarquardt(
 ): LevenbergMarquardtState {
   const n = initial.length;
   let parameters = [...initial];
+  // Work arrays, allocated once per run: the residuals at the current point and at a trial point
+  // (swapped when a step is accepted), Qᵀf, R as n dense columns, and n-vectors.
   let residualVector = new Float64Array(rows);
+  let trialResiduals = new Float64Array(rows);
+  const qtf = new Float64Array(rows);
+  const r = Array.from({ length: n }, () => new Float64Array(n));
+  const solution = new Float64Array(n);
+  const step = new Float64Array(n);
+  const scaledVector = new Float64Array(n);
+  const predictedChange = new Float64Array(n);
+  const scaling = new Float64Array(n);
+  const scaledNorm = (vector: ArrayLike<number>): number => {
+    for (let j = 0; j < n; j++) scaledVector[j] = scaling[j]! * vector[j]!;
+    return euclideanNorm(scaledVector);
+  };
   residuals(parameters, residualVector);
   let functionEvaluations = 1;
   let residualNorm = finiteNorm(residualVector);
@@ -68,6 +84,7 @@ export function runLevenbergMarquardt(
         jacobianColumns,
         rows,
         settings.valueScales,
+        settings.analyticJacobian,
       );
       parameters = polished.parameters;
       residualNorm = polished.residualNorm;
@@ -85,13 +102,12 @@ export function runLevenbergMarquardt(
   if (!Number.isFinite(residualNorm)) {
     return stop(false, 'the model is not finite at the initial parameters', 0);
   }
-  const scaling = new Float64Array(n);
   let delta = 0;
   let scaledParameterNorm = 0;
   let damping = 0;
   for (let iteration = 1; iteration <= settings.maxIterations; iteration++) {
     const columns = jacobianColumns(parameters);
-    if (columns.some((column) => column.some((value) => !Number.isFinite(value)))) {
+    if (!allFinite(columns)) {
       return stop(false, 'the Jacobian is not finite at the current parameters', iteration);
     }
     const qr = householderQr(columns, rows, true);
@@ -99,11 +115,11 @@ export function runLevenbergMarquardt(
       for (let j = 0; j < n; j++) {
         scaling[j] = qr.columnNorms[j] === 0 ? 1 : qr.columnNorms[j]!;
       }
-      scaledParameterNorm = euclideanNorm(parameters.map((value, j) => scaling[j]! * value));
+      scaledParameterNorm = scaledNorm(parameters);
       delta = settings.initialStepFactor * scaledParameterNorm || settings.initialStepFactor;
     }
     // Qᵀf and the triangular factor R as n dense columns.
-    const qtf = Float64Array.from(residualVector);
+    qtf.set(residualVector);
     for (let j = 0; j < n; j++) {
       const column = qr.columns[j]!;
       if (column[j] !== 0 && qr.diagonal[j] !== 0) {
@@ -117,14 +133,14 @@ export function runLevenbergMarquardt(
         }
       }
     }
-    const r = Array.from({ length: n }, (_, j) => {
-      const dense = new Float64Array(n);
+    for (let j = 0; j < n; j++) {
+      const dense = r[j]!;
+      dense.fill(0);
       for (let i = 0; i < j; i++) {
         dense[i] = qr.columns[j]![i]!;
       }
       dense[j] = qr.diagonal[j]!;
-      return dense;
-    });
+    }
     const qtb = qtf.subarray(0, n);
     // Largest cosine between the residual vector and a Jacobian column.
     let gradientCosine = 0;
@@ -148,21 +164,19 @@ export function runLevenbergMarquardt(
     }
     // Inner loop: trial steps until one is accepted.
     for (;;) {
-      const solution = new Float64Array(n);
       damping = levenbergMarquardtParameter(r, qr.permutation, scaling, qtb, delta, damping, solution);
-      const step = Array.from(solution, (value) => -value);
+      for (let j = 0; j < n; j++) step[j] = -solution[j]!;
       const trial = parameters.map((value, j) => value + step[j]!);
-      const stepNorm = euclideanNorm(step.map((value, j) => scaling[j]! * value));
+      const stepNorm = scaledNorm(step);
       if (iteration === 1) {
         delta = Math.min(delta, stepNorm);
       }
-      const trialResiduals = new Float64Array(rows);
       residuals(trial, trialResiduals);
       functionEvaluations++;
       const trialNorm = finiteNorm(trialResiduals);
       const actualReduction = 0.1 * trialNorm < residualNorm ? 1 - (trialNorm / residualNorm) ** 2 : -1;
       // Predicted reduction of the linear model.
-      const predictedChange = new Float64Array(n);
+      predictedChange.fill(0);
       for (let j = 0; j < n; j++) {
         const value = step[qr.permutation[j]!]!;
         for (let i = 0; i <= j; i++) {
@@ -191,9 +205,9 @@ export function runLevenbergMarquardt(
       const accepted = ratio >= ACCEPTANCE_RATIO;
       if (accepted) {
         parameters = trial;
-        residualVector = trialResiduals;
+        [residualVector, trialResiduals] = [trialResiduals, residualVector];
         residualNorm = trialNorm;
-        scaledParameterNorm = euclideanNorm(parameters.map((value, j) => scaling[j]! * value));
+        scaledParameterNorm = scaledNorm(parameters);
       }
       const reductionSmall =
         Math.abs(actualReduction) <= settings.relativeReductionTolerance &&
@@ -246,6 +260,16 @@ export function runLevenbergMarquardt(
     }
   }
   return stop(false, `no convergence within ${settings.maxIterations} iterations`, settings.maxIterations);
+}
+
+/** True when every entry of every column is finite. */
+function allFinite(columns: readonly Float64Array[]): boolean {
+  for (const column of columns) {
+    for (let i = 0; i < column.length; i++) {
+      if (!Number.isFinite(column[i]!)) return false;
+    }
+  }
+  return true;
 }
 
 /** Euclidean norm, or Infinity when any entry is not finite. */

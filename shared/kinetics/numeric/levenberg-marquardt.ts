@@ -116,17 +116,26 @@ export function levenbergMarquardt(problem: NonlinearProblem, options: LmOptions
   const { x, y, weights, initial, model } = problem;
   validateProblem(problem);
   const parameterCount = initial.length;
-  const rootWeights = Float64Array.from(y, (_, i) => (weights === undefined ? 1 : Math.sqrt(weights[i]!)));
+  const rows = y.length;
+  const rootWeights = new Float64Array(rows);
+  const valueScales = new Float64Array(rows);
+  for (let i = 0; i < rows; i++) {
+    rootWeights[i] = weights === undefined ? 1 : Math.sqrt(weights[i]!);
+    valueScales[i] = rootWeights[i]! * Math.abs(y[i]!);
+  }
   const gradient =
     problem.jacobian ?? ((p: readonly number[], xi: number, i: number) => numericGradient(model, p, xi, i));
   const residuals = (parameters: readonly number[], out: Float64Array): void => {
-    for (let i = 0; i < y.length; i++) {
+    for (let i = 0; i < rows; i++) {
       out[i] = rootWeights[i]! * (model(parameters, x[i]!, i) - y[i]!);
     }
   };
+  // One set of columns, refilled on every call: each caller is done with a Jacobian (and its QR
+  // factorization, which overwrites it) before it asks for the next, and this saves an allocation
+  // of m·p numbers per iteration.
+  const columns = Array.from({ length: parameterCount }, () => new Float64Array(rows));
   const jacobianColumns = (parameters: readonly number[]): Float64Array[] => {
-    const columns = Array.from({ length: parameterCount }, () => new Float64Array(y.length));
-    for (let i = 0; i < y.length; i++) {
+    for (let i = 0; i < rows; i++) {
       const row = gradient(parameters, x[i]!, i);
       for (let j = 0; j < parameterCount; j++) {
         columns[j]![i] = rootWeights[i]! * (row[j] ?? Number.NaN);
@@ -134,22 +143,17 @@ export function levenbergMarquardt(problem: NonlinearProblem, options: LmOptions
     }
     return columns;
   };
-  const state: LevenbergMarquardtState = runLevenbergMarquardt(
-    initial,
-    residuals,
-    jacobianColumns,
-    y.length,
-    {
-      maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
-      maxFunctionEvaluations: options.maxFunctionEvaluations ?? 1000 * (parameterCount + 1),
-      relativeReductionTolerance: options.relativeReductionTolerance ?? DEFAULT_RELATIVE_REDUCTION_TOLERANCE,
-      relativeStepTolerance: options.relativeStepTolerance ?? DEFAULT_RELATIVE_STEP_TOLERANCE,
-      gradientTolerance: options.gradientTolerance ?? DEFAULT_GRADIENT_TOLERANCE,
-      initialStepFactor: options.initialStepFactor ?? DEFAULT_INITIAL_STEP_FACTOR,
-      valueScales: Float64Array.from(y, (value, i) => rootWeights[i]! * Math.abs(value)),
-    },
-  );
-  const degreesOfFreedom = y.length - parameterCount;
+  const state: LevenbergMarquardtState = runLevenbergMarquardt(initial, residuals, jacobianColumns, rows, {
+    maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
+    maxFunctionEvaluations: options.maxFunctionEvaluations ?? 1000 * (parameterCount + 1),
+    relativeReductionTolerance: options.relativeReductionTolerance ?? DEFAULT_RELATIVE_REDUCTION_TOLERANCE,
+    relativeStepTolerance: options.relativeStepTolerance ?? DEFAULT_RELATIVE_STEP_TOLERANCE,
+    gradientTolerance: options.gradientTolerance ?? DEFAULT_GRADIENT_TOLERANCE,
+    initialStepFactor: options.initialStepFactor ?? DEFAULT_INITIAL_STEP_FACTOR,
+    valueScales,
+    analyticJacobian: problem.jacobian !== undefined,
+  });
+  const degreesOfFreedom = rows - parameterCount;
   const residualVariance = state.residualSumOfSquares / degreesOfFreedom;
   const result: NonlinearFit = {
     parameters: [...state.parameters],
@@ -172,13 +176,14 @@ export function levenbergMarquardt(problem: NonlinearProblem, options: LmOptions
     return { ...result, converged: false, reason: `${state.reason}; ${covariance.reason}` };
   }
   let largestRounding = 0;
-  for (let i = 0; i < y.length; i++) {
-    largestRounding = Math.max(
-      largestRounding,
-      rootWeights[i]! * halfUnitInLastPlace(model(state.parameters, x[i]!, i)),
-    );
+  for (let i = 0; i < rows; i++) {
+    const value = model(state.parameters, x[i]!, i);
+    // √wᵢ·|value|·2⁻⁵³ bounds √wᵢ·(half an ulp of value) from above (exactly, in floating point),
+    // so a point whose bound does not exceed the largest so far cannot change it.
+    if (rootWeights[i]! * Math.abs(value) * 2 ** -53 <= largestRounding) continue;
+    largestRounding = Math.max(largestRounding, rootWeights[i]! * halfUnitInLastPlace(value));
   }
-  const rmsResidual = Math.sqrt(state.residualSumOfSquares / y.length);
+  const rmsResidual = Math.sqrt(state.residualSumOfSquares / rows);
   const limited = largestRounding > ROUNDING_LIMITED_RESIDUAL_FRACTION * rmsResidual;
   return {
     ...result,

@@ -1,7 +1,7 @@
+import { invertSmallSymmetric } from '../numeric/small-cholesky.ts';
 import type { RateLawFit } from './fit-rate-law.ts';
 import { prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
 import { type RunsTestResult, runsTest } from './runs-test.ts';
-import { invertSmallSymmetric } from './small-cholesky.ts';
 
 /**
  * Residual diagnostics of a fitted rate law: fitted values, residuals, leverage, internally and

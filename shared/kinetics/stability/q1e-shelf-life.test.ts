@@ -267,26 +267,6 @@ describe('q1eShelfLife, no crossing, extrapolation and degenerate cases', () => 
     expect(result.shelfLife).toBe(0);
   });
 
-  it('caps the proposal with the Q1E extrapolation limit', () => {
-    const slow = lineBatch('CV-8103', 100.1, -0.1, 2);
-    const result = q1eShelfLife([slow], {
-      direction: 'decreasing',
-      lowerLimit: 95,
-      transform: 'none',
-      extrapolationCase: {
-        storage: 'room-temperature',
-        significantChangeAccelerated: false,
-        longTermData: 'statistics-performed',
-        supportingData: true,
-      },
-    });
-    // X = 24 months observed: Q1E caps at min(2X, X + 12) = 36 months (ICH Q1E 2.4, App. A; from memory).
-    expect(result.extrapolation.q1eLimitInTimeUnits).toBe(36);
-    expect(result.shelfLife ?? 0).toBeGreaterThan(36);
-    expect(result.extrapolation.exceedsQ1eLimit).toBe(true);
-    expect(result.extrapolation.supportedShelfLife).toBe(36);
-  });
-
   it('throws typed errors for degenerate input', () => {
     const code = (c: string) => expect.objectContaining({ code: c });
     const ok = lineBatch('CV-9101', 100, -0.3, 0);

@@ -9,11 +9,6 @@ import {
   Q1E_POOLABILITY_SIGNIFICANCE,
 } from './poolability.ts';
 import { q1eAcceptanceLimits } from './q1e-acceptance-limits.ts';
-import {
-  type Q1eExtrapolationCase,
-  type Q1eExtrapolationLimit,
-  q1eExtrapolationLimit,
-} from './q1e-extrapolation-limit.ts';
 import type { StabilityBatch, StabilityTransform, TransformedBatch } from './stability-batch.ts';
 import { lineFromAncova, lineOfSingleBatch, type StabilityLine } from './stability-line.ts';
 import { transformedStabilityBatches } from './transformed-stability-batches.ts';
@@ -36,10 +31,6 @@ export interface Q1eShelfLifeOptions {
   horizon?: number;
   /** Residual variance of non-poolable batches: each batch's own (default) or pooled over batches. */
   separateBatchVariance?: 'individual' | 'pooled';
-  /** Facts for the Q1E extrapolation cap; X is taken from the data. */
-  extrapolationCase?: Omit<Q1eExtrapolationCase, 'longTermMonths'>;
-  /** Months per time unit of the data (default 1: times in months); used for the extrapolation cap. */
-  monthsPerTimeUnit?: number;
   /** Points per plotted line; default 41. */
   gridPoints?: number;
 }
@@ -69,11 +60,6 @@ export interface Q1eShelfLife {
   extrapolation: {
     longestObservedTime: number;
     beyondObservedData: boolean | null;
-    q1eLimit: Q1eExtrapolationLimit | null;
-    q1eLimitInTimeUnits: number | null;
-    exceedsQ1eLimit: boolean | null;
-    /** min(statistical shelf life, Q1E cap) when a case is given; null otherwise. */
-    supportedShelfLife: number | null;
   };
 }
 
@@ -110,14 +96,14 @@ function fittedLines(
  * at the confidence level (one-sided) or (1 + confidence)/2 (two-sided) and the fit's residual
  * degrees of freedom; the overall shelf life is the minimum over lines (worst batch). A crossing
  * beyond the horizon is reported as "no crossing within N", never as a huge number. The result
- * flags a shelf life beyond the longest observed time and, given the case, compares it with the
- * Q1E extrapolation cap (`q1eExtrapolationLimit`).
+ * flags a shelf life beyond the longest observed time. It is the statistical estimate only: the
+ * proposal under the Q1E extrapolation limit is `conditionShelfLives`' step.
  *
- * Reference: ICH Q1E (2003) App. B.1–B.2 and, for the cap, 2.4–2.5 and App. A; ICH Q1A(R2) 2.2.9 as
+ * Reference: ICH Q1E (2003) App. B.1–B.2; ICH Q1A(R2) 2.2.9 as
  * quoted in ASEAN 2013 §4.10; docs/methods.md#q1e-shelf-life.
  *
- * Throws `KineticsError`: 'invalid-input' (bad confidence, significance, horizon, grid or month
- * factor; missing acceptance limit), plus the errors of `transformedStabilityBatches`,
+ * Throws `KineticsError`: 'invalid-input' (bad confidence, significance, horizon, or grid
+ * count; missing acceptance limit), plus the errors of `transformedStabilityBatches`,
  * `poolability` and `linearLeastSquares`.
  *
  * Example: one batch at 100.1, 99.5, 99.0, 98.6, 98.1 % at 0, 3, 6, 9, 12 months, decreasing,
@@ -128,7 +114,6 @@ export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShe
   const confidence = options.confidence ?? 0.95;
   const significance = options.significance ?? Q1E_POOLABILITY_SIGNIFICANCE;
   const separateBatchVariance = options.separateBatchVariance ?? 'individual';
-  const monthsPerTimeUnit = options.monthsPerTimeUnit ?? 1;
   const gridPoints = options.gridPoints ?? DEFAULT_GRID_POINTS;
   for (const [name, value] of [
     ['confidence', confidence],
@@ -138,14 +123,8 @@ export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShe
       throw new KineticsError('invalid-input', `${name} must lie strictly between 0 and 1; got ${value}.`);
     }
   }
-  if (
-    !(Number.isFinite(monthsPerTimeUnit) && monthsPerTimeUnit > 0) ||
-    !(Number.isInteger(gridPoints) && gridPoints >= 2)
-  ) {
-    throw new KineticsError(
-      'invalid-input',
-      'monthsPerTimeUnit must be positive and gridPoints an integer ≥ 2.',
-    );
+  if (!(Number.isInteger(gridPoints) && gridPoints >= 2)) {
+    throw new KineticsError('invalid-input', `gridPoints must be an integer ≥ 2; got ${gridPoints}.`);
   }
   const transformed = transformedStabilityBatches(batches, options.transform);
   const acceptance = q1eAcceptanceLimits(
@@ -178,21 +157,6 @@ export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShe
     withGrid(line, lines[i]!, options.transform, gridEnd, gridPoints),
   );
 
-  const q1eLimit = options.extrapolationCase
-    ? q1eExtrapolationLimit({
-        ...options.extrapolationCase,
-        longTermMonths: longestObservedTime * monthsPerTimeUnit,
-      })
-    : null;
-  const q1eLimitInTimeUnits = q1eLimit === null ? null : q1eLimit.maximumShelfLifeMonths / monthsPerTimeUnit;
-  let supportedShelfLife: number | null = null;
-  if (q1eLimitInTimeUnits !== null) {
-    if (shelfLife !== null) {
-      supportedShelfLife = Math.min(shelfLife, q1eLimitInTimeUnits);
-    } else if (q1eLimitInTimeUnits <= horizon) {
-      supportedShelfLife = q1eLimitInTimeUnits;
-    }
-  }
   return {
     method: {
       transform: options.transform,
@@ -222,11 +186,6 @@ export function q1eShelfLife(batches: readonly StabilityBatch[], options: Q1eShe
     extrapolation: {
       longestObservedTime,
       beyondObservedData: shelfLife === null ? null : shelfLife > longestObservedTime,
-      q1eLimit,
-      q1eLimitInTimeUnits,
-      exceedsQ1eLimit:
-        shelfLife === null || q1eLimitInTimeUnits === null ? null : shelfLife > q1eLimitInTimeUnits,
-      supportedShelfLife,
     },
   };
 }

@@ -63,6 +63,12 @@ export const FIXTURE_OPTIONS: DatasetOptions = {
   lowerLimit: FIXTURE_LIMIT,
   storageTemperatureC: 25,
   order: 1,
+  q1e: {
+    storage: 'room-temperature',
+    acceleratedTemperatureC: 40,
+    acceleratedChange: 'none',
+    supportingData: 'yes',
+  },
 };
 
 export interface ReportFixture {

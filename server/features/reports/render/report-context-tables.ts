@@ -113,13 +113,57 @@ function linearisedTable(rows: ResultRow[]): ReportTable {
   };
 }
 
+/**
+ * One row per condition: its declared role, the statistical estimate, the ICH Q1E extrapolation
+ * limit with its rule and section, and the proposed shelf life (or why there is none). Runs
+ * recorded before proposals have none, and the table is left out.
+ */
+function proposalTable(analysis: DatasetAnalysis): ReportTable | null {
+  const conditions = (analysis.shelfLife ?? []).filter((condition) => condition.proposal !== undefined);
+  if (conditions.length === 0) return null;
+  const unitOf = (seriesIds: string[]) =>
+    analysis.series.find((result) => seriesIds.includes(result.id))?.analysis?.timeUnit ?? '';
+  const months = (value: number | null) => (value === null ? '—' : `${Number(value.toPrecision(6))} months`);
+  return {
+    caption:
+      'Proposed shelf life: the smaller of the estimate and the ICH Q1E extrapolation limit, rounded down to a whole month',
+    columns: [
+      { key: 'where', label: 'Condition' },
+      { key: 'role', label: 'Role' },
+      { key: 'estimate', label: 'Statistical estimate', align: 'right' },
+      { key: 'limit', label: 'Extrapolation limit', align: 'right' },
+      { key: 'proposed', label: 'Proposed', align: 'right' },
+      { key: 'basis', label: 'Rule and branch, or why none' },
+    ],
+    rows: conditions.map((condition) => {
+      const proposal = condition.proposal;
+      const limit = proposal.extrapolationLimit;
+      return {
+        where: condition.temperatureC === null ? 'All series' : `${condition.temperatureC} °C`,
+        role: condition.role === 'not-declared' ? 'not declared' : condition.role,
+        estimate: significant(condition.result?.shelfLife ?? null, 4, unitOf(condition.seriesIds)),
+        limit: months(limit.valueMonths),
+        proposed: months(proposal.proposedShelfLifeMonths),
+        basis: tidyNote(
+          proposal.proposedReason ??
+            `${limit.rule} (${limit.section ?? 'ICH Q1E'}); ${limit.branchText}${limit.assumptions.length > 0 ? `. Assumptions: ${limit.assumptions.join(' ')}` : ''}`,
+        ),
+      };
+    }),
+  };
+}
+
 /** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
 export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
   const rows = resultRows(analysis);
   const of = (section: ResultRow['section']) => rows.filter((row) => row.section === section);
   const tables: ReportTable[] = [];
+  const proposals = proposalTable(analysis);
+  if (proposals) tables.push(proposals);
   if (of('shelf-life').length > 0)
-    tables.push(listTable(analysis, of('shelf-life'), 'ICH Q1E shelf life per condition'));
+    tables.push(
+      listTable(analysis, of('shelf-life'), 'ICH Q1E statistical shelf-life estimate per condition'),
+    );
   if (of('arrhenius').length > 0)
     tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
   if (of('derived').length > 0) {

@@ -81,7 +81,12 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   {
     path: 'summary.shelfLife[]',
     description:
-      'Per storage condition: temperatureC, seriesIds[], shelfLife, timeUnit, model, limitingLine, status, reason, statement.',
+      'Per storage condition: temperatureC, role (long-term, intermediate, accelerated, not-declared), seriesIds[], shelfLife (the statistical estimate), timeUnit, model, limitingLine, status, reason, estimateStatement, proposedShelfLife (in timeUnit), proposedShelfLifeMonths, proposedReason, estimateExceedsLimit, extrapolationLimit, statement.',
+  },
+  {
+    path: 'summary.proposals[]',
+    description:
+      'The long-term condition(s) with a shelf-life proposal: as summary.shelfLife[], with extrapolationLimit { value, valueMonths, longTermMonths, rule, branch, branchText, section, assumptions[], findings[], notes[] }.',
   },
   {
     path: 'summary.arrhenius',

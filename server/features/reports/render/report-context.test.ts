@@ -61,9 +61,23 @@ describe('buildReportContext', () => {
     expect(context.analysis.pointsUsed).toBe(stored.analysis.methodStatement.data.pointsUsed);
   });
 
-  it('puts the storage condition first in the verdict, and marks other conditions as for information', () => {
-    expect(context.summary.headline[0]).toMatch(/^ICH Q1E shelf life at 25 °C \(storage condition\)/);
+  it('puts the proposal of the long-term condition first in the verdict, and marks other conditions as for information', () => {
+    expect(context.summary.headline[0]).toMatch(
+      /^Proposed shelf life at 25 °C \(long-term\): \d+ months?\. /,
+    );
     expect(context.summary.headline[1]).toMatch(/40 °C \(not the storage condition; for information\)/);
+  });
+
+  it('shows the proposal never above the estimate nor the ICH Q1E limit, with its branch (ICH Q1E Appendix A)', () => {
+    const [proposal] = context.summary.proposals;
+    const estimate = stored.analysis.shelfLife![0]!.result!.shelfLife!;
+    expect(proposal?.proposedShelfLifeMonths).toBe(Math.floor(Math.min(estimate, 36)));
+    // X = 24 months, room temperature, statistics and supporting data: min(2X, X + 12) = 36 (ICH Q1E §2.4.1.2.2).
+    expect(proposal?.extrapolationLimit?.valueMonths).toBe(36);
+    expect(proposal?.extrapolationLimit?.section).toBe('ICH Q1E §2.4.1.2.2');
+    const table = context.resultTables.find((entry) => entry.caption.startsWith('Proposed shelf life'));
+    expect(table?.rows[0]).toMatchObject({ where: '25 °C', role: 'long-term' });
+    expect(table?.rows[1]?.basis).toMatch(/proposed from long-term data only/);
   });
 
   it('lists the excluded point with its reason, and the caution and signature placeholder', () => {

@@ -1,6 +1,7 @@
 import type { AnalysisFigure } from '../../../../shared/api/analyses.ts';
 import type { StoredAnalysisResult } from '../../../../shared/figures/stored-result.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
+import type { Q1eProposal } from '../../../../shared/kinetics/stability/q1e-proposal.ts';
 import type { AttributeDirection, Series } from '../../../../shared/kinetics/types.ts';
 import { dataTables, resultTables } from './report-context-tables.ts';
 import { isoDay, significant } from './template-format.ts';
@@ -136,13 +137,28 @@ function shelfLifeSummaries(analysis: DatasetAnalysis, storageTemperatureC: numb
     const extrapolated = result?.extrapolation.beyondObservedData
       ? ', beyond the observed data (extrapolated)'
       : '';
-    const statement = !result
+    const estimateStatement = !result
       ? `Shelf life at ${where} not evaluated: ${condition.notApplicableReason ?? 'no result'}.`
       : result.shelfLife === null
         ? `At ${where} no crossing of the acceptance criterion within ${significant(result.horizon, 3, timeUnit)}: ${result.reason}.`
-        : `ICH Q1E shelf life at ${where}: ${significant(result.shelfLife, 3, timeUnit)}${result.limitingLine ? `, limited by ${result.limitingLine}` : ''}${extrapolated} (model: ${result.model}).`;
+        : `ICH Q1E statistical shelf-life estimate at ${where}: ${significant(result.shelfLife, 3, timeUnit)}${result.limitingLine ? `, limited by ${result.limitingLine}` : ''}${extrapolated} (model: ${result.model}).`;
+    // Runs recorded before proposals carry none (stored results are never rewritten).
+    const proposal = (condition as { proposal?: Q1eProposal }).proposal ?? null;
+    const isLongTerm = proposal !== null && condition.role === 'long-term';
+    const proposed = proposal?.proposedShelfLifeMonths ?? null;
+    const statement = isLongTerm
+      ? `Proposed shelf life at ${condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`} (long-term): ${proposed === null ? 'none' : `${proposed} month${proposed === 1 ? '' : 's'}`}. ${proposal.statement}`
+      : estimateStatement;
     return {
       temperatureC: condition.temperatureC,
+      role: proposal === null ? null : condition.role,
+      isLongTermCondition: isLongTerm,
+      proposedShelfLife: proposal?.proposedShelfLife ?? null,
+      proposedShelfLifeMonths: proposed,
+      proposedReason: proposal?.proposedReason ?? null,
+      estimateExceedsLimit: proposal?.estimateExceedsLimit ?? null,
+      extrapolationLimit: proposal?.extrapolationLimit ?? null,
+      estimateStatement,
       isStorageCondition: isStorage,
       seriesIds: condition.seriesIds,
       transformReason: condition.transformReason,
@@ -203,13 +219,16 @@ export function buildReportContext(input: ReportContextInput) {
     cell: point.cell,
   }));
   const shelfLife = shelfLifeSummaries(analysis, study.storageTemperatureC).sort(
-    (a, b) => Number(b.isStorageCondition) - Number(a.isStorageCondition),
+    (a, b) =>
+      Number(b.isLongTermCondition) - Number(a.isLongTermCondition) ||
+      Number(b.isStorageCondition) - Number(a.isStorageCondition),
   );
   const series = seriesSummaries(analysis);
   const headline =
     shelfLife.length > 0
       ? shelfLife.map((entry) => entry.statement)
       : series.map((entry) => `${entry.id}: ${entry.verdict}`);
+  const proposals = shelfLife.filter((entry) => entry.isLongTermCondition);
   return {
     organisation: { name: organisation.name, timeZone },
     report: {
@@ -256,7 +275,7 @@ export function buildReportContext(input: ReportContextInput) {
       seriesCount: analysis.series.length,
       pointsUsed: statement.data.pointsUsed,
     },
-    summary: { headline, series, shelfLife, arrhenius: arrheniusSummary(analysis) },
+    summary: { headline, series, shelfLife, proposals, arrhenius: arrheniusSummary(analysis) },
     resultTables: resultTables(analysis) as ReportTable[],
     dataTables: dataTables(analysisRun.series),
     figures: input.figures.map((figure, index) => ({

@@ -103,6 +103,37 @@ describe('errors with line and column', () => {
     }
   });
 
+  it('says a caption once when the description repeats the title (issue 12 §4; common practice)', () => {
+    const figures = new Map([
+      [
+        'arrhenius',
+        {
+          number: 1,
+          title: 'Arrhenius plot',
+          description: 'Arrhenius plot: ln k against 1000/T with the fitted line.',
+          svg: '<svg></svg>',
+        },
+      ],
+      [
+        'q1e',
+        {
+          number: 2,
+          title: 'Q1E shelf life at 25 °C',
+          description: 'Batch results and mean line.',
+          svg: '<svg></svg>',
+        },
+      ],
+    ]);
+    const html = render('{{figure "arrhenius"}}{{figure "q1e"}}', {}, figures);
+    expect(html).toContain(
+      'Figure 1.</span> Arrhenius plot: ln k against 1000/T with the fitted line.</figcaption>',
+    );
+    expect(html.match(/Arrhenius plot/g)).toHaveLength(1);
+    expect(html).toContain(
+      'Figure 2.</span> Q1E shelf life at 25 °C. <span class="figure-description">Batch results and mean line.</span>',
+    );
+  });
+
   it('lists the known figures when a figure id does not exist', () => {
     const figures = new Map([['arrhenius', { number: 1, title: 't', description: 'd', svg: '<svg></svg>' }]]);
     expect(() => render('{{figure "nope"}}', {}, figures)).toThrow(/no figure "nope".*arrhenius/);

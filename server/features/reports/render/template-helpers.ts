@@ -153,6 +153,24 @@ function tableMarkup(hb: Env, table: unknown): string {
   return `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
 }
 
+/**
+ * The title and description of a caption, each said once: a description that opens with the
+ * title ("Arrhenius plot: ln k against 1000/T…" under "Arrhenius plot") stands alone, and a title
+ * followed by a description ends with a full stop.
+ */
+export function captionParts(figure: Pick<FigureMarkup, 'title' | 'description'>): {
+  title: string;
+  description: string;
+} {
+  const title = figure.title.trim();
+  const description = figure.description.trim();
+  if (description === '') return { title, description: '' };
+  if (title === '' || description.toLowerCase().startsWith(title.toLowerCase().replace(/[.:]$/, ''))) {
+    return { title: description, description: '' };
+  }
+  return { title: /[.:!?]$/.test(title) ? title : `${title}.`, description };
+}
+
 function figures(options: HelperOptions): Map<string, FigureMarkup> {
   const data = options.data as { figureSvg?: unknown } | undefined;
   return data?.figureSvg instanceof Map ? (data.figureSvg as Map<string, FigureMarkup>) : new Map();
@@ -197,10 +215,9 @@ export function registerTemplateHelpers(hb: Env): void {
         `figure: no figure "${String(id)}" in this report; the figures are ${[...known.keys()].join(', ') || 'none'}.`,
       );
     }
-    const caption = `<figcaption><span class="figure-number">Figure ${figure.number}.</span> ${escapeText(hb, figure.title)}${
-      figure.description
-        ? ` <span class="figure-description">${escapeText(hb, figure.description)}</span>`
-        : ''
+    const { title, description } = captionParts(figure);
+    const caption = `<figcaption><span class="figure-number">Figure ${figure.number}.</span> ${escapeText(hb, title)}${
+      description ? ` <span class="figure-description">${escapeText(hb, description)}</span>` : ''
     }</figcaption>`;
     return new hb.SafeString(
       `<figure class="report-figure" id="figure-${escapeText(hb, id)}">${figure.svg}${caption}</figure>`,

@@ -1,10 +1,22 @@
 import { doublePrecision, integer, jsonb, pgEnum, pgTable, serial, text } from 'drizzle-orm/pg-core';
+import {
+  DECLARED_ANSWERS,
+  DECLARED_CHANGES,
+  STORAGE_CATEGORIES,
+} from '../../../../shared/kinetics/stability/q1e-declaration.ts';
 import { createdAt, updatedAt } from './columns.ts';
 import { organisations } from './organisations.ts';
 import { users } from './users.ts';
 
 /** Which way the attribute moves on storage; decides the one- or two-sided Q1E limit. */
 export const attributeDirectionEnum = pgEnum('attribute_direction', ['decreasing', 'increasing', 'either']);
+
+/** Label storage of the product for the ICH Q1E extrapolation limit; 'unknown' until stated. */
+export const storageCategoryEnum = pgEnum('storage_category', STORAGE_CATEGORIES);
+/** Significant change at a condition (ICH Q1A(R2) §2.2.7.1); 'unknown' until stated. */
+export const declaredChangeEnum = pgEnum('declared_change', DECLARED_CHANGES);
+/** A yes/no statement of the study; 'unknown' until stated. */
+export const declaredAnswerEnum = pgEnum('declared_answer', DECLARED_ANSWERS);
 
 /**
  * A stability study: one product, one measured attribute with its acceptance criterion, the
@@ -28,6 +40,20 @@ export const studies = pgTable('studies', {
   /** Long-term storage condition the shelf-life is claimed for. */
   storageTemperatureC: doublePrecision('storage_temperature_c'),
   storageHumidityPercent: doublePrecision('storage_humidity_percent'),
+  /*
+   * The Q1E declaration: the role of each condition and what the data of one attribute cannot
+   * show. The long-term condition is the storage temperature above. Unknown answers take the most
+   * conservative branch of the ICH Q1E decision tree (shared/kinetics/stability/q1e-declaration.ts).
+   */
+  storageCategory: storageCategoryEnum('storage_category').notNull().default('unknown'),
+  intermediateTemperatureC: doublePrecision('intermediate_temperature_c'),
+  acceleratedTemperatureC: doublePrecision('accelerated_temperature_c'),
+  acceleratedChange: declaredChangeEnum('accelerated_change').notNull().default('unknown'),
+  intermediateChange: declaredChangeEnum('intermediate_change').notNull().default('unknown'),
+  littleChange: declaredAnswerEnum('little_change').notNull().default('unknown'),
+  supportingData: declaredAnswerEnum('supporting_data').notNull().default('unknown'),
+  /** Where the statements come from (report numbers of the accelerated study, supporting batches). */
+  declarationBasis: text('declaration_basis').notNull().default(''),
   /** Batch (lot) identifiers on test. */
   batches: jsonb('batches').$type<string[]>().notNull().default([]),
   notes: text('notes').notNull().default(''),

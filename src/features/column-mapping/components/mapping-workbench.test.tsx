@@ -182,6 +182,50 @@ describe('the mapping workbench', () => {
     expect(screen.getByTitle('The value is not a number.').textContent).toBe('98.4');
   });
 
+  it('with notes from the check (issue 12 §6) it does not say "reads cleanly", lists them and outlines the noted cell, and still imports', async () => {
+    const notes = [
+      {
+        where: "'Long-term'!C2:C7",
+        message:
+          'the time column C ("Month") has only 3 different values (0, 3, 6) with 4 results at each value of a series on average: that is how a storage condition, batch or replicate column looks, not the time of each pull.',
+      },
+      {
+        where: "'Long-term'!D3",
+        message:
+          'value -0.2 is negative, but an amount in "%" cannot be: check the cell; it is imported as written',
+      },
+    ].map((note) => ({ ...note, text: `${note.where}: ${note.message}` }));
+    const previewWithNotes = previewResponseSchema.parse({
+      ...previewChecked,
+      check: { ...previewChecked.check, warnings: notes },
+    });
+    mockApi([
+      {
+        path: '/api/uploads/41/preview',
+        respond: ({ url }: { url: URL }) =>
+          json(200, url.searchParams.has('mapping') ? previewWithNotes : previewWithoutCheck),
+      },
+      { method: 'POST', path: '/api/uploads/41/import', respond: () => json(201, imported) },
+    ]);
+    renderWorkbench();
+
+    const status = await screen.findByText(
+      /The whole sheet can be read: 6 points in 2 series/,
+      {},
+      AFTER_CHECK,
+    );
+    expect(status.textContent).toContain('Read the 2 notes below before you import');
+    expect(screen.queryByText(/reads cleanly/)).toBeNull();
+    const list = screen.getByText(/^Notes \(not errors/).closest('[role="status"]') as HTMLElement;
+    expect(within(list).getByText("'Long-term'!C2:C7:")).toBeDefined();
+    expect(within(list).getByText(notes[1]!.message)).toBeDefined();
+    // The note's cell (D3 holds 99.2 in this preview) carries the note as its title.
+    expect(screen.getByTitle(notes[1]!.message).textContent).toBe('99.2');
+
+    fireEvent.click(screen.getByRole('button', { name: 'Import as dataset' }));
+    expect(await screen.findByRole('heading', { name: 'Dataset #93 stored' })).toBeDefined();
+  });
+
   it('says why when the file cannot be previewed', async () => {
     mockApi([
       {

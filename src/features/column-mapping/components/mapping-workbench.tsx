@@ -12,7 +12,7 @@ import {
 } from '../mapping-draft.ts';
 import { ImportSummary } from './import-summary.tsx';
 import { MappingFields } from './mapping-fields.tsx';
-import { ProblemList } from './problem-list.tsx';
+import { type ListedProblem, ProblemList } from './problem-list.tsx';
 import { type ColumnRoles, SheetPreviewTable } from './sheet-preview-table.tsx';
 
 /** How long the form waits after the last change before checking the mapping on the server. */
@@ -30,6 +30,17 @@ function useDebounced<T>(value: T, delay: number): T {
 }
 
 const plural = (count: number, noun: string) => `${count} ${noun}${count === 1 ? '' : 's'}`;
+
+/** Cell address ("C7") → message, for the entries whose place is one cell of this sheet. */
+function cellsOnSheet(entries: readonly ListedProblem[], sheetName: string): Map<string, string> {
+  const cells = new Map<string, string>();
+  for (const entry of entries) {
+    const address = /^(?:'((?:[^']|'')+)'|([^!]+))!([A-Z]+\d+)$/.exec(entry.where ?? '');
+    const name = address?.[1]?.replaceAll("''", "'") ?? address?.[2];
+    if (address?.[3] && name === sheetName && !cells.has(address[3])) cells.set(address[3], entry.message);
+  }
+  return cells;
+}
 
 const ROLE_FIELDS = [
   ['timeColumn', 'time'],
@@ -110,12 +121,8 @@ export function MappingWorkbench({
   const refused = importer.error instanceof ApiError ? importer.error : null;
   const refusedProblems = refused ? importProblems(refused) : [];
   const offers = dismissedOffer ? [] : data.savedMappings;
-  const problemCells = new Map<string, string>();
-  for (const problem of [...(check?.problems ?? []), ...refusedProblems]) {
-    const address = /^(?:'((?:[^']|'')+)'|([^!]+))!([A-Z]+\d+)$/.exec(problem.where ?? '');
-    const sheetName = address?.[1]?.replaceAll("''", "'") ?? address?.[2];
-    if (address?.[3] && sheetName === sheet.name) problemCells.set(address[3], problem.message);
-  }
+  const problemCells = cellsOnSheet([...(check?.problems ?? []), ...refusedProblems], sheet.name);
+  const noteCells = cellsOnSheet(check?.warnings ?? [], sheet.name);
 
   const submit = () => {
     setTouched(true);
@@ -168,10 +175,13 @@ export function MappingWorkbench({
           <p className="text-sm text-ink-muted">Checking the whole sheet…</p>
         ) : check.ok ? (
           <p role="status" className="rounded-sm border border-ledger/30 bg-ledger-light px-4 py-2 text-sm">
-            The whole sheet reads cleanly: {check.pointCount} points in {check.seriesCount} series
+            {check.warnings.length === 0 ? 'The whole sheet reads cleanly' : 'The whole sheet can be read'}:{' '}
+            {check.pointCount} points in {check.seriesCount} series
             {check.replicateRows.length > 0 &&
               `, ${check.replicateRows.length} rows are replicates (same time, same series)`}
-            .{check.warnings.length > 0 && ` ${plural(check.warnings.length, 'note')} below.`}
+            .
+            {check.warnings.length > 0 &&
+              ` Read the ${plural(check.warnings.length, 'note')} below before you import: the import is allowed, but a note may mean the mapping is wrong.`}
           </p>
         ) : (
           <ProblemList
@@ -181,7 +191,11 @@ export function MappingWorkbench({
         )}
         {check && check.warnings.length > 0 && (
           <div className="mt-2">
-            <ProblemList tone="note" heading="Notes (not errors):" problems={check.warnings} />
+            <ProblemList
+              tone="note"
+              heading="Notes (not errors; each says where and what to check):"
+              problems={check.warnings}
+            />
           </div>
         )}
       </section>
@@ -192,6 +206,7 @@ export function MappingWorkbench({
         roles={roles}
         replicateRows={replicateRows}
         problemCells={problemCells}
+        noteCells={noteCells}
       />
 
       <section aria-label="Import" className="space-y-3 rounded-md border border-rule bg-white p-5">

@@ -7,8 +7,8 @@ export interface ColumnRoles {
 
 /**
  * The first rows of a sheet as the file holds them: row numbers and column letters as in a
- * spreadsheet, the header row and mapped columns marked, replicate rows labelled, and cells whose
- * formula has no stored value flagged.
+ * spreadsheet, the header row and mapped columns marked, replicate rows labelled, cells whose
+ * formula has no stored value flagged, and cells with a note (a warning) outlined with it as title.
  */
 export function SheetPreviewTable({
   sheet,
@@ -16,6 +16,7 @@ export function SheetPreviewTable({
   roles,
   replicateRows,
   problemCells,
+  noteCells = new Map(),
 }: {
   sheet: SheetPreview;
   headerRow: number;
@@ -23,6 +24,8 @@ export function SheetPreviewTable({
   replicateRows: ReadonlySet<number>;
   /** Cell address ("C7") → the problem found there. */
   problemCells: ReadonlyMap<string, string>;
+  /** Cell address → a note (a warning that does not stop the import), e.g. a negative amount. */
+  noteCells?: ReadonlyMap<string, string>;
 }) {
   const letters = Array.from({ length: sheet.columnCount }, (_, index) => columnLetter(index));
   return (
@@ -66,18 +69,21 @@ export function SheetPreviewTable({
                 </th>
                 {row.map((cell, column) => {
                   const problem = problemCells.get(`${letters[column]}${rowNumber}`);
+                  const note = noteCells.get(`${letters[column]}${rowNumber}`);
                   const formula = cell.kind === 'formula-without-value';
                   const tone = problem
                     ? 'bg-alert/15 text-alert outline outline-1 outline-alert'
                     : formula
                       ? 'bg-alert/10 text-alert'
-                      : roles[column] && !isHeader
-                        ? 'bg-ledger-light/40'
-                        : '';
+                      : note
+                        ? 'bg-paper outline-dashed outline-1 outline-ink-muted'
+                        : roles[column] && !isHeader
+                          ? 'bg-ledger-light/40'
+                          : '';
                   return (
                     <td
                       key={letters[column]}
-                      title={problem ?? (formula ? 'Formula with no stored value' : undefined)}
+                      title={problem ?? (formula ? 'Formula with no stored value' : note)}
                       className={`whitespace-nowrap border-r border-rule/60 px-2 py-1 ${cell.kind === 'number' ? 'text-right tabular-nums' : ''} ${formula ? 'font-mono text-xs' : ''} ${tone}`}
                     >
                       {cell.text}
