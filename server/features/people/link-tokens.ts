@@ -1,21 +1,17 @@
-import { createHash, randomBytes } from 'node:crypto';
+import { newOneTimeLink, oneTimeLinkDigest } from '../../platform/auth/one-time-link.ts';
 
 /**
- * The one-time links Rateledger mails (invitations, password resets): 32 random bytes, of which
- * only the SHA-256 is stored, so the table cannot be used to forge a link.
+ * The one-time links Rateledger mails (invitations, password resets, account unlocks): the one
+ * scheme of `platform/auth/one-time-link.ts` (32 random bytes, of which only the SHA-256 is
+ * stored, so the table cannot be used to forge a link).
  */
 
 export type LinkState = 'open' | 'used' | 'expired';
 
 /** A fresh one-time token and the digest stored in its place. */
-export function newLinkToken(): { token: string; digest: string } {
-  const token = randomBytes(32).toString('base64url');
-  return { token, digest: tokenDigest(token) };
-}
+export const newLinkToken = newOneTimeLink;
 
-export function tokenDigest(token: string): string {
-  return createHash('sha256').update(token, 'utf8').digest('hex');
-}
+export const tokenDigest = oneTimeLinkDigest;
 
 /** The sentence shown for a link that no longer works. */
 export function closedLinkMessage(state: Exclude<LinkState, 'open'>, what: 'invitation' | 'reset'): string {

@@ -2,9 +2,9 @@ import { createHash } from 'node:crypto';
 import { randomToken } from './keyed-tokens.ts';
 
 /**
- * A one-time link token: 32 random bytes, of which only the SHA-256 is stored. The same scheme as
- * the invitation and password-reset links of the people feature (`link-tokens.ts`, which should
- * come to re-export these), so an unlock link issued here opens the ordinary reset page.
+ * A one-time link token: 32 random bytes, of which only the SHA-256 is stored. The one scheme of
+ * every mailed link: the people feature's invitation and password-reset links re-export it
+ * (`features/people/link-tokens.ts`), so an unlock link issued here opens the ordinary reset page.
  */
 export function newOneTimeLink(): { token: string; digest: string } {
   const token = randomToken(32);
