@@ -101,3 +101,40 @@ cluster_dir_for() {
     echo "$wanted"
   fi
 }
+
+# ensure_roles PORT DATABASE [OWNER] [APP]: least privilege in the private cluster. OWNER (default
+# rateledger_owner) owns the database and every object in it and runs the migrations; APP
+# (default rateledger_app) is what the server connects as: it owns nothing, is no superuser, and
+# gets only row privileges, granted by the migration step (server/platform/db/app-role-grants.ts).
+# Objects an older version created as `postgres` are handed to OWNER, so an existing .data/pg
+# cluster upgrades in place.
+ensure_roles() {
+  local port="$1" name="$2" owner="${3:-rateledger_owner}" app="${4:-rateledger_app}"
+  local bin; bin="$(pg_bin)"
+  "$bin/psql" -h 127.0.0.1 -p "$port" -U postgres -d "$name" -v ON_ERROR_STOP=1 -q \
+    -v owner="$owner" -v app="$app" -v db="$name" >/dev/null <<'SQL'
+select format('create role %I login nosuperuser nocreatedb nocreaterole', :'owner')
+  where not exists (select 1 from pg_roles where rolname = :'owner') \gexec
+select format('create role %I login nosuperuser nocreatedb nocreaterole', :'app')
+  where not exists (select 1 from pg_roles where rolname = :'app') \gexec
+select format('alter database %I owner to %I', :'db', :'owner') \gexec
+select format('alter schema %I owner to %I', nspname, :'owner') from pg_namespace
+  where nspname in ('drizzle', 'pgboss') and nspowner <> (select oid from pg_roles where rolname = :'owner') \gexec
+select format('alter table %I.%I owner to %I', n.nspname, c.relname, :'owner')
+  from pg_class c join pg_namespace n on n.oid = c.relnamespace
+  where n.nspname in ('public', 'drizzle', 'pgboss') and c.relkind in ('r', 'p', 'v', 'm')
+    and c.relowner <> (select oid from pg_roles where rolname = :'owner') \gexec
+select format('alter sequence %I.%I owner to %I', n.nspname, c.relname, :'owner')
+  from pg_class c join pg_namespace n on n.oid = c.relnamespace
+  where n.nspname in ('public', 'drizzle', 'pgboss') and c.relkind = 'S'
+    and c.relowner <> (select oid from pg_roles where rolname = :'owner')
+    and not exists (select 1 from pg_depend d where d.objid = c.oid and d.deptype in ('a', 'i')) \gexec
+select format('alter function %I.%I(%s) owner to %I', n.nspname, p.proname, pg_get_function_identity_arguments(p.oid), :'owner')
+  from pg_proc p join pg_namespace n on n.oid = p.pronamespace
+  where n.nspname in ('public', 'pgboss') and p.proowner <> (select oid from pg_roles where rolname = :'owner') \gexec
+select format('alter type %I.%I owner to %I', n.nspname, t.typname, :'owner')
+  from pg_type t join pg_namespace n on n.oid = t.typnamespace
+  where n.nspname in ('public', 'pgboss') and t.typtype in ('e', 'd', 'c') and t.typrelid = 0
+    and t.typowner <> (select oid from pg_roles where rolname = :'owner') \gexec
+SQL
+}

@@ -11,7 +11,11 @@ if [ -z "${DATABASE_URL:-}" ]; then
   PG_PORT="${RATELEDGER_PG_PORT:-54329}"
   start_cluster "$PG_DIR" "$PG_PORT"
   ensure_database "$PG_PORT" rateledger
-  export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/rateledger"
+  # Least privilege: migrations run as the owner role, the server as an app role that owns
+  # nothing (scripts/lib.sh ensure_roles; grants by the migration step).
+  ensure_roles "$PG_PORT" rateledger
+  export DATABASE_OWNER_URL="postgres://rateledger_owner@127.0.0.1:$PG_PORT/rateledger"
+  export DATABASE_URL="postgres://rateledger_app@127.0.0.1:$PG_PORT/rateledger"
   OWN_CLUSTER=1
 else
   OWN_CLUSTER=0
@@ -25,6 +29,10 @@ cleanup() {
 trap cleanup INT TERM EXIT
 
 mkdir -p "$ROOT/.data" "$ROOT/reports"
+# The audit checkpoints and their signing key: owned by this user, out of the postgres account's
+# reach (the cluster runs as `postgres`; this folder is 0700 and its files 0600).
+export AUDIT_ANCHOR_DIR="${AUDIT_ANCHOR_DIR:-$ROOT/.data/audit-anchor}"
+mkdir -p -m 700 "$AUDIT_ANCHOR_DIR"
 if [ -z "${SESSION_SECRET:-}" ]; then
   [ -f "$ROOT/.data/session-secret" ] || head -c 32 /dev/urandom | base64 >"$ROOT/.data/session-secret"
   SESSION_SECRET="$(cat "$ROOT/.data/session-secret")"
@@ -35,7 +43,7 @@ log "building the client and the server"
 npx vite build --logLevel warn
 node scripts/run-built.mjs
 
-node dist/server/platform/db/migrate.js
+node dist/server/migrate-database.js
 node dist/server/demo/seed.js
 
 node dist/server/index.js &

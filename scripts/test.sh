@@ -13,7 +13,12 @@ if [ -z "${DATABASE_URL:-}" ]; then
   PG_PORT="${RATELEDGER_TEST_PG_PORT:-$((55000 + RANDOM % 5000))}"
   start_cluster "$PG_DIR" "$PG_PORT" throwaway
   ensure_database "$PG_PORT" rateledger_test
-  export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/rateledger_test"
+  # As `npm start`: migrations as the owner role, the app (and the tests) as the app role;
+  # tests that attack the database as its administrator would use TEST_SUPERUSER_URL.
+  ensure_roles "$PG_PORT" rateledger_test
+  export TEST_SUPERUSER_URL="postgres://postgres@127.0.0.1:$PG_PORT/rateledger_test"
+  export DATABASE_OWNER_URL="postgres://rateledger_owner@127.0.0.1:$PG_PORT/rateledger_test"
+  export DATABASE_URL="postgres://rateledger_app@127.0.0.1:$PG_PORT/rateledger_test"
   trap 'stop_cluster "$PG_DIR"; rm -rf "$PG_DIR"' EXIT
 fi
 export SESSION_SECRET="${SESSION_SECRET:-test-only-secret-not-for-production-use}"

@@ -9,6 +9,7 @@ import { uploadRoutes } from './features/intake/index.ts';
 import { outboxRoutes } from './features/outbox/index.ts';
 import { accountRoutes, authRoutes, userAdminRoutes } from './features/people/index.ts';
 import { reportRoutes } from './features/reports/index.ts';
+import { retirementRoutes } from './features/retirement/index.ts';
 import { reviewRoutes } from './features/review/index.ts';
 import { settingsRoutes } from './features/settings/index.ts';
 import { studyRoutes } from './features/studies/index.ts';
@@ -144,6 +145,7 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   app.use(analysisRoutes(services));
   app.use(reportRoutes(services));
   app.use(studyRoutes(services));
+  app.use(retirementRoutes(services));
   app.use(uploadRoutes(services));
   app.use(reviewRoutes(services));
   app.use(verificationRoutes(services));

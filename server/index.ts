@@ -3,6 +3,7 @@ import { createApp } from './app.ts';
 import { DEMO_PASSWORDS_NOTE } from './demo/demo-accounts.ts';
 import { startInProcessRenderWorker } from './features/reports/index.ts';
 import { closeSigningBrowsers } from './features/signing/index.ts';
+import { startAuditAnchoring } from './platform/audit/audit-anchoring.ts';
 import { parseEnvironment } from './platform/config/env.ts';
 import { openDatabase } from './platform/db/client.ts';
 import { logger } from './platform/logging/logger.ts';
@@ -31,6 +32,9 @@ const server: Server = app.listen(environment.PORT, environment.HOST, () => {
 // Renders reports in this process too unless RENDER_WORKER=off (then only `npm run worker` does).
 const renderWorker = startInProcessRenderWorker(database, environment.DATABASE_URL);
 
+// Checkpoints of the audit chain, signed and logged outside the database (AUDIT_ANCHOR_* settings).
+const auditAnchoring = startAuditAnchoring(database.db);
+
 let stopping = false;
 async function shutdown(signal: string) {
   if (stopping) return;
@@ -38,6 +42,7 @@ async function shutdown(signal: string) {
   logger.info({ signal }, 'stopping');
   server.close(async () => {
     await renderWorker.close();
+    await auditAnchoring.close();
     await closeSigningBrowsers();
     await mail.close();
     await database.close();

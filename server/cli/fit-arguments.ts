@@ -1,7 +1,8 @@
 /**
  * The options of the `fit` command, read with node:util `parseArgs` and checked into one record.
  *
- * Numbers may be written with a decimal comma ("--lower-limit 90,0"). Units are read with the
+ * Numbers may be written with a decimal comma ("--lower-limit 90,0") and may be negative
+ * ("--lower-limit -5", as "--lower-limit=-5"). Units are read with the
  * engine's own spellings (`parseTimeUnit`). Anything wrong — an unknown option, a missing file,
  * a limit that is not a number — gives `{ ok: false, message }` naming the option.
  *
@@ -42,6 +43,8 @@ export interface FitOptions {
   lowerLimit?: number;
   upperLimit?: number;
   order?: IntegerOrder;
+  /** The study's working order, used only where the data name none (`--working-order`). */
+  workingOrder?: { order: IntegerOrder; reason: string };
   errorModel: 'auto' | 'constant' | 'proportional';
   confidence: number;
   storageTemperature?: number;
@@ -82,6 +85,8 @@ Optional:
   --lower-limit X          lower specification limit (shelf life, time to limit)
   --upper-limit X          upper specification limit
   --order 0|1|2            fix the reaction order instead of choosing it
+  --working-order 0|1|2    the study's working order, used only where the data name none
+  --working-order-reason T why (e.g. the protocol's words); required with --working-order
   --error-model M          auto, constant or proportional (default auto)
   --confidence P           confidence level, e.g. 0.95 (default 0.95)
   --storage-temperature T  the long-term storage temperature (°C): k is predicted there from the
@@ -98,6 +103,26 @@ as an assumption in the output):
   --json                   print one JSON document instead of tables
   --help                   show this text`;
 
+/** A negative number written as an option's value ("-5", "-0,5", "-1e-3"), not an option. */
+const NEGATIVE_NUMBER = /^-\s*(?:\d|[.,]\d)/;
+
+/**
+ * `parseArgs` reads "--lower-limit -5" as an option "-5" and refuses it; a limit or temperature
+ * may well be negative, so such a value is attached to its option ("--lower-limit=-5") first.
+ */
+function withNegativeNumbersAttached(argv: readonly string[]): string[] {
+  const args: string[] = [];
+  for (let index = 0; index < argv.length; index++) {
+    const arg = argv[index]!;
+    const next = argv[index + 1];
+    if (/^--[^=]+$/.test(arg) && next !== undefined && NEGATIVE_NUMBER.test(next)) {
+      args.push(`${arg}=${next}`);
+      index++;
+    } else args.push(arg);
+  }
+  return args;
+}
+
 function number(name: string, text: string | undefined): number | undefined {
   if (text === undefined) return undefined;
   const parsed = parseNumberCell(text);
@@ -108,7 +133,7 @@ function number(name: string, text: string | undefined): number | undefined {
 export function parseFitArguments(argv: readonly string[]): FitArguments {
   try {
     const { values, positionals } = parseArgs({
-      args: [...argv],
+      args: withNegativeNumbersAttached(argv),
       allowPositionals: true,
       strict: true,
       options: {
@@ -125,6 +150,8 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
         'lower-limit': { type: 'string' },
         'upper-limit': { type: 'string' },
         order: { type: 'string' },
+        'working-order': { type: 'string' },
+        'working-order-reason': { type: 'string' },
         'error-model': { type: 'string' },
         confidence: { type: 'string' },
         'storage-temperature': { type: 'string' },
@@ -214,6 +241,14 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
     }
     if (storageTemperature !== undefined) options.storageTemperature = storageTemperature;
     if (order !== undefined) options.order = Number(order) as IntegerOrder;
+    const working = values['working-order'];
+    const workingReason = values['working-order-reason']?.trim();
+    if (working !== undefined && !['0', '1', '2'].includes(working))
+      return { ok: false, message: '--working-order must be 0, 1 or 2.' };
+    if ((working === undefined) !== !workingReason)
+      return { ok: false, message: '--working-order and --working-order-reason go together.' };
+    if (working !== undefined && workingReason)
+      options.workingOrder = { order: Number(working) as IntegerOrder, reason: workingReason };
     return { ok: true, options };
   } catch (error) {
     return { ok: false, message: (error as Error).message };

@@ -6,7 +6,9 @@
  * Field names follow the brief of the command: per series `id`, `n`, `selectedOrder`, `verdict`,
  * `models` (order, k, kCi95, c0, aicc, weight), `linearized` (slope, intercept, r2, k), `halfLife`
  * and `t90` with intervals, `shelfLife` when a limit is given; at top level `arrhenius` (eaJPerMol,
- * eaCi95, lnA) when a temperature column is given. Every number is finite or null.
+ * eaCi95, lnA, and `eyring` with ΔH‡ and ΔS‡) when a temperature column is given; per series
+ * `plausible` (each plausible law's figures and the model averages) when no order is named.
+ * Every number is finite or null.
  *
  * Throws nothing.
  *
@@ -108,8 +110,10 @@ function seriesEntry(result: SeriesResult, conditions: ConditionShelfLife[] | nu
       applicable: plot.applicable,
       ...(plot.reason === undefined ? {} : { reason: plot.reason }),
     })),
+    ...(analysis.workingOrderReason === undefined ? {} : { workingOrderReason: analysis.workingOrderReason }),
     halfLife: figure(analysis.halfLife),
     t90: figure(analysis.t90),
+    ...(analysis.plausible === undefined ? {} : { plausible: analysis.plausible }),
     ...(analysis.derivedReason === undefined ? {} : { derivedReason: analysis.derivedReason }),
     ...(analysis.timeToLimit === undefined
       ? {}
@@ -151,6 +155,7 @@ function arrheniusEntry(analysis: DatasetAnalysis, temperatureColumnGiven: boole
     r2: fit?.rSquared ?? null,
     n: fit?.n ?? arrhenius.rateConstants.length,
     intervalUnavailableReason: fit?.intervalUnavailableReason ?? null,
+    eyring: eyringEntry(arrhenius.eyring),
     prediction: prediction
       ? {
           temperatureC: prediction.temperatureC,
@@ -164,6 +169,30 @@ function arrheniusEntry(analysis: DatasetAnalysis, temperatureColumnGiven: boole
         }
       : null,
     notApplicableReason: arrhenius.notApplicableReason,
+  };
+}
+
+/** ΔH‡ (J/mol), ΔS‡ (J/(mol·K)) and ΔG‡ at the centre temperature, with intervals (Eyring 1935). */
+function eyringEntry(eyring: NonNullable<DatasetAnalysis['arrhenius']>['eyring']) {
+  const fit = eyring?.fit ?? null;
+  const estimate = (value: { estimate: number; interval: [number, number] | null } | undefined) =>
+    value === undefined ? { estimate: null, ci: null } : { estimate: value.estimate, ci: value.interval };
+  const enthalpy = estimate(fit?.enthalpyOfActivation);
+  const entropy = estimate(fit?.entropyOfActivation);
+  const gibbs = estimate(fit?.gibbsEnergyOfActivationAtReference);
+  return {
+    deltaHJPerMol: enthalpy.estimate,
+    deltaHCi95: enthalpy.ci,
+    deltaSJPerMolK: entropy.estimate,
+    deltaSCi95: entropy.ci,
+    deltaGJPerMol: gibbs.estimate,
+    deltaGCi95: gibbs.ci,
+    deltaGTemperatureK: fit?.gibbsEnergyOfActivationAtReference.temperatureK ?? null,
+    transmissionCoefficient: fit?.transmissionCoefficient ?? null,
+    secondsPerTimeUnit: fit?.secondsPerTimeUnit ?? null,
+    r2: fit?.rSquared ?? null,
+    intervalUnavailableReason: fit?.intervalUnavailableReason ?? null,
+    notApplicableReason: eyring === null ? 'no Arrhenius fit' : eyring.notApplicableReason,
   };
 }
 

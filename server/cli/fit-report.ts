@@ -10,6 +10,9 @@
  *
  * Example: `formatNumber(0.000123456)` is '1.235e-4'; `formatNumber(null)` is '—'.
  */
+
+import type { ModelAveragedFigure } from '../../shared/kinetics/model-averaging.ts';
+import type { PlausibleLawFigures } from '../../shared/kinetics/series-analysis.ts';
 import type { FitDocument } from './fit-document.ts';
 
 export function formatNumber(value: number | null | undefined): string {
@@ -44,6 +47,42 @@ function figureText(
   if (!value) return null;
   if (value.estimate === null) return `${name}: not estimable${value.reason ? ` (${value.reason})` : ''}`;
   return `${name}: ${formatNumber(value.estimate)} ${value.unit}, CI ${interval(value.ci95)}`;
+}
+
+/** The plausible laws of a series whose order is not named, and the model averages (never of k). */
+function plausibleBlock(plausible: PlausibleLawFigures, timeUnit: string): string[] {
+  const lines = ['  Plausible laws (Akaike weight ≥ 0.1 or ΔAICc ≤ 2), each with its own figures:'];
+  lines.push(
+    ...table(
+      ['order', 'weight', 'ΔAICc', 'k', 'CI of k', 'unit of k', 't90', 'CI of t90', 'time to limit'],
+      plausible.laws.map((law) => [
+        String(law.model),
+        formatNumber(law.weight),
+        formatNumber(law.deltaAicc),
+        formatNumber(law.k),
+        interval(law.kCi95),
+        law.kUnit,
+        formatNumber(law.t90?.estimate ?? null),
+        interval(law.t90?.ci95 ?? null),
+        formatNumber(law.timeToLimit?.lower?.estimate ?? law.timeToLimit?.upper?.estimate ?? null),
+      ]),
+    ),
+  );
+  const averaged = (label: string, figure: ModelAveragedFigure | undefined) => {
+    if (!figure) return;
+    lines.push(
+      figure.estimate === null
+        ? `  ${label} (model-averaged): — (${figure.reason ?? 'not averaged'})`
+        : `  ${label} (model-averaged, unconditional interval): ${formatNumber(figure.estimate)} ${timeUnit}, CI ${interval(figure.interval)}; range over the laws ${interval(figure.range)}`,
+    );
+  };
+  averaged('t90', plausible.modelAveraged.t90);
+  averaged('Time to lower limit', plausible.modelAveraged.timeToLimit?.lower);
+  averaged('Time to upper limit', plausible.modelAveraged.timeToLimit?.upper);
+  lines.push(
+    '  (Model averages: Burnham & Anderson 2002 §4.3; k is never averaged, its unit differs by order.)',
+  );
+  return lines;
 }
 
 function seriesBlock(entry: SeriesEntry, confidence: string, timeUnit: string): string[] {
@@ -95,6 +134,7 @@ function seriesBlock(entry: SeriesEntry, confidence: string, timeUnit: string): 
     if (text) lines.push(text);
   }
   if (entry.derivedReason) lines.push(`  ${entry.derivedReason}`);
+  if ('plausible' in entry && entry.plausible) lines.push(...plausibleBlock(entry.plausible, timeUnit));
   if (entry.shelfLife) {
     const { estimate, model, line } = entry.shelfLife;
     const basis = model === null ? entry.shelfLife.reason : `model ${model}, line ${line ?? '—'}`;
@@ -140,6 +180,15 @@ export function fitReport(document: FitDocument): string {
       const ci = arrhenius.eaCi95 ? `[${kilo(arrhenius.eaCi95[0])}, ${kilo(arrhenius.eaCi95[1])}]` : '—';
       lines.push(
         `  Ea = ${kilo(arrhenius.eaJPerMol)} kJ/mol, CI ${ci}; ln A = ${formatNumber(arrhenius.lnA)}`,
+      );
+    }
+    if ('eyring' in arrhenius && arrhenius.eyring?.deltaHJPerMol != null) {
+      const eyring = arrhenius.eyring;
+      const kilo = (value: number) => formatNumber(value / 1000);
+      const ci = (pair: [number, number] | null, scale: (value: number) => string) =>
+        pair ? `[${scale(pair[0])}, ${scale(pair[1])}]` : '—';
+      lines.push(
+        `  Eyring: ΔH‡ = ${kilo(eyring.deltaHJPerMol as number)} kJ/mol, CI ${ci(eyring.deltaHCi95, kilo)}; ΔS‡ = ${formatNumber(eyring.deltaSJPerMolK)} J/(mol·K), CI ${ci(eyring.deltaSCi95, formatNumber)}`,
       );
     }
     if ('prediction' in arrhenius && arrhenius.prediction) {

@@ -7,6 +7,7 @@ import path from 'node:path';
 import ExcelJS from 'exceljs';
 import { linearRegression, rSquared } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
+import { parseFitArguments } from './fit-arguments.ts';
 
 const root = path.resolve(import.meta.dirname, '..', '..');
 const fixture = (name: string) => path.join(root, 'tests', 'fixtures', name);
@@ -391,6 +392,77 @@ describe('fit command', () => {
       const help = runFit('--help');
       expect(help.status).toBe(0);
       expect(help.stdout).toContain('Usage: npm run --silent fit -- [options] FILE');
+    },
+    TIMEOUT,
+  );
+});
+
+// Issue 12 §6: a negative number is an option's value, not an option; extreme magnitudes give
+// the relative results of unit scale (series-scaling.ts) or a clear refusal, never a stack trace.
+describe('fit command on bad and extreme input', () => {
+  it('reads "--lower-limit -5" (and any negative number) as a number', () => {
+    const parsed = parseFitArguments([
+      '--time',
+      'Month',
+      '--value',
+      'Change',
+      '--lower-limit',
+      '-5',
+      '--upper-limit',
+      '-0,5',
+      '--storage-temperature',
+      '-20',
+      'data.csv',
+    ]);
+    expect(parsed.ok && 'options' in parsed && parsed.options).toMatchObject({
+      lowerLimit: -5,
+      upperLimit: -0.5,
+      storageTemperature: -20,
+      file: 'data.csv',
+    });
+    const unknown = parseFitArguments(['--time', 'Month', '--value', 'A', '-x', 'data.csv']);
+    expect(unknown.ok).toBe(false);
+  });
+
+  it(
+    'fit --json on values ×1e155 and times ×1e100 gives the unit-scale k and C0 scaled exactly, no stack trace',
+    () => {
+      // Invented first-order loss (k = 0.08 per month) with 0.4 % scatter.
+      const noise = [0.004, -0.003, 0.0035, -0.004, 0.002, -0.0015, 0.003, -0.002, 0.001];
+      const months = [0, 1, 2, 3, 6, 9, 12, 18, 24];
+      const write = (valueScale: number, timeScale: number) => {
+        const file = path.join(scratch, `scaled-${valueScale}-${timeScale}.csv`);
+        const rows = months.map(
+          (month, i) =>
+            `${month * timeScale},${100 * Math.exp(-0.08 * month) * (1 + noise[i]!) * valueScale}`,
+        );
+        writeFileSync(file, ['Month,Content (mg/mL)', ...rows].join('\n'));
+        return file;
+      };
+      const run = (valueScale: number, timeScale: number) => {
+        const result = runFit(
+          '--time',
+          'Month',
+          '--value',
+          'Content (mg/mL)',
+          '--order',
+          '1',
+          '--json',
+          write(valueScale, timeScale),
+        );
+        expect(result.stderr).not.toMatch(/\n\s+at /);
+        expect(result.status).toBe(0);
+        return JSON.parse(result.stdout) as Json;
+      };
+      const unit = run(1, 1).series[0];
+      const scaled = run(1e155, 1e100).series[0];
+      expect(scaled.selectedOrder).toBe(1);
+      const first = (entry: Json) => entry.models.find((model: Json) => model.order === 1);
+      const relative = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
+      // First order: k ×1/s_t, C0 ×s_C (the rate law's own scaling; see series-scaling.ts).
+      expect(relative(first(scaled).k, first(unit).k / 1e100)).toBeLessThan(1e-9);
+      expect(relative(first(scaled).kCi95[0], first(unit).kCi95[0] / 1e100)).toBeLessThan(1e-9);
+      expect(relative(first(scaled).c0, first(unit).c0 * 1e155)).toBeLessThan(1e-9);
     },
     TIMEOUT,
   );

@@ -88,6 +88,7 @@ async function main(options: FitOptions): Promise<number> {
     confidenceLevel: options.confidence,
     errorModel: options.errorModel,
     ...(options.order === undefined ? {} : { order: options.order }),
+    ...(options.workingOrder === undefined ? {} : { workingOrder: options.workingOrder }),
     ...(options.lowerLimit === undefined ? {} : { lowerLimit: options.lowerLimit }),
     ...(options.upperLimit === undefined ? {} : { upperLimit: options.upperLimit }),
     ...(options.storageTemperature === undefined ? {} : { storageTemperatureC: options.storageTemperature }),
@@ -119,8 +120,11 @@ if ('help' in parsed) {
 main(parsed.options).then(
   (code) => process.exit(code),
   (error: unknown) => {
+    // Never a stack trace for the user: a plain sentence, and what to do (issue 12 §6).
     const message =
-      error instanceof KineticsError ? error.message : ((error as Error).stack ?? String(error));
+      error instanceof KineticsError
+        ? error.message
+        : `the analysis stopped on an internal error (${error instanceof Error ? error.message : String(error)}); nothing was computed. Please report it with the data file and the options used.`;
     fail([message], EXIT_NOTHING_COMPUTED);
   },
 );

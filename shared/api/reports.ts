@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { reviewStandingSchema } from './report-standing.ts';
 
 /**
  * The boundary of reports: creating a report from an analysis run, rendering a new version, the
@@ -67,10 +68,17 @@ export const reportListQuerySchema = z
     page: z.coerce.number().int().min(1).default(1),
     pageSize: z.coerce.number().int().min(1).max(MAX_PAGE_SIZE).default(DEFAULT_PAGE_SIZE),
     status: z.preprocess((raw) => (raw === '' ? undefined : raw), renderStatusSchema.optional()),
+    /** The review standing of each report's latest version. */
+    review: z.preprocess((raw) => (raw === '' ? undefined : raw), reviewStandingSchema.optional()),
     studyId: optionalId,
     authorId: optionalId,
     from: optionalDay('From'),
     to: optionalDay('To'),
+    /** Retired reports are left out unless asked for ("include retired"). */
+    includeRetired: z.preprocess(
+      (raw) => (raw === undefined || raw === '' ? undefined : raw === true || raw === '1' || raw === 'true'),
+      z.boolean().optional(),
+    ),
   })
   .refine((query) => !query.from || !query.to || query.from <= query.to, {
     message: '"From" must not be after "To".',
@@ -97,8 +105,15 @@ export const reportVersionSummarySchema = z.object({
   createdAt: z.string(),
   renderStartedAt: z.string().nullable(),
   finishedAt: z.string().nullable(),
+  /** The version's PDF: the sealed one once signed, else the rendition. */
   pdfUrl: z.string().nullable(),
+  /** The rendered (unsigned) PDF, always under its own label. */
+  renditionUrl: z.string().nullable(),
   htmlUrl: z.string().nullable(),
+  reviewState: reviewStandingSchema,
+  /** The later version whose signature superseded this signed one. */
+  supersededBy: z.number().int().nullable(),
+  signedPdfSha256: z.string().nullable(),
 });
 export type ReportVersionSummary = z.infer<typeof reportVersionSummarySchema>;
 
@@ -110,9 +125,12 @@ export const reportListItemSchema = z.object({
   author: personSchema,
   createdAt: z.string(),
   versionCount: z.number().int(),
+  /** Whether the report was retired (listed only with "include retired"). */
+  retired: z.boolean().optional(),
   latest: z.object({
     versionNumber: z.number().int(),
     renderStatus: renderStatusSchema,
+    reviewState: reviewStandingSchema,
     pdfUrl: z.string().nullable(),
   }),
 });
@@ -139,6 +157,15 @@ export const reportDetailSchema = reportListItemSchema.omit({ latest: true }).ex
   analysisRunId: z.number().int(),
   analysisUrl: z.string(),
   versions: z.array(reportVersionSummarySchema),
+  /** The study version the latest version's analysis was computed against. */
+  studyVersion: z.number().int().nullable().optional(),
+  /** One sentence per study version recorded since ("lower limit 95 → 90, on …, by …, reason: …"). */
+  studyChangedSince: z.array(z.string()).optional(),
+  /** Set once the report is retired (server/features/retirement). */
+  retirement: z
+    .object({ reason: z.string(), retiredAt: z.string(), retiredBy: z.string() })
+    .nullable()
+    .optional(),
 });
 export type ReportDetail = z.infer<typeof reportDetailSchema>;
 

@@ -17,7 +17,8 @@
  * long-term storage temperature, significant change at each, little change, supporting data) is
  * optional field by field: what is not stated stays `unknown`, which the engine reads as the most
  * conservative answer. A declared intermediate or accelerated temperature must lie above the
- * long-term one, and the accelerated above the intermediate.
+ * long-term one, and the accelerated above the intermediate. A working order (0, 1, 2, blank for
+ * none) needs its reason.
  */
 import { z } from 'zod';
 import {
@@ -76,6 +77,18 @@ const temperaturesSchema = z.object({
   acceleratedTemperatureC: optionalNumber('Accelerated temperature', -273.15, 200),
 });
 
+/**
+ * The study's working order (issue 12 §3): blank for none, else 0, 1 or 2. The analysis uses it
+ * only where the data do not name an order, and says so ("working order from the study").
+ */
+const workingOrderField = z.preprocess(
+  (raw) =>
+    raw === undefined || raw === null || String(raw).trim() === '' ? null : Number(String(raw).trim()),
+  z
+    .union([z.literal(0), z.literal(1), z.literal(2)], { error: 'Choose none, zero, first or second order.' })
+    .nullable(),
+);
+
 /** Run the criterion checks whenever both limits read as numbers, even if other fields failed. */
 const whenLimitsRead = {
   when: (payload: { value: unknown }) => limitsSchema.safeParse(payload.value).success,
@@ -105,6 +118,8 @@ export const studyFormSchema = z
     littleChange: z.enum(DECLARED_ANSWERS, { error: 'Choose not stated, yes or no.' }).default('unknown'),
     supportingData: z.enum(DECLARED_ANSWERS, { error: 'Choose not stated, yes or no.' }).default('unknown'),
     declarationBasis: z.string().trim().max(2000, 'The basis can be at most 2000 characters.').default(''),
+    workingOrder: workingOrderField,
+    workingOrderReason: z.string().trim().max(1000, 'The reason can be at most 1000 characters.').default(''),
     batches: batchList,
     notes: z.string().trim().max(4000, 'Notes can be at most 4000 characters.').default(''),
   })
@@ -121,6 +136,10 @@ export const studyFormSchema = z
       ...whenLimitsRead,
     },
   )
+  .refine((study) => study.workingOrder === null || study.workingOrderReason !== '', {
+    path: ['workingOrderReason'],
+    message: 'Give the reason for the working order, e.g. the protocol that states it.',
+  })
   .refine(
     (study) =>
       study.storageTemperatureC === null ||
@@ -168,6 +187,8 @@ export const STUDY_FIELDS = [
   'littleChange',
   'supportingData',
   'declarationBasis',
+  'workingOrder',
+  'workingOrderReason',
   'batches',
   'notes',
 ] as const satisfies readonly (keyof StudyInput)[];

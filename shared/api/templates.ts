@@ -132,10 +132,25 @@ export type SaveTemplateVersionRequest = z.infer<typeof saveTemplateVersionReque
 
 export const saveTemplateVersionResponseSchema = z.object({ version: templateVersionSummarySchema });
 
-/** POST /api/admin/templates/:id/publish — publishing an earlier version than the published one is a rollback. */
+export const MAX_PUBLISH_REASON_LENGTH = 500;
+
+/**
+ * POST /api/admin/templates/:id/publish — publishing an earlier version than the published one is
+ * a rollback. A change to what new reports print is change-controlled (EU GMP Annex 11 §10): the
+ * admin gives the reason, recorded in the audit trail, and confirms explicitly.
+ */
 export const publishTemplateVersionRequestSchema = z.object({
   versionId: z.coerce.number().int().positive(),
+  reason: z
+    .string({ error: 'Give the reason for this change; it is recorded in the audit trail.' })
+    .trim()
+    .min(1, 'Give the reason for this change; it is recorded in the audit trail.')
+    .max(MAX_PUBLISH_REASON_LENGTH, `Keep the reason under ${MAX_PUBLISH_REASON_LENGTH} characters.`),
+  confirmed: z.literal(true, {
+    error: 'Confirm that new reports are to use this version.',
+  }),
 });
+export type PublishTemplateVersionRequest = z.input<typeof publishTemplateVersionRequestSchema>;
 export const publishTemplateVersionResponseSchema = z.object({
   publishedVersionId: z.number().int(),
   publishedVersionNumber: z.number().int(),

@@ -94,6 +94,11 @@ export const importRequestSchema = z.object({
   mapping: columnMappingSchema,
   /** Save the mapping under this name for the next workbook of the same layout. */
   saveMappingAs: z.string().trim().min(1).max(120).optional(),
+  /**
+   * Why the same upload is imported again with the same mapping; without it such an import is
+   * refused (409) because it would only make a second identical dataset.
+   */
+  duplicateReason: z.string().trim().min(1, 'Give the reason for importing this again.').max(2000).optional(),
 });
 export type ImportRequest = z.input<typeof importRequestSchema>;
 

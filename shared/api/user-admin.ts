@@ -30,19 +30,27 @@ const roleList = z.preprocess(
     .transform((roles) => MEMBER_ROLES.filter((role) => roles.includes(role))),
 );
 
-export const inviteFormSchema = z.object({
-  fullName: z
-    .string({ error: 'The full name is required.' })
-    .trim()
-    .min(1, 'The full name is required: it is printed with every signature (21 CFR 11.50).')
-    .max(200, 'The full name can be at most 200 characters.'),
-  email: z
-    .string({ error: 'The e-mail address is required.' })
-    .trim()
-    .toLowerCase()
-    .pipe(z.email('This is not an e-mail address, e.g. name@laboratory.example.').max(254)),
-  roles: roleList,
-});
+export const inviteFormSchema = z
+  .object({
+    fullName: z
+      .string({ error: 'The full name is required.' })
+      .trim()
+      .min(1, 'The full name is required: it is printed with every signature (21 CFR 11.50).')
+      .max(200, 'The full name can be at most 200 characters.'),
+    email: z
+      .string({ error: 'The e-mail address is required.' })
+      .trim()
+      .toLowerCase()
+      .pipe(z.email('This is not an e-mail address, e.g. name@laboratory.example.').max(254)),
+    roles: roleList,
+    /** The admin's confirmation that the person may e-sign records; needed when reviewer is chosen. */
+    confirmSigningRole: z.preprocess((raw) => raw === 'yes' || raw === true, z.boolean()),
+  })
+  .refine((form) => !form.roles.includes('reviewer') || form.confirmSigningRole, {
+    path: ['confirmSigningRole'],
+    message:
+      'Reviewer is a signing role: confirm that this person may e-sign records on behalf of the organisation, or untick reviewer.',
+  });
 export type InviteInput = z.output<typeof inviteFormSchema>;
 
 export const rolesFormSchema = z.object({ roles: roleList });

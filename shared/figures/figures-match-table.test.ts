@@ -10,7 +10,7 @@ import {
   PLAUSIBLE_WEIGHT,
   plausibleLaws,
 } from './law-standing.ts';
-import { resultRows } from './results-table.ts';
+import { MODEL_NAMES, resultRows } from './results-table.ts';
 import { formatSignificant } from './significant-figures.ts';
 import { confidenceBands, type StoredAnalysisResult } from './stored-result.ts';
 
@@ -133,6 +133,28 @@ describe('figures claim no order the results table does not name', () => {
     }
   });
 
+  it('with no order named, the legend’s plausible laws are exactly the laws of the table’s plausible rows', () => {
+    stored.analysis.series.forEach((result, index) => {
+      if (result.analysis!.reportedOrder !== null) return;
+      const curves = figures.find((figure) => figure.id === `series-${index}-curves`)!;
+      const legend = lawsOf(curves)
+        .filter((label) => label.includes('(plausible'))
+        .map((label) => label.replace(/ \(plausible.*$/, ''))
+        .sort();
+      const table = [
+        ...new Set(
+          rows
+            .filter(
+              (row) => row.section === 'plausible' && row.seriesId === result.id && row.model !== 'average',
+            )
+            .map((row) => MODEL_NAMES[row.model!]),
+        ),
+      ].sort();
+      expect(legend.length, result.id).toBeGreaterThan(0);
+      expect(legend, result.id).toEqual(table);
+    });
+  });
+
   it('names the diagnosed law of the residual plot for what it is: lowest AICc, not chosen', () => {
     const residuals = figures.find((figure) => figure.id === 'series-0-residuals')!;
     expect(subtitle(residuals)).toMatch(/fit \(lowest AICc of the integer laws; no order named\)/);
@@ -189,6 +211,47 @@ describe('an order fixed by the analyst', () => {
     expect(subtitle(figures.find((figure) => figure.id === 'q1e-25')!)).toMatch(
       /^Scale: ln\(value\) \(first order, fixed by the analyst\)/,
     );
+  });
+});
+
+describe('a working order declared by the study', () => {
+  const options = {
+    ...DEFAULT_OPTIONS,
+    workingOrder: { order: 1 as const, reason: 'protocol STB-12 states first-order loss' },
+  };
+  const { stored, figures } = figuresOf(options);
+  const rows = resultRows(stored.analysis);
+
+  it('labels the series the data cannot tell "working order from the study", the named ones "chosen", as the table does', () => {
+    stored.analysis.series.forEach((result, index) => {
+      const curves = figures.find((figure) => figure.id === `series-${index}-curves`)!;
+      const labelled = lawsOf(curves).filter((label) => label.includes('('));
+      // The table reports the order in the derived rows for each series; its source is the series'.
+      const reported = rows.find((row) => row.section === 'derived' && row.seriesId === result.id)?.model;
+      expect(reported, result.id).toBe('1');
+      if (result.analysis!.orderSource === 'study') {
+        expect(labelled, result.id).toEqual(['first order (working order from the study)']);
+        expect(
+          lawsOf(curves).some((label) => label.endsWith('(chosen)')),
+          result.id,
+        ).toBe(false);
+      } else {
+        expect(result.analysis!.orderSource).toBe('data');
+        expect(labelled, result.id).toEqual(['first order (chosen)']);
+      }
+    });
+    expect(stored.analysis.series.map((result) => result.analysis!.orderSource)).toEqual([
+      'study',
+      'study',
+      'data',
+      'data',
+    ]);
+  });
+
+  it('keeps the plausible laws of the series the data cannot tell in the table, beside the working order', () => {
+    const plausibleRows = rows.filter((row) => row.section === 'plausible' && row.seriesId === 'A @ 25 °C');
+    expect(plausibleRows.some((row) => row.model === 'average' && row.quantity === 't90')).toBe(true);
+    expect(plausibleRows.some((row) => row.model === 'average' && row.quantity === 'k')).toBe(false);
   });
 });
 

@@ -1,4 +1,5 @@
 import type { ModelSummary } from '../kinetics/derived/model-summary.ts';
+import { plausibleModelIndices } from '../kinetics/model-averaging.ts';
 import type { SeriesAnalysis } from '../kinetics/series-analysis.ts';
 import { DIGITS, MODEL_NAMES } from './results-table.ts';
 import { formatSignificant } from './significant-figures.ts';
@@ -27,8 +28,8 @@ import { formatSignificant } from './significant-figures.ts';
  * "first order (chosen)" and the plain names of the others.
  */
 
-export const PLAUSIBLE_WEIGHT = 0.1;
-export const PLAUSIBLE_DELTA_AICC = 2;
+// One definition of "plausible" for the engine's model averages and the figures' legends.
+export { PLAUSIBLE_DELTA_AICC, PLAUSIBLE_WEIGHT } from '../kinetics/model-averaging.ts';
 
 /** How the table words each source of a named order; anything else is never "chosen". */
 const NAMED_BECAUSE: Record<string, string> = {
@@ -52,20 +53,13 @@ export function namedLaw(analysis: SeriesAnalysis): NamedLaw | null {
   return { model: String(order), because: NAMED_BECAUSE[String(analysis.orderSource)] ?? 'named' };
 }
 
-/** The fitted laws ranked by the table's weights and AICc: which are plausible. */
+/** The fitted laws ranked by the table's weights and AICc: which are plausible (`plausibleModelIndices`). */
 export function plausibleLaws(models: readonly ModelSummary[]): Set<string> {
-  const fitted = models.filter((model) => model.applicable && model.aicc !== null);
-  let lowest = Number.POSITIVE_INFINITY;
-  for (const model of fitted) lowest = Math.min(lowest, model.aicc!);
-  return new Set(
-    fitted
-      .filter(
-        (model) =>
-          (model.weight !== null && model.weight >= PLAUSIBLE_WEIGHT) ||
-          model.aicc! - lowest <= PLAUSIBLE_DELTA_AICC,
-      )
-      .map((model) => String(model.order)),
+  const indices = plausibleModelIndices(
+    models.map((model) => (model.applicable ? model.aicc : null)),
+    models.map((model) => model.weight),
   );
+  return new Set(indices.map((index) => String(models[index]!.order)));
 }
 
 export type LawEmphasis = 'named' | 'plausible' | 'other';

@@ -56,7 +56,9 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
       text: 'Residuals against time',
       subtitle: [
         `${law.charAt(0).toUpperCase()}${law.slice(1)}.`,
-        `Red: |studentised residual| > ${diagnostics.outlierThreshold}${sampleNote(sample)}.`,
+        diagnostics.outlierThreshold === null
+          ? `No outlier test: too few points${sampleNote(sample)}.`
+          : `Red: |externally studentised residual| > ${diagnostics.outlierThreshold.toPrecision(3)} (Bonferroni-corrected t)${sampleNote(sample)}.`,
       ],
     },
     layer: [

@@ -1,6 +1,8 @@
 import type { DatasetAnalysis, SeriesResult } from '../kinetics/analyse-dataset.ts';
 import type { DerivedFigure } from '../kinetics/derived/model-summary.ts';
 import type { RateLawModel } from '../kinetics/order/fit-rate-law.ts';
+import { eyringRows, plausibleRows } from './plausible-and-eyring-rows.ts';
+import type { ResultRow } from './result-row.ts';
 
 /**
  * The results of an analysis as one tidy table: one row per reported number, with its interval,
@@ -17,25 +19,7 @@ import type { RateLawModel } from '../kinetics/order/fit-rate-law.ts';
  * `{ section: 'rate-law', seriesId, model: '1', quantity: 'k', estimate: 6.213e-4, unit: '1/s', digits: 4 }`.
  */
 
-export type ResultSection = 'rate-law' | 'derived' | 'linearised' | 'arrhenius' | 'shelf-life';
-
-export interface ResultRow {
-  key: string;
-  section: ResultSection;
-  seriesId: string | null;
-  batch: string | null;
-  temperatureC: number | null;
-  /** '0', '1', '2', 'n' for rate laws; the transform for linearised plots; null otherwise. */
-  model: string | null;
-  quantity: string;
-  label: string;
-  estimate: number | null;
-  lower: number | null;
-  upper: number | null;
-  unit: string;
-  digits: number;
-  note: string;
-}
+export type { ResultRow, ResultSection } from './result-row.ts';
 
 /** Significant figures per kind of number (common practice: 3–4 for estimates, 4 for R²). */
 export const DIGITS = { estimate: 4, time: 3, criterion: 4, weight: 3, rSquared: 4, energy: 4 } as const;
@@ -193,7 +177,7 @@ function seriesRows(result: SeriesResult): ResultRow[] {
 }
 
 export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
-  const rows = analysis.series.flatMap(seriesRows);
+  const rows = analysis.series.flatMap((result) => [...seriesRows(result), ...plausibleRows(result)]);
   const none = { seriesId: null, batch: null, temperatureC: null };
   const arrhenius = analysis.arrhenius;
   if (arrhenius?.fit) {
@@ -237,6 +221,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
         digits: DIGITS.rSquared,
       }),
     );
+    rows.push(...eyringRows(arrhenius));
     for (const point of arrhenius.rateConstants) {
       rows.push(
         row({

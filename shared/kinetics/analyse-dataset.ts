@@ -1,19 +1,11 @@
 import { analyseSeries } from './analyse-series.ts';
-import type {
-  DatasetArrhenius,
-  DatasetFindings,
-  DatasetOptions,
-  DatasetWarning,
-  SeriesResult,
-} from './dataset-analysis.ts';
+import type { DatasetFindings, DatasetOptions, DatasetWarning, SeriesResult } from './dataset-analysis.ts';
+import { datasetArrhenius } from './dataset-arrhenius.ts';
 import { type MethodStatement, methodStatement } from './method-statement.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import { conditionShelfLives } from './stability/condition-shelf-lives.ts';
 import { type Q1eDeclaration, UNSTATED_DECLARATION } from './stability/q1e-declaration.ts';
-import { arrheniusFit } from './temperature/arrhenius-fit.ts';
-import { predictRateConstant } from './temperature/predict-rate-constant.ts';
-import type { AttributeDirection, IntegerOrder, Series } from './types.ts';
-import { rateConstantUnit } from './units.ts';
+import type { AttributeDirection, Series } from './types.ts';
 import { ENGINE_VERSION } from './version.ts';
 
 /**
@@ -26,13 +18,16 @@ import { ENGINE_VERSION } from './version.ts';
  *   error; the others go on.
  * - Arrhenius (≥ 2 temperatures): one order for all temperatures, because rate constants of
  *   different orders have different units. It is the analyst's order when fixed; otherwise the
+ *   study's working order (`workingOrder`) when no series named one, labelled as such; else the
  *   integer order with the lowest AICc summed over the series where all three were compared —
  *   the AICc of the joint model with each series' own C0 and k, since log-likelihoods of
  *   independent series add. Each series gives k of that order; a k that is missing or ≤ 0 (no
  *   measurable loss) leaves that series out with the reason. Batches at one temperature are
  *   pooled into one point: the mean of ln k weighted by 1/Var(ln k) = (k/se(k))² (plain mean when
  *   a standard error is missing), so each temperature counts once in the line. The fit is
- *   unweighted unless `arrheniusWeighting: 'inverse-variance'`.
+ *   unweighted unless `arrheniusWeighting: 'inverse-variance'`. An Eyring line (ΔH‡, ΔS‡) goes
+ *   through the same points (`dataset-arrhenius.ts`). When no series named an order, a warning
+ *   says the rate constants rest on an order the data did not decide.
  * - k at `storageTemperatureC` by `predictRateConstant`; for first order also t90 = ln(10/9)/k
  *   and the half-life ln 2/k, with the interval ends of k transformed (a monotone function of one
  *   parameter; docs/methods.md#rate-constant-at-the-storage-temperature).
@@ -68,8 +63,6 @@ export interface DatasetAnalysis extends DatasetFindings {
   methodStatement: MethodStatement;
 }
 
-const ORDER_WORDS = ['zero', 'first', 'second'] as const;
-
 function kineticsFailure<T>(compute: () => T): { value: T } | { error: KineticsError } {
   try {
     return { value: compute() };
@@ -77,171 +70,6 @@ function kineticsFailure<T>(compute: () => T): { value: T } | { error: KineticsE
     if (error instanceof KineticsError) return { error };
     throw error;
   }
-}
-
-/** The order used across temperatures: the analyst's, else the lowest summed AICc. */
-function commonOrder(results: readonly SeriesResult[], fixed: IntegerOrder | undefined) {
-  const totals: [number | null, number | null, number | null] = [null, null, null];
-  for (const result of results) {
-    const aicc = result.analysis?.selection.aicc;
-    if (!aicc || aicc.slice(0, 3).some((value) => value === null || value === undefined)) continue;
-    for (const order of [0, 1, 2] as const) totals[order] = (totals[order] ?? 0) + (aicc[order] as number);
-  }
-  if (fixed !== undefined) return { order: fixed, source: 'analyst' as const, totals };
-  let best: IntegerOrder | null = null;
-  for (const order of [0, 1, 2] as const) {
-    const total = totals[order];
-    if (total !== null && (best === null || total < (totals[best] as number))) best = order;
-  }
-  return { order: best, source: best === null ? null : ('data' as const), totals };
-}
-
-function poolTemperature(temperatureC: number, points: { id: string; k: number; se: number | null }[]) {
-  const lnKs = points.map((point) => Math.log(point.k));
-  if (points.length === 1) {
-    const [point] = points as [(typeof points)[number]];
-    return {
-      temperatureC,
-      k: point.k,
-      kStandardError: point.se,
-      lnK: lnKs[0] as number,
-      seriesIds: [point.id],
-      pooling: 'single-series' as const,
-    };
-  }
-  const weighted = points.every((point) => point.se !== null && point.se > 0);
-  const weights = points.map((point) => (weighted ? (point.k / (point.se as number)) ** 2 : 1));
-  const totalWeight = weights.reduce((sum, weight) => sum + weight, 0);
-  const lnK = lnKs.reduce((sum, value, index) => sum + (weights[index] as number) * value, 0) / totalWeight;
-  const k = Math.exp(lnK);
-  return {
-    temperatureC,
-    k,
-    kStandardError: weighted ? k / Math.sqrt(totalWeight) : null,
-    lnK,
-    seriesIds: points.map((point) => point.id),
-    pooling: weighted ? ('inverse-variance-mean-of-ln-k' as const) : ('mean-of-ln-k' as const),
-  };
-}
-
-function datasetArrhenius(
-  results: readonly SeriesResult[],
-  seriesList: readonly Series[],
-  options: DatasetOptions,
-  warnings: DatasetWarning[],
-): DatasetArrhenius | null {
-  const temperatures = new Set(
-    results.flatMap((result) => (result.temperatureC === null ? [] : [result.temperatureC])),
-  );
-  if (temperatures.size < 2) return null;
-  const { order, source, totals } = commonOrder(results, options.order);
-  const first = seriesList[0];
-  const base: DatasetArrhenius = {
-    order,
-    orderSource: source,
-    aiccTotals: totals,
-    kUnit: order === null || !first ? null : rateConstantUnit(order, first.valueUnit, first.timeUnit),
-    rateConstants: [],
-    excludedSeries: [],
-    fit: null,
-    notApplicableReason: null,
-    prediction: null,
-  };
-  if (order === null) {
-    base.notApplicableReason =
-      'no common reaction order: no series had enough points to compare the orders; fix the order to fit Arrhenius';
-    return base;
-  }
-  const named = new Set(
-    results.flatMap((result) =>
-      result.analysis?.selectedOrder == null ? [] : [result.analysis.selectedOrder],
-    ),
-  );
-  if (source === 'data' && [...named].some((other) => other !== order)) {
-    warnings.push({
-      code: 'order-disagreement',
-      message: `Series name different orders (${[...named].sort().join(', ')}); the Arrhenius fit uses ${ORDER_WORDS[order]} order, lowest in summed AICc.`,
-    });
-  }
-  const byTemperature = new Map<number, { id: string; k: number; se: number | null }[]>();
-  for (const result of results) {
-    if (result.temperatureC === null) {
-      base.excludedSeries.push({ id: result.id, reason: 'no temperature given' });
-      continue;
-    }
-    const model = result.analysis?.models.find((candidate) => candidate.order === order);
-    if (!result.analysis || !model) {
-      base.excludedSeries.push({ id: result.id, reason: result.error?.message ?? 'not analysed' });
-    } else if (model.k === null || !model.applicable) {
-      base.excludedSeries.push({
-        id: result.id,
-        reason: `the ${ORDER_WORDS[order]}-order law could not be fitted: ${model.reason ?? 'no k'}`,
-      });
-    } else if (!(model.k > 0)) {
-      base.excludedSeries.push({
-        id: result.id,
-        reason: `k = ${model.k.toPrecision(3)} is not positive (no measurable loss), so ln k does not exist`,
-      });
-    } else {
-      const list = byTemperature.get(result.temperatureC) ?? [];
-      list.push({ id: result.id, k: model.k, se: model.kStandardError });
-      byTemperature.set(result.temperatureC, list);
-    }
-  }
-  base.rateConstants = [...byTemperature]
-    .sort(([a], [b]) => a - b)
-    .map(([temperatureC, points]) => poolTemperature(temperatureC, points));
-  if (base.rateConstants.length < 2) {
-    base.notApplicableReason = `rate constants at ${base.rateConstants.length} temperature(s) only; an Arrhenius line needs at least 2`;
-    return base;
-  }
-  const fitted = kineticsFailure(() =>
-    arrheniusFit(
-      base.rateConstants.map((point) => ({
-        temperatureC: point.temperatureC,
-        rateConstant: point.k,
-        ...(point.kStandardError === null ? {} : { rateConstantStandardError: point.kStandardError }),
-      })),
-      { weighting: options.arrheniusWeighting ?? 'unweighted', confidence: options.confidenceLevel ?? 0.95 },
-    ),
-  );
-  if ('error' in fitted) {
-    base.notApplicableReason = fitted.error.message;
-    return base;
-  }
-  base.fit = fitted.value;
-  if (options.storageTemperatureC !== undefined) {
-    const storage = options.storageTemperatureC;
-    const predicted = kineticsFailure(() => predictRateConstant(fitted.value, storage));
-    if ('error' in predicted) {
-      base.notApplicableReason = `k at ${storage} °C: ${predicted.error.message}`;
-      return base;
-    }
-    const prediction = predicted.value;
-    // A monotone decreasing function of k: the interval ends of k swap (docs/methods.md#arrhenius).
-    const interval = prediction.confidenceInterval;
-    const derived = (constant: number) => ({
-      estimate: constant / prediction.rateConstant,
-      ci: interval === null ? null : ([constant / interval[1], constant / interval[0]] as [number, number]),
-    });
-    base.prediction = {
-      ...prediction,
-      t90: order === 1 ? derived(Math.log(10 / 9)) : null,
-      halfLife: order === 1 ? derived(Math.LN2) : null,
-      derivedReason:
-        order === 1
-          ? null
-          : `for ${ORDER_WORDS[order]} order, t90 and half-life depend on the initial value; see each series`,
-    };
-    if (prediction.extrapolation !== null) {
-      const [low, high] = fitted.value.temperatureRangeC;
-      warnings.push({
-        code: 'arrhenius-extrapolation',
-        message: `k at ${storage} °C is extrapolated outside the fitted ${low}–${high} °C; the straight Arrhenius line is an assumption there.`,
-      });
-    }
-  }
-  return base;
 }
 
 /** The declaration the Q1E proposals use: the study's statements, unknown where it states nothing. */
@@ -324,7 +152,9 @@ export function analyseDataset(seriesList: readonly Series[], options: DatasetOp
       : conditionShelfLives(
           results.map((result, index) => ({
             series: seriesList[index] as Series,
-            namedOrder: result.analysis?.selectedOrder ?? null,
+            // Only an order the data named; a working order does not set the Q1E scale.
+            namedOrder:
+              result.analysis?.orderSource === 'study' ? null : (result.analysis?.selectedOrder ?? null),
           })),
           {
             direction: attributeDirection(options),

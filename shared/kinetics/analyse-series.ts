@@ -2,6 +2,7 @@ import { collectWarnings } from './derived/analysis-warnings.ts';
 import { finiteOnly } from './derived/finite-only.ts';
 import { type DerivedFigure, derivedFigure, modelSummary } from './derived/model-summary.ts';
 import { predictedValue } from './derived/predicted-value.ts';
+import { negativeValueReason, refuseFixedOrderWithNegativeValue } from './negative-values.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
 import { fitRateLaw, type RateLawFit, type RateLawModel } from './order/fit-rate-law.ts';
@@ -10,7 +11,9 @@ import { prepareSeries } from './order/prepare-series.ts';
 import { residualDiagnostics } from './order/residual-diagnostics.ts';
 import { type ModelFits, type OrderSelection, selectOrder } from './order/select-order.ts';
 import { startingValues } from './order/starting-values.ts';
+import { plausibleLawFigures } from './plausible-law-figures.ts';
 import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
+import { analysisInOriginalUnits, scaledOptions, seriesScaling } from './series-scaling.ts';
 import type { ErrorModel, IntegerOrder, Series } from './types.ts';
 
 /**
@@ -61,8 +64,14 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     }
   }
   const prepared = prepareSeries(series);
-  const times = Float64Array.from(prepared.times);
-  const values = Float64Array.from(prepared.values);
+  refuseFixedOrderWithNegativeValue(series.id, options.order, prepared.values, prepared.labelOf);
+  const negative = (model: 1 | 2 | 'n') => negativeValueReason(model, prepared.values, prepared.labelOf);
+  // Extreme magnitudes are fitted divided by powers of two and mapped back (series-scaling.ts).
+  const scaling = seriesScaling(prepared.times, prepared.values);
+  const times = Float64Array.from(prepared.times, (time) => time / scaling.time);
+  const values = Float64Array.from(prepared.values, (value) => value / scaling.value);
+  const unscaledOptions = options;
+  options = scaledOptions(options, scaling);
   const pointCount = times.length;
   const lastTime = times[pointCount - 1]!;
   let largestValue = values[0]!;
@@ -74,6 +83,11 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
   const failures: (string | undefined)[] = [undefined, undefined, undefined, undefined];
   const fitIntegers = (errorModel: ErrorModel): void => {
     for (const order of [0, 1, 2] as IntegerOrder[]) {
+      const refused = order === 0 ? null : negative(order);
+      if (refused !== null) {
+        failures[order] = refused;
+        continue;
+      }
       const start = startingValues(order, linearised, largestValue);
       [fits[order], failures[order]] = attempt(() => fitRateLaw(order, times, values, errorModel, start));
     }
@@ -120,8 +134,8 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
       const index = values.findIndex((value) => !(value > 0));
       throw new KineticsError(
         'non-positive-value',
-        `Proportional error is fitted on ln(value), but ${prepared.labelOf(index)} has value ${values[index]}.`,
-        { id: series.id, index, value: values[index] },
+        `Proportional error is fitted on ln(value), but ${prepared.labelOf(index)} has value ${prepared.values[index]}.`,
+        { id: series.id, index, value: prepared.values[index] },
       );
     }
     fitIntegers(requested);
@@ -135,7 +149,9 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
   }
   const errorModel = errorModelChoice.errorModel;
   const bestInteger = lowestRss(fits);
-  if (bestInteger !== null) {
+  if (negative('n') !== null) {
+    failures[3] = negative('n')!;
+  } else if (bestInteger !== null) {
     [fits[3], failures[3]] = attempt(() =>
       fitRateLaw('n', times, values, errorModel, {
         initialValue: bestInteger.initialValue,
@@ -168,8 +184,12 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     ),
   );
 
-  const orderSource = options.order === undefined ? 'data' : 'analyst';
-  const reportedOrder = options.order ?? selection.selectedOrder;
+  // The study's working order stands in only where the data name none (issue 12 §3).
+  const useWorkingOrder =
+    options.order === undefined && selection.selectedOrder === null && options.workingOrder !== undefined;
+  const orderSource = options.order !== undefined ? 'analyst' : useWorkingOrder ? 'study' : 'data';
+  const reportedOrder =
+    options.order ?? (useWorkingOrder ? options.workingOrder!.order : selection.selectedOrder);
   const reportedFit = reportedOrder === null ? null : fits[reportedOrder]!;
   const diagnosticFit =
     reportedFit ?? (selection.bestIntegerOrder === null ? null : fits[selection.bestIntegerOrder]!);
@@ -191,7 +211,9 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     verdict:
       orderSource === 'analyst'
         ? `Order fixed by the analyst: ${['zero', 'first', 'second'][options.order!]} order. What the data alone say: ${selection.verdict}`
-        : selection.verdict,
+        : orderSource === 'study'
+          ? `Working order from the study: ${['zero', 'first', 'second'][reportedOrder!]} order (${options.workingOrder!.reason}), used because the data do not name one. What the data alone say: ${selection.verdict}`
+          : selection.verdict,
     errorModel,
     errorModelChoice,
     fractionReacted: selection.fractionReacted,
@@ -206,9 +228,20 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
     warnings: [],
     confidenceLevel,
   };
+  if (orderSource === 'study') analysis.workingOrderReason = options.workingOrder!.reason;
+  if (selection.selectedOrder === null) {
+    analysis.plausible = plausibleLawFigures(
+      models,
+      fits,
+      options,
+      series.timeUnit,
+      lastTime,
+      confidenceLevel,
+    );
+  }
   if (reportedOrder === null) {
     analysis.derivedReason =
-      'no order is named, so no half-life or t90 is reported; each law’s own figures are under models';
+      'no order is named, so no single half-life or t90 is reported; each plausible law’s figures and the model averages are under plausible';
   } else if (reportedFit === null) {
     analysis.derivedReason = `the ${['zero', 'first', 'second'][reportedOrder]}-order law could not be fitted: ${failures[reportedOrder]}`;
   }
@@ -222,8 +255,9 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
       predictedValue(reportedFit, time, confidenceLevel),
     );
   }
-  analysis.warnings = collectWarnings(analysis, selection, fits, options);
-  return finiteOnly(analysis, diagnostics?.points);
+  const result = analysisInOriginalUnits(analysis, fits, scaling);
+  result.warnings = collectWarnings(result, selection, fits, unscaledOptions);
+  return finiteOnly(result, result.diagnostics?.points);
 }
 
 function attempt(runFit: () => RateLawFit): [RateLawFit | null, string | undefined] {

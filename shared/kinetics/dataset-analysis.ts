@@ -3,6 +3,7 @@ import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
 import type { ConditionShelfLife } from './stability/condition-shelf-lives.ts';
 import type { Q1eDeclaration } from './stability/q1e-declaration.ts';
 import type { ArrheniusFit } from './temperature/arrhenius-fit.ts';
+import type { EyringFit } from './temperature/eyring-fit.ts';
 import type { RateConstantPrediction } from './temperature/predict-rate-constant.ts';
 import type { TemperatureFitWeighting } from './temperature/rate-constant-measurement.ts';
 import type { AttributeDirection, ErrorModel, IntegerOrder } from './types.ts';
@@ -43,13 +44,16 @@ export interface TemperatureRateConstant {
 
 export interface DatasetArrhenius {
   order: IntegerOrder | null;
-  orderSource: 'analyst' | 'data' | null;
+  /** 'analyst': fixed; 'study': the study's working order (no series named one); 'data': lowest summed AICc. */
+  orderSource: 'analyst' | 'data' | 'study' | null;
   /** Summed AICc of orders 0, 1, 2 over the series where all three were compared. */
   aiccTotals: [number | null, number | null, number | null];
   kUnit: string | null;
   rateConstants: TemperatureRateConstant[];
   excludedSeries: { id: string; reason: string }[];
   fit: ArrheniusFit | null;
+  /** Eyring line through the same rate constants (ΔH‡, ΔS‡); null when there is no Arrhenius fit. */
+  eyring: { fit: EyringFit | null; notApplicableReason: string | null } | null;
   notApplicableReason: string | null;
   prediction:
     | (RateConstantPrediction & {
@@ -63,7 +67,12 @@ export interface DatasetArrhenius {
 export type { ConditionShelfLife };
 
 export interface DatasetWarning {
-  code: 'series-not-analysed' | 'order-disagreement' | 'arrhenius-extrapolation' | 'non-finite-replaced';
+  code:
+    | 'series-not-analysed'
+    | 'order-disagreement'
+    | 'no-order-named'
+    | 'arrhenius-extrapolation'
+    | 'non-finite-replaced';
   message: string;
 }
 

@@ -1,9 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { analyseDataset } from './analyse-dataset.ts';
+import { OUTLIER_FAMILY_ALPHA } from './order/bonferroni-outlier-test.ts';
 import {
   DECISIVE_DELTA_AICC,
+  MAX_WRONG_ORDER_RATE_PER_CELL,
   MIN_FRACTION_REACTED,
   ORDER_CONSISTENCY_ALPHA,
+  SYSTEMATIC_MISFIT_ALPHA,
 } from './order/order-decision-thresholds.ts';
 import type { Series } from './types.ts';
 import { ENGINE_VERSION } from './version.ts';
@@ -52,6 +55,19 @@ describe('methodStatement', () => {
       orderConsistencyAlpha: ORDER_CONSISTENCY_ALPHA,
     });
     expect(statement.orderSelection.rule).toContain(`by at least ${DECISIVE_DELTA_AICC}`);
+    expect(statement.orderSelection.rule).toContain(
+      `at least ${MIN_FRACTION_REACTED * 100} % of the initial value has reacted`,
+    );
+    expect(statement.orderSelection.rule).toContain(
+      `does not reject it at ${ORDER_CONSISTENCY_ALPHA}, and the runs test on its residuals does not reject at ${SYSTEMATIC_MISFIT_ALPHA}`,
+    );
+    expect(statement.orderSelection.rule).toContain(
+      `a wrong order is named in at most ${MAX_WRONG_ORDER_RATE_PER_CELL * 100} % of series in every combination of fraction reacted and noise`,
+    );
+    expect(statement.orderSelection.thresholds.outlierFamilyAlpha).toBe(OUTLIER_FAMILY_ALPHA);
+    expect(statement.intervals).toContain(
+      `Bonferroni-corrected two-sided t quantile t(1 − ${OUTLIER_FAMILY_ALPHA}/(2N); N − p − 1), for N points and p fitted parameters, are flagged as possible outliers (family-wise level ${OUTLIER_FAMILY_ALPHA * 100} % per series)`,
+    );
     expect(statement.text).toContain(`Rateledger kinetics engine ${ENGINE_VERSION}.`);
     expect(statement.text).toContain('Two-sided 95 % intervals');
     expect(statement.temperature).toBeNull();

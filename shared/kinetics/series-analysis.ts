@@ -1,6 +1,8 @@
 import type { DerivedFigure, ModelSummary } from './derived/model-summary.ts';
 import type { PredictedValue } from './derived/predicted-value.ts';
+import type { ModelAveragedFigure } from './model-averaging.ts';
 import type { ErrorModelChoice } from './order/choose-error-model.ts';
+import type { RateLawModel } from './order/fit-rate-law.ts';
 import type { LinearisedFit } from './order/linearised-fits.ts';
 import type { OrderSelection } from './order/order-selection.ts';
 import type { ExcludedPoint } from './order/prepare-series.ts';
@@ -17,6 +19,42 @@ export interface SeriesOptions {
   upperLimit?: number;
   predictAt?: number[];
   order?: IntegerOrder;
+  /**
+   * The working order the study declares (its protocol's, with the reason), used only where the
+   * data do not name an order; reported as "working order from the study", never "chosen".
+   */
+  workingOrder?: { order: IntegerOrder; reason: string };
+}
+
+/** One plausible law's own figures (Akaike weight ≥ 0.1 or ΔAICc ≤ 2), as the table shows them. */
+export interface PlausibleLaw {
+  model: RateLawModel;
+  weight: number | null;
+  deltaAicc: number | null;
+  k: number | null;
+  kCi95: [number, number] | null;
+  kUnit: string;
+  halfLife: DerivedFigure | null;
+  t90: DerivedFigure | null;
+  timeToLimit?: { lower?: DerivedFigure | null; upper?: DerivedFigure | null };
+}
+
+/**
+ * When the data name no order: each plausible law's figures, their range, and the model averages
+ * of what means the same under every law (t90, time to a limit, predicted values) — never k.
+ */
+export interface PlausibleLawFigures {
+  laws: PlausibleLaw[];
+  range: {
+    halfLife: [number, number] | null;
+    t90: [number, number] | null;
+    timeToLimit?: { lower?: [number, number] | null; upper?: [number, number] | null };
+  };
+  modelAveraged: {
+    t90: ModelAveragedFigure;
+    timeToLimit?: { lower?: ModelAveragedFigure; upper?: ModelAveragedFigure };
+    predictions?: ({ time: number } & ModelAveragedFigure)[];
+  };
 }
 
 export interface AnalysisWarning {
@@ -39,7 +77,10 @@ export interface SeriesAnalysis {
   timeSpan: [number, number];
   excluded: ExcludedPoint[];
   selectedOrder: IntegerOrder | null;
-  orderSource: 'data' | 'analyst';
+  /** Who named `reportedOrder`: the data, the analyst (fixed order), or the study's working order. */
+  orderSource: 'data' | 'analyst' | 'study';
+  /** The study's reason for its working order, when `orderSource` is 'study'. */
+  workingOrderReason?: string;
   verdict: string;
   errorModel: ErrorModel;
   errorModelChoice: ErrorModelChoice;
@@ -55,6 +96,8 @@ export interface SeriesAnalysis {
   derivedReason?: string;
   timeToLimit?: { lower?: DerivedFigure | null; upper?: DerivedFigure | null };
   predictions?: PredictedValue[];
+  /** Present when the data name no order (`selection` abstained): the plausible laws and averages. */
+  plausible?: PlausibleLawFigures;
   diagnostics: ResidualDiagnostics | null;
   warnings: AnalysisWarning[];
   confidenceLevel: number;

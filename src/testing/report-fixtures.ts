@@ -23,7 +23,12 @@ const readyReport = {
   author: ana,
   createdAt: '2026-03-01T08:30:00.000Z',
   versionCount: 2,
-  latest: { versionNumber: 2, renderStatus: 'ready', pdfUrl: '/api/reports/5/versions/2/pdf' },
+  latest: {
+    versionNumber: 2,
+    renderStatus: 'ready',
+    reviewState: 'in_review',
+    pdfUrl: '/api/reports/5/versions/2/pdf',
+  },
 };
 
 const failedReport = {
@@ -34,7 +39,7 @@ const failedReport = {
   author: ben,
   createdAt: '2026-03-04T14:05:00.000Z',
   versionCount: 1,
-  latest: { versionNumber: 1, renderStatus: 'failed', pdfUrl: null },
+  latest: { versionNumber: 1, renderStatus: 'failed', reviewState: 'draft', pdfUrl: null },
 };
 
 export const reportList = reportListResponseSchema.parse({
@@ -74,6 +79,11 @@ export const readyReportDetail = reportDetailSchema.parse({
     renderStartedAt: '2026-03-01T08:30:01.000Z',
     finishedAt: '2026-03-01T08:30:02.000Z',
     pdfUrl: `/api/reports/5/versions/${versionNumber}/pdf`,
+    renditionUrl: `/api/reports/5/versions/${versionNumber}/rendition.pdf`,
     htmlUrl: `/api/reports/5/versions/${versionNumber}/html`,
+    // Version 1 is signed; version 2, rendered after it, is in review (so v1 is not yet superseded).
+    reviewState: versionNumber === 1 ? 'signed' : 'in_review',
+    supersededBy: null,
+    signedPdfSha256: versionNumber === 1 ? 'e'.repeat(64) : null,
   })),
 });

@@ -61,9 +61,13 @@ describe('inviting a reviewer through the pages', () => {
     await ui.getByRole('link', { name: 'Invite a person' }).click();
     await ui.getByLabel('Full name').fill(inviteeName);
     await ui.getByLabel('E-mail address').fill(inviteeEmail);
-    // Reviewer is offered ticked; leave the other roles unticked.
-    expect(await ui.getByRole('checkbox', { name: /reviewer/ }).isChecked()).toBe(true);
-    expect(await ui.getByRole('checkbox', { name: /analyst/ }).isChecked()).toBe(false);
+    // No role is offered ticked (least privilege); reviewer, a signing role, needs a confirmation.
+    expect(await ui.getByRole('checkbox', { name: /^reviewer/ }).isChecked()).toBe(false);
+    expect(await ui.getByRole('checkbox', { name: /^analyst/ }).isChecked()).toBe(false);
+    await ui.getByRole('checkbox', { name: /^reviewer/ }).check();
+    await ui.getByRole('button', { name: 'Send the invitation' }).click();
+    await ui.getByText(/^Reviewer is a signing role/).waitFor();
+    await ui.getByRole('checkbox', { name: /may e-sign records/ }).check();
     await shot(page, '1-invite-form');
     await ui.getByRole('button', { name: 'Send the invitation' }).click();
     await expect.poll(() => ui.getByRole('status').first().textContent()).toContain('Invitation for');

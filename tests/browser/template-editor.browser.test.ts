@@ -171,6 +171,11 @@ describe('template editor in Chromium', () => {
       .getByRole('region', { name: 'Template source' })
       .getByRole('button', { name: 'Publish version 2' })
       .click();
+    // Change control: the reason (audited) and an explicit confirmation.
+    const confirm = ui.getByRole('form', { name: 'Publish version 2' });
+    await confirm.getByLabel(/^Reason for the change/).fill('Letterhead names the stability unit');
+    await confirm.getByRole('checkbox', { name: 'I confirm that new reports are to use version 2.' }).check();
+    await confirm.getByRole('button', { name: 'Confirm the publication' }).click();
     await ui.getByRole('status').filter({ hasText: 'Version 2 is published' }).waitFor();
     const versions = ui.getByRole('region', { name: 'Versions' });
     await versions.locator('tr[data-version="2"]').getByText('Published').waitFor();

@@ -1,13 +1,21 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { appendAuditEvent, verifyAuditChain } from '../../server/platform/audit/audit-trail.ts';
+import type { DatabaseHandle } from '../../server/platform/db/client.ts';
+import { openSuperuserDatabase } from '../support/superuser.ts';
 import { createTestWorld, type TestWorld } from '../support/test-app.ts';
 
 let world: TestWorld;
+/** The triggers are tested against the most powerful role (the app role has no such privileges at all). */
+let superuser: DatabaseHandle;
 beforeAll(async () => {
   world = await createTestWorld({ analyst: ['analyst'] });
+  superuser = await openSuperuserDatabase();
 });
-afterAll(() => world.close());
+afterAll(async () => {
+  await superuser.close();
+  await world.close();
+});
 
 const append = (action: string, after: unknown) =>
   appendAuditEvent(world.database.db, {
@@ -21,12 +29,12 @@ describe('audit_events is append-only in the database', () => {
   it('rejects UPDATE, DELETE and TRUNCATE by trigger, whatever the application does', async () => {
     const { id } = await append('test.event', { value: 1 });
     await expect(
-      world.database.pool.query('update audit_events set action = $1 where id = $2', ['edited', id]),
+      superuser.pool.query('update audit_events set action = $1 where id = $2', ['edited', id]),
     ).rejects.toThrow(/append-only/);
-    await expect(world.database.pool.query('delete from audit_events where id = $1', [id])).rejects.toThrow(
+    await expect(superuser.pool.query('delete from audit_events where id = $1', [id])).rejects.toThrow(
       /append-only/,
     );
-    await expect(world.database.pool.query('truncate audit_events')).rejects.toThrow(/append-only/);
+    await expect(superuser.pool.query('truncate audit_events')).rejects.toThrow(/append-only/);
     const still = await world.database.pool.query('select action from audit_events where id = $1', [id]);
     expect(still.rows[0]?.action).toBe('test.event');
   });
@@ -49,9 +57,9 @@ describe('the hash chain', () => {
   it('detects a row altered behind the trigger and names it as the first broken link', async () => {
     const { id } = await append('test.target', { amount: 10 });
     await append('test.after-target', { amount: 11 });
-    // A database owner can bypass triggers; simulate that inside a transaction rolled back afterwards.
+    // A superuser can bypass triggers; simulate that inside a transaction rolled back afterwards.
     let check: Awaited<ReturnType<typeof verifyAuditChain>> | undefined;
-    await world.database.db
+    await superuser.db
       .transaction(async (tx) => {
         await tx.execute(sql`set local session_replication_role = replica`);
         await tx.execute(sql`update audit_events set after_value = '{"amount": 99}'::jsonb where id = ${id}`);

@@ -214,10 +214,10 @@ describe('import of a mapped upload', () => {
     ]);
   });
 
-  it('a single point (or replicates at one time only): 422 naming the series and its cell', async () => {
-    const single = await uploaded(Buffer.from('Month,Assay\n0,100.1\n'), 'single.csv');
+  it('replicates at one time only: 422 naming the series and its cell (a single point is refused at upload: hostile-uploads.test.ts)', async () => {
+    const single = await uploaded(Buffer.from('Month,Assay\n0,100.1\n0,100.3\n'), 'single.csv');
     await expectProblems(single, { timeColumn: 'Month', timeUnit: 'month', valueColumn: 'Assay' }, [
-      'single!B2: series "Assay" has a single result at time 0 month; a rate needs results at two or more different times; check that the time column "Month" holds the time of each pull',
+      'single!B2: series "Assay" has 2 results, all at time 0 month; a rate needs results at two or more different times; check that the time column "Month" holds the time of each pull',
     ]);
     // One batch only at time 0, one usable batch: kept, with a note about the unusable one.
     const mixed = await uploaded(

@@ -35,7 +35,7 @@ async function inviteAndRead(email: string) {
   const response = await admin
     .post('/admin/people/invite')
     .type('form')
-    .send({ _csrf: token, fullName: 'Invited Person', email, roles: 'reviewer' });
+    .send({ _csrf: token, fullName: 'Invited Person', email, roles: 'reviewer', confirmSigningRole: 'yes' });
   const page = await admin.get('/admin/people');
   const notice = /role="(?:status|alert)"[^>]*>([^<]+)</.exec(page.text)?.[1] ?? '';
   const [event] = await world.database.db

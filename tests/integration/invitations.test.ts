@@ -26,7 +26,7 @@ async function invite(fields: Record<string, string | string[]>) {
   return admin
     .post('/admin/people/invite')
     .type('form')
-    .send({ _csrf: token, ...fields });
+    .send({ _csrf: token, confirmSigningRole: 'yes', ...fields });
 }
 
 async function latestEvent(action: string) {

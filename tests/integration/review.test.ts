@@ -29,6 +29,7 @@ import {
 import { mailConfig } from '../../server/platform/mail/mail-config.ts';
 import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
+import { openSuperuserDatabase } from '../support/superuser.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
@@ -300,9 +301,10 @@ describe('the audit trail of the flow', () => {
       roles: ['reviewer', 'admin'],
     };
     let outcome: Awaited<ReturnType<typeof checkAuditChain>> | undefined;
-    await world.database.db
+    const superuser = await openSuperuserDatabase();
+    await superuser.db
       .transaction(async (tx) => {
-        // The owner role may switch the append-only trigger off for its own transaction.
+        // A superuser may switch the append-only trigger off for its own transaction.
         await tx.execute(sql`set local session_replication_role = replica`);
         await tx.execute(
           sql`update audit_events set after_value = jsonb_set(after_value, '{comment}', '"All fine."') where id = ${returned!.id}`,
@@ -310,7 +312,8 @@ describe('the audit trail of the flow', () => {
         outcome = await checkAuditChain(tx, actor, { test: 'tamper' });
         tx.rollback();
       })
-      .catch(() => undefined); // drizzle signals the rollback by throwing
+      .catch(() => undefined) // drizzle signals the rollback by throwing
+      .finally(() => superuser.close());
     expect(outcome).toMatchObject({
       ok: false,
       firstBrokenLink: { id: returned!.id, reason: 'content does not match its stored hash' },

@@ -93,6 +93,7 @@ describe('studies', () => {
       title: 'Study to edit',
       lowerLimit: '94.5',
       notes: 'Limit widened.',
+      reasonForChange: 'Limit widened by change control (invented).',
     });
     expect(edited.status).toBe(303);
     expect(edited.headers.location).toContain('saved=updated');
@@ -117,7 +118,12 @@ describe('studies', () => {
       .orderBy(asc(auditEvents.id));
     expect(events.map((event) => event.action)).toEqual(['study.created', 'study.updated']);
     expect(events[1]!.beforeValue).toEqual({ lowerLimit: 95, notes: 'Invented study for tests.' });
-    expect(events[1]!.afterValue).toEqual({ lowerLimit: 94.5, notes: 'Limit widened.' });
+    expect(events[1]!.afterValue).toEqual({
+      lowerLimit: 94.5,
+      notes: 'Limit widened.',
+      reasonForChange: 'Limit widened by change control (invented).',
+      studyVersion: 2,
+    });
   });
 
   it('invalid fields re-show the form with each error beside its field and the typed values kept; nothing stored', async () => {
@@ -175,6 +181,7 @@ describe('studies', () => {
       acceleratedChange: 'none',
       supportingData: 'yes',
       declarationBasis: 'Accelerated report AR-17 (invented).',
+      reasonForChange: 'Q1E declaration stated (invented).',
     };
     expect((await postStudy(agent, `/studies/${id}`, declared)).headers.location).toContain('saved=updated');
     const events = await world.database.db
@@ -205,6 +212,8 @@ describe('studies', () => {
       acceleratedChange: 'none',
       supportingData: 'yes',
       declarationBasis: 'Accelerated report AR-17 (invented).',
+      reasonForChange: 'Q1E declaration stated (invented).',
+      studyVersion: 2,
     });
     const page = await agent.get(`/studies/${id}`);
     expect(page.text).toContain('room temperature (ICH Q1E §2.4)');

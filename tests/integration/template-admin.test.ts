@@ -155,10 +155,32 @@ describe('saving and publishing', () => {
     });
     expect(saved.body.version.sha256).toBe(createHash('sha256').update(canonical).digest('hex'));
 
+    // Change control (issue 13 §6): without a reason or without the confirmation nothing is published.
+    for (const [incomplete, field] of [
+      [{ versionId: secondVersionId, confirmed: true }, 'reason'],
+      [{ versionId: secondVersionId, reason: '   ', confirmed: true }, 'reason'],
+      [{ versionId: secondVersionId, reason: 'Heading shows the number' }, 'confirmed'],
+    ] as const) {
+      const refused = await admin
+        .post(`/api/admin/templates/${templateId}/publish`)
+        .set('x-csrf-token', adminToken)
+        .send(incomplete)
+        .expect(400);
+      expect(refused.body.error.details.map((detail: { field: string }) => detail.field)).toEqual([field]);
+    }
+    expect(
+      (await auditOf('report-template.published')).filter(
+        (event) => event.actorUserId === world.users.admin!.id,
+      ),
+    ).toEqual([]);
     const published = await admin
       .post(`/api/admin/templates/${templateId}/publish`)
       .set('x-csrf-token', adminToken)
-      .send({ versionId: secondVersionId })
+      .send({
+        versionId: secondVersionId,
+        reason: 'Heading shows the report number (CR-12)',
+        confirmed: true,
+      })
       .expect(200);
     expect(published.body).toEqual({
       publishedVersionId: secondVersionId,
@@ -188,6 +210,7 @@ describe('saving and publishing', () => {
     expect(publishedEvents[0]!.afterValue).toMatchObject({
       versionNumber: 2,
       sha256: saved.body.version.sha256,
+      reason: 'Heading shows the report number (CR-12)',
     });
   });
 
@@ -243,7 +266,7 @@ describe('saving and publishing', () => {
     const refused = await admin
       .post(`/api/admin/templates/${templateId}/publish`)
       .set('x-csrf-token', adminToken)
-      .send({ versionId: broken!.id })
+      .send({ versionId: broken!.id, reason: 'Try the broken one', confirmed: true })
       .expect(422);
     expect(refused.body.error.message).toMatch(
       /^Version 3 cannot be published: .*body, line \d+, column \d+/,
@@ -345,7 +368,7 @@ describe('compare and roll back', () => {
     const { body } = await admin
       .post(`/api/admin/templates/${templateId}/publish`)
       .set('x-csrf-token', adminToken)
-      .send({ versionId: firstVersionId })
+      .send({ versionId: firstVersionId, reason: 'Version 2 misprints the batch table', confirmed: true })
       .expect(200);
     expect(body).toMatchObject({ publishedVersionNumber: 1, previousVersionNumber: 2, rolledBack: true });
     const [event] = await auditOf('report-template.rolled-back');
@@ -365,6 +388,7 @@ describe('compare and roll back', () => {
       versionId: firstVersionId,
       versionNumber: 1,
       sha256: sha(firstVersionId),
+      reason: 'Version 2 misprints the batch table',
     });
     expect(await templateVersionOf(await newReport())).toBe(firstVersionId);
   });
@@ -402,7 +426,7 @@ describe('who may use the editor', () => {
     await agent
       .post(`/api/admin/templates/${templateId}/publish`)
       .set('x-csrf-token', token)
-      .send({ versionId: secondVersionId })
+      .send({ versionId: secondVersionId, reason: 'Outsider', confirmed: true })
       .expect(404);
   });
 });

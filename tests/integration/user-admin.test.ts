@@ -209,6 +209,8 @@ describe('lockout and unlocking', () => {
     expect(refused.response.text).toContain('locked');
     const person = await admin.get(`/admin/people/${locked.id}`);
     expect(person.text).toContain('Locked until');
+    // Issue 13 §8: the page names the failures that set the lock, never "in a row 0" beside "Locked".
+    expect(person.text).toMatch(/data-failed-sign-ins>3 from [^<]+, which set the lock/);
 
     expect((await post(admin, `/admin/people/${locked.id}/unlock`)).status).toBe(303);
     const event = await lastEventAbout(locked.id, 'user.unlocked');

@@ -175,7 +175,9 @@ describe('verifying an uploaded PDF', () => {
       record: null,
       seal: { signed: true, valid: false },
     });
-    expect(response.body.verdict).toContain('The file was altered after it was signed');
+    expect(response.body.verdict).toMatch(/^The file was changed after it was signed: /);
+    // Said once (issue 13 §8: it used to read "altered after it was signed: The file was changed…").
+    expect(response.body.verdict.match(/after it was signed/g)).toHaveLength(1);
   });
 
   it('the unsigned render is named as such; another organisation finds no match', async () => {

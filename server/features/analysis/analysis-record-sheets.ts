@@ -3,6 +3,7 @@ import type { ExportColumn } from '../../platform/export/export-columns.ts';
 import { type PlannedSheet, planSheet, type RowStyle } from '../../platform/export/workbook-writer.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
 import { CAUTION } from './analysis-view.ts';
+import { standingSentences } from './study-snapshot.ts';
 
 /**
  * The workbook sheets that record what a run was: "About" (the run, study and dataset it belongs
@@ -25,6 +26,8 @@ export function aboutSheet(run: AnalysisRunRecord): PlannedSheet {
     ['Lower limit', run.study.lowerLimit],
     ['Upper limit', run.study.upperLimit],
     ['Storage temperature (°C)', run.study.storageTemperatureC],
+    ['Study version', run.studyStanding.versionNumber],
+    ['Study changed since', standingSentences(run.studyStanding).join(' | ') || 'not changed'],
     ['Dataset', run.datasetId],
     ['Dataset SHA-256', run.datasetSha256],
     ['Engine version', run.engineVersion],

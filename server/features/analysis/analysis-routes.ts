@@ -17,6 +17,7 @@ import { renderPage } from '../../platform/web/render-page.ts';
 import { analysisCsv, exportFileName, writeAnalysisWorkbook } from './analysis-export.ts';
 import { excludePoint, getAnalysisRun, runAnalysis } from './analysis-runs.ts';
 import { analysisPageModel, runFigures } from './analysis-view.ts';
+import { runRetirement } from './run-retirement.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
 
@@ -86,7 +87,10 @@ export function analysisRoutes(services: AppServices): Router {
   router.get('/analyses/:id', requireRole(...READERS), async (req, res) => {
     const { id } = idParamSchema.parse(req.params);
     const run = await getAnalysisRun(services.db, req.user!.organisationId, id);
-    renderPage(req, res, 'analysis', analysisPageModel(run, req.user!.roles.includes('analyst')));
+    renderPage(req, res, 'analysis', {
+      ...analysisPageModel(run, req.user!.roles.includes('analyst')),
+      ...(await runRetirement(services.db, req.user!, run)),
+    });
   });
 
   // "Run again with other options" on the analysis page: same dataset and exclusions, new options.

@@ -14,7 +14,9 @@ import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import type { Executor } from '../../platform/db/client.ts';
 import { analysisRuns, datasets, studies, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { assertNotRetired } from '../retirement/index.ts';
 import { applyExclusions, type ResolvedExclusion } from './analysis-exclusions.ts';
+import { linkRunToStudyVersion, type StudyStanding, studyAsRun } from './study-snapshot.ts';
 
 /** Who asked: attributable to a person, or to the system for the demo seed. */
 export interface AnalysisActor {
@@ -45,6 +47,15 @@ export function engineOptions(options: AnalysisOptions, study: Study): DatasetOp
     ...(study.lowerLimit === null ? {} : { lowerLimit: study.lowerLimit }),
     ...(study.upperLimit === null ? {} : { upperLimit: study.upperLimit }),
     ...(study.storageTemperatureC === null ? {} : { storageTemperatureC: study.storageTemperatureC }),
+    // The protocol's working order, used only where the data name none (issue 12 §3).
+    ...(study.workingOrder === null || study.workingOrder === undefined
+      ? {}
+      : {
+          workingOrder: {
+            order: study.workingOrder as 0 | 1 | 2,
+            reason: study.workingOrderReason || 'stated by the study',
+          },
+        }),
     direction: study.direction,
     // The study's Q1E declaration; the long-term condition is its storage temperature.
     q1e: {
@@ -81,6 +92,7 @@ export async function runAnalysis(
     .innerJoin(studies, eq(studies.id, datasets.studyId))
     .where(and(eq(datasets.id, input.datasetId), eq(datasets.organisationId, input.organisationId)));
   if (!found) throw new HttpError(404, `There is no dataset ${input.datasetId} in your organisation.`);
+  await assertNotRetired(db, input.organisationId, 'dataset', input.datasetId);
   const { dataset, study } = found;
   const { series, resolved } = applyExclusions(dataset.series, input.exclusions ?? []);
   const settings = engineOptions(options, study);
@@ -113,6 +125,11 @@ export async function runAnalysis(
         runBy: input.actor.userId,
       })
       .returning({ id: analysisRuns.id });
+    const studyVersion = await linkRunToStudyVersion(tx, {
+      runId: run!.id,
+      usedStudy: study,
+      recordedBy: input.actor.userId,
+    });
     await appendAuditEvent(tx, {
       organisationId: input.organisationId,
       actorUserId: input.actor.userId,
@@ -124,6 +141,7 @@ export async function runAnalysis(
         studyId: study.id,
         datasetId: dataset.id,
         datasetSha256: dataset.sha256,
+        studyVersion,
         engineVersion: ENGINE_VERSION,
         options: storedOptions,
         exclusions: resolved,
@@ -211,7 +229,10 @@ export interface AnalysisRunRecord {
   organisationId: number;
   studyId: number;
   studyTitle: string;
+  /** The study as this run was computed against it (its study version), not as it is today. */
   study: Study;
+  /** The run's study version and the versions recorded since. */
+  studyStanding: StudyStanding;
   datasetId: number;
   datasetSha256: string;
   options: { analyst: AnalysisOptions; engine: DatasetOptions };
@@ -248,12 +269,14 @@ export async function getAnalysisRun(
   if (!row) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
   const exclusions = row.run.exclusions as ResolvedExclusion[];
   const { series } = applyExclusions(row.dataset.series, exclusions);
+  const frozen = await studyAsRun(db, row.run, row.study);
   return {
     id: row.run.id,
     organisationId: row.run.organisationId,
     studyId: row.study.id,
-    studyTitle: row.study.title,
-    study: row.study,
+    studyTitle: frozen.study.title,
+    study: frozen.study,
+    studyStanding: frozen.standing,
     datasetId: row.run.datasetId,
     datasetSha256: row.run.datasetSha256,
     options: row.run.options as AnalysisRunRecord['options'],

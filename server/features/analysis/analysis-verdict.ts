@@ -24,8 +24,16 @@ const WARNING_TITLES: Record<string, string> = {
   extrapolation: 'Extrapolation beyond the observed time',
   'series-not-analysed': 'Series not analysed',
   'order-disagreement': 'Series disagree on the order',
+  'no-order-named': 'No series named an order',
   'arrhenius-extrapolation': 'Arrhenius extrapolation',
   'non-finite-replaced': 'Numbers not estimable',
+};
+
+/** Why the Arrhenius rate constants are of their order, in the verdict's words. */
+const ARRHENIUS_ORDER_WHY: Record<string, string> = {
+  analyst: 'order fixed by the analyst',
+  study: 'the study’s working order, as no series named an order',
+  data: 'the order with the lowest summed AICc over the series',
 };
 
 interface ShelfLifeEntry {
@@ -86,11 +94,16 @@ export function verdictSummary(
   }
   const ea = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|activation-energy'));
   const predicted = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|predicted-k'));
+  const deltaH = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|enthalpy-of-activation'));
+  const deltaS = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|entropy-of-activation'));
   if (ea?.cell.value) {
+    const source = ARRHENIUS_ORDER_WHY[String(analysis.arrhenius?.orderSource)] ?? '';
     summary.push(
-      `Arrhenius (${arrheniusModel!.order}): Ea = ${ea.cell.text} ${ea.cell.unit}${ea.cell.hasInterval ? ` (95 % CI ${ea.cell.interval})` : ''}${predicted?.cell.value ? `; ${predicted.label} ${predicted.cell.text} ${predicted.cell.unit}` : ''}.`,
+      `Arrhenius (${arrheniusModel!.order} rate constants, ${source}): Ea = ${ea.cell.text} ${ea.cell.unit}${ea.cell.hasInterval ? ` (95 % CI ${ea.cell.interval})` : ''}${predicted?.cell.value ? `; ${predicted.label} ${predicted.cell.text} ${predicted.cell.unit}` : ''}${deltaH?.cell.value ? `; Eyring ΔH‡ = ${deltaH.cell.text} ${deltaH.cell.unit}${deltaH.cell.hasInterval ? ` (CI ${deltaH.cell.interval})` : ''}` : ''}${deltaS?.cell.value ? `, ΔS‡ = ${deltaS.cell.text} ${deltaS.cell.unit}${deltaS.cell.hasInterval ? ` (CI ${deltaS.cell.interval})` : ''}` : ''}.`,
     );
   }
+  const noneNamed = analysis.warnings.find((warning) => warning.code === 'no-order-named');
+  if (noneNamed) summary.push(`Warning: ${readableNumbers(noneNamed.message)}`);
   const analysed = analysis.series.filter((result) => result.analysis);
   const named = analysed.filter(
     (result) => result.analysis!.orderSource === 'data' && result.analysis!.selectedOrder !== null,
@@ -99,8 +112,14 @@ export function verdictSummary(
   summary.push(
     fixed
       ? `Reaction order fixed by the analyst at ${MODEL_NAMES[String(fixedOrder)]} for all ${analysed.length} series; each series’ section says what its data alone show.`
-      : `Reaction order from the data: named for ${named.length} of ${analysed.length} series${named.length < analysed.length ? ' (the others cannot tell the orders apart; see each series)' : ''}.`,
+      : `Reaction order from the data: named for ${named.length} of ${analysed.length} series${named.length < analysed.length ? ' (the others cannot tell the orders apart; each shows its plausible laws and model-averaged t90; see each series)' : ''}.`,
   );
+  const working = analysed.filter((result) => result.analysis!.orderSource === 'study');
+  if (!fixed && working.length > 0) {
+    summary.push(
+      `Working order from the study (${MODEL_NAMES[String(working[0]!.analysis!.reportedOrder)]}: ${working[0]!.analysis!.workingOrderReason ?? ''}) used for the ${working.length} series whose data name no order; it is the protocol's order, not one the data chose.`,
+    );
+  }
   if (analysed.length < analysis.series.length)
     summary.push(`${analysis.series.length - analysed.length} series could not be analysed; see Warnings.`);
 

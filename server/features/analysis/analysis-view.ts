@@ -11,6 +11,7 @@ import { proposalView } from './analysis-proposal-view.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
 import { groupedWarnings, readableNumbers, verdictSummary } from './analysis-verdict.ts';
 import type { NumberCell } from './number-cell.ts';
+import { studyStandingModel } from './study-snapshot.ts';
 
 /**
  * What the analysis page shows, as plain strings and numbers for the Handlebars view. Every
@@ -57,6 +58,27 @@ function numberCell(row: ResultRow | undefined): NumberCell {
     hasInterval: interval !== null,
     unit: row.unit,
     note: readableNumbers(row.note),
+  };
+}
+
+/**
+ * The plausible laws of a series whose order the data do not name, one group per law (its k and
+ * times), then the model averages (t90, time to a limit; never k), all from the result rows.
+ */
+function plausibleView(rows: readonly ResultRow[], seriesId: string) {
+  const own = rows.filter((row) => row.section === 'plausible' && row.seriesId === seriesId);
+  if (own.length === 0) return null;
+  const models = [...new Set(own.map((row) => row.model))].filter((model) => model !== 'average');
+  return {
+    laws: models.map((model) => ({
+      name: MODEL_NAMES[model ?? ''] ?? model,
+      rows: own
+        .filter((row) => row.model === model)
+        .map((row) => ({ label: row.label, cell: numberCell(row) })),
+    })),
+    averages: own
+      .filter((row) => row.model === 'average')
+      .map((row) => ({ label: row.label, cell: numberCell(row) })),
   };
 }
 
@@ -142,7 +164,13 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         ? `${formatSignificant(fitted.timeSpan[0], 3)} to ${formatSignificant(fitted.timeSpan[1], 3)} ${fitted.timeUnit}`
         : '',
       verdict: readableNumbers(fitted?.verdict ?? ''),
-      orderSource: fitted?.orderSource === 'analyst' ? 'fixed by the analyst' : 'from the data',
+      orderSource:
+        fitted?.orderSource === 'analyst'
+          ? 'fixed by the analyst'
+          : fitted?.orderSource === 'study'
+            ? `working order from the study: ${fitted.workingOrderReason ?? ''}`
+            : 'from the data',
+      plausible: plausibleView(rows, result.id),
       reportedName: reported === null ? 'none named' : MODEL_NAMES[reported],
       errorModel: fitted ? `${fitted.errorModel} (${fitted.errorModelChoice.reason})` : '',
       fractionReacted: formatPercent(fitted?.fractionReacted ?? null),
@@ -172,7 +200,13 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
   const arrheniusModel = arrhenius
     ? {
         order: arrhenius.order === null ? 'none' : MODEL_NAMES[String(arrhenius.order)],
-        orderSource: arrhenius.orderSource === 'analyst' ? 'fixed by the analyst' : 'lowest summed AICc',
+        orderSource:
+          arrhenius.orderSource === 'analyst'
+            ? 'fixed by the analyst'
+            : arrhenius.orderSource === 'study'
+              ? 'working order from the study, as no series named an order'
+              : 'lowest summed AICc',
+        noOrderNamed: analysis.warnings.find((warning) => warning.code === 'no-order-named')?.message ?? null,
         notApplicable: arrhenius.notApplicableReason,
         rows: rows
           .filter((row) => row.section === 'arrhenius')
@@ -267,6 +301,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
         .filter(Boolean)
         .join(' / '),
     },
+    studyStanding: studyStandingModel(run.studyStanding, run.id),
     warningGroups,
     summary,
     series,

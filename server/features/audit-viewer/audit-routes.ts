@@ -10,8 +10,10 @@ import {
 } from '../../../shared/api/audit.ts';
 import { recordIdSchema } from '../../../shared/api/studies.ts';
 import type { AppServices } from '../../platform/app-services.ts';
+import { configuredAuditAnchor } from '../../platform/audit/audit-anchor.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
-import { appendAuditEvent, type ChainCheck } from '../../platform/audit/audit-trail.ts';
+import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
+import type { OrganisationChainResult } from '../../platform/audit/organisation-chain-result.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
@@ -120,6 +122,37 @@ export function auditRoutes(services: AppServices): Router {
     await pipeline(Readable.from(chunks), res);
   });
 
+  // The checkpoints that anchor the chain outside the database, with the public keys that verify
+  // them: the companion of the CSV export (see docs/audit-trail-security.md for checking them).
+  router.get('/audit/export-checkpoints.json', requireRole(...AUDITORS), async (req, res) => {
+    const organisation = await auditOrganisation(db, req.user!.organisationId);
+    const anchor = configuredAuditAnchor();
+    const lines = await anchor.readCheckpoints(db);
+    await appendAuditEvent(db, {
+      organisationId: organisation.id,
+      actorUserId: req.user!.id,
+      actorLabel: req.user!.email,
+      action: AUDIT_EXPORTED_ACTION,
+      after: { format: 'checkpoints', checkpoints: lines.length },
+      context: auditContext(req),
+    });
+    const day = new Date().toISOString().slice(0, 10);
+    res.set({
+      'Content-Disposition': `attachment; filename="audit-checkpoints-${organisation.slug}-${day}.json"`,
+      'Cache-Control': 'no-store',
+    });
+    res.json({
+      description:
+        'Signed checkpoints of the audit chain (head event id and hash). Each signature is Ed25519 over the canonical JSON (keys sorted) of the other fields.',
+      publicKeys: anchor.publicKeys(),
+      checkpoints: lines.map((line) =>
+        line.status === 'verified'
+          ? { line: line.line, ...line.checkpoint }
+          : { line: line.line, unverifiable: line.reason },
+      ),
+    });
+  });
+
   router.get('/audit/events/:eventId', requireRole(...AUDITORS), async (req, res) => {
     const eventId = recordIdSchema.parse(req.params.eventId);
     const organisation = await auditOrganisation(db, req.user!.organisationId);
@@ -170,8 +203,8 @@ export function auditRoutes(services: AppServices): Router {
 }
 
 /** The outcome a chain-check event recorded, read defensively (it is data from the database). */
-function chainOutcome(row: AuditEventRow): ChainCheck | null {
-  const value = row.afterValue as Partial<ChainCheck> | null;
+function chainOutcome(row: AuditEventRow): Partial<OrganisationChainResult> | null {
+  const value = row.afterValue as Partial<OrganisationChainResult> | null;
   if (!value || typeof value.ok !== 'boolean' || typeof value.eventsChecked !== 'number') return null;
-  return value as ChainCheck;
+  return value;
 }

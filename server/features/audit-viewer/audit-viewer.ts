@@ -15,8 +15,14 @@
 import { and, count, desc, eq, gte, ilike, lt, type SQL, sql } from 'drizzle-orm';
 import { AUDIT_PAGE_SIZE, type AuditFilter } from '../../../shared/api/audit.ts';
 import { isKnownTimeZone, wallClockWithOffset } from '../../../shared/time/zoned-time.ts';
+import { type AuditAnchor, configuredAuditAnchor } from '../../platform/audit/audit-anchor.ts';
 import { GENESIS_HASH } from '../../platform/audit/audit-hash.ts';
-import { appendAuditEvent, type ChainCheck, verifyAuditChain } from '../../platform/audit/audit-trail.ts';
+import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
+import { checkAuditTrail } from '../../platform/audit/audit-trail-check.ts';
+import {
+  type OrganisationChainResult,
+  organisationChainResult,
+} from '../../platform/audit/organisation-chain-result.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database, Executor } from '../../platform/db/client.ts';
 import { auditEvents, organisations, users } from '../../platform/db/schema/index.ts';
@@ -165,22 +171,24 @@ export async function auditFilterChoices(db: Executor, organisationId: number) {
   };
 }
 
-export interface ChainCheckOutcome extends ChainCheck {
+export interface ChainCheckOutcome extends OrganisationChainResult {
   /** The `audit.chain-checked` event that records this check. */
   eventId: number;
 }
 
 /**
- * Recomputes the whole chain and records the check — with its outcome — as an audit event of the
- * caller's organisation. Accepts a transaction, so a check can see (and be rolled back with) rows
- * changed inside it.
+ * Checks the whole chain against itself and the checkpoints outside the database, and records
+ * the caller's organisation's own result (its events, its findings) as an audit event of that
+ * organisation. Accepts a transaction, so a check can see (and be rolled back with) rows changed
+ * inside it.
  */
 export async function checkAuditChain(
   executor: Executor,
   actor: SessionUser,
   context: Record<string, unknown>,
+  anchor: AuditAnchor = configuredAuditAnchor(),
 ): Promise<ChainCheckOutcome> {
-  const check = await verifyAuditChain(executor);
+  const check = organisationChainResult(await checkAuditTrail(executor, anchor), actor.organisationId);
   const { id } = await appendAuditEvent(executor, {
     organisationId: actor.organisationId,
     actorUserId: actor.id,

@@ -25,6 +25,7 @@ import type { Database } from '../../platform/db/client.ts';
 import { datasets } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import type { AuditContext } from '../studies/index.ts';
+import { checkDuplicateImport } from './duplicate-import.ts';
 import { headerSignature, saveMapping } from './saved-mappings.ts';
 import { findUpload, forgetUploadSheets, sha256Hex, sheetsOfUpload } from './uploads.ts';
 
@@ -160,6 +161,7 @@ export async function importUpload(
   mapping: ColumnMapping,
   saveMappingAs: string | undefined,
   context: AuditContext,
+  duplicateReason?: string,
 ): Promise<ImportResponse> {
   const upload = await findUpload(db, actor.organisationId, uploadId);
   const sheets = await sheetsOfUpload(upload);
@@ -175,6 +177,11 @@ export async function importUpload(
   const storedMapping: ColumnMapping = { ...mapping, sheet: sheet.name };
 
   const stored = await db.transaction(async (tx) => {
+    const duplicateOf = await checkDuplicateImport(tx, {
+      uploadId: upload.id,
+      mapping: storedMapping,
+      reason: duplicateReason,
+    });
     const [dataset] = await tx
       .insert(datasets)
       .values({
@@ -204,6 +211,7 @@ export async function importUpload(
         seriesIds: series.map((entry) => entry.id),
         pointCount,
         sha256,
+        ...(duplicateOf === null ? {} : { duplicateOf, duplicateReason: duplicateReason?.trim() }),
       },
       context,
     });

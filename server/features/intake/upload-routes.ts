@@ -147,6 +147,7 @@ export function uploadRoutes(services: AppServices): Router {
       request.mapping,
       request.saveMappingAs,
       auditContext(req),
+      request.duplicateReason,
     );
     res.status(201).json(body);
   });

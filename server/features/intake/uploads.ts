@@ -6,8 +6,12 @@
  * password-protected workbook) goes to the workbook reader, which tells those cases apart; so
  * does any file named .xlsx/.xls whatever its content, so a mislabelled file gets the workbook
  * reader's message. Other content that reads as text is a CSV; anything else (control bytes in
- * the first kilobytes) is refused. A file whose every sheet is empty is refused too. Refusals are
- * `HttpError(422)` with a message the analyst can act on; nothing is stored.
+ * the first kilobytes) is refused. The file is then read whole, once, in a parse worker
+ * (`parse-pool.ts`, `readers/read-upload.ts`): a hostile workbook (macros, DTD or entity
+ * declarations, external references), a file past the reading limits, a file whose every sheet
+ * is empty and one no mapping could import (a header only, a single point) are refused there.
+ * Refusals are `HttpError(422)` with a message the analyst can act on, naming the part, sheet,
+ * row or line; nothing is stored.
  *
  * The stored original and its audit event are written in one transaction.
  */
@@ -29,9 +33,7 @@ import type { Database, Executor } from '../../platform/db/client.ts';
 import { uploads } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import type { AuditContext } from '../studies/index.ts';
-import { FileReadError } from './readers/file-read-error.ts';
-import { readCsv } from './readers/read-csv.ts';
-import { readWorkbook } from './readers/read-workbook.ts';
+import { checkFileInWorker, readSheetsInWorker } from './parse-pool.ts';
 
 export type UploadFormat = 'xlsx' | 'csv';
 export type Upload = typeof uploads.$inferSelect;
@@ -74,9 +76,10 @@ export function detectFormat(bytes: Uint8Array, fileName = ''): UploadFormat {
 
 /**
  * Sheets of recently read files, by format, name and SHA-256 of the content. One upload is read
- * for the check on upload, for the preview, for the dry run and for the import, and a
- * 100,000-row workbook takes about 0.35 s to read and 20 MB to hold. The cache only saves work: a miss (another instance, a restart) reads the file again,
- * and since the key is the content's hash a hit gives exactly what reading would. Grids handed out
+ * for the preview, for the mapping's dry run and for the import (the check on upload keeps its
+ * cells in the worker), and a 100,000-row workbook takes about 0.35 s to read and 20 MB to hold.
+ * The cache only saves work: a miss (another instance, a restart) reads the file again, and
+ * since the key is the content's hash a hit gives exactly what reading would. Grids handed out
  * are shared, and callers treat them as read-only (the intake never writes to a grid).
  */
 const SHEET_CACHE_ENTRIES = 4;
@@ -108,30 +111,9 @@ export async function readUploadedSheets(
     sheetCache.set(key, cached);
     return cached;
   }
-  const sheets = await readSheets(bytes, format, fileName);
+  const sheets = await readSheetsInWorker(bytes, format, fileName);
   sheetCache.set(key, sheets);
   while (sheetCache.size > SHEET_CACHE_ENTRIES) sheetCache.delete(sheetCache.keys().next().value as string);
-  return sheets;
-}
-
-async function readSheets(bytes: Uint8Array, format: UploadFormat, fileName: string): Promise<SheetGrid[]> {
-  let sheets: SheetGrid[];
-  try {
-    const csvName = fileName.replace(/\.[^.]+$/, '').trim() || 'Sheet1';
-    sheets = format === 'xlsx' ? await readWorkbook(bytes) : readCsv(bytes, csvName);
-  } catch (error) {
-    if (error instanceof FileReadError) throw new HttpError(422, error.message, { code: error.code });
-    throw error;
-  }
-  if (sheets.length === 0) throw new HttpError(422, 'The workbook has no sheets.', { code: 'no-sheets' });
-  const blank = sheets.filter((sheet) => sheet.rows.every((row) => row.every((cell) => isBlankCell(cell))));
-  if (blank.length === sheets.length) {
-    const names = sheets.map((sheet) => `"${sheet.name}"`).join(', ');
-    const what = sheets.length === 1 ? `The sheet ${names} is empty` : `Every sheet (${names}) is empty`;
-    throw new HttpError(422, `${what}: there is no data to map. Check that you chose the right file.`, {
-      code: 'empty-sheet',
-    });
-  }
   return sheets;
 }
 
@@ -155,7 +137,8 @@ export async function storeUpload(
 ): Promise<Pick<Upload, 'id' | 'sha256' | 'format' | 'sizeBytes'>> {
   const format = detectFormat(file.bytes, file.fileName);
   const sha256 = sha256Hex(file.bytes);
-  await readUploadedSheets(file.bytes, format, file.fileName, sha256);
+  // The dry run reads the whole file in a worker; its cells stay there (the preview reads again).
+  await checkFileInWorker(file.bytes, format, file.fileName);
   return db.transaction(async (tx) => {
     const [upload] = await tx
       .insert(uploads)

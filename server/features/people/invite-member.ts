@@ -111,6 +111,7 @@ export async function inviteMember(
         email: input.email,
         fullName: input.fullName,
         roles: input.roles,
+        signingRoleConfirmed: input.roles.includes('reviewer') && input.confirmSigningRole,
         expiresAt: invitation!.expiresAt,
         replacesInvitations: replaced.map((row) => row.id),
       },

@@ -16,6 +16,7 @@ import { noticeAndBack, takeNotice } from '../../platform/web/admin-notice.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { describePasswordPolicy, loadOrganisationSettings } from '../settings/index.ts';
 import { inviteMember } from './invite-member.ts';
+import { lockCause } from './lock-cause.ts';
 import { requestPasswordReset } from './password-reset.ts';
 import { listPendingInvitations, revokeInvitation } from './pending-invitations.ts';
 import {
@@ -42,6 +43,7 @@ function inviteLocals(values: Record<string, unknown>, errors: Record<string, st
     values,
     errors,
     errorCount: Object.keys(errors).length,
+    signingConfirmed: values.confirmSigningRole === 'yes',
     roles: MEMBER_ROLES.map((role) => ({
       role,
       description: ROLE_DESCRIPTIONS[role],
@@ -76,7 +78,7 @@ export function userAdminRoutes(services: AppServices): Router {
   });
 
   router.get('/admin/people/invite', requireRole('admin'), (req, res) => {
-    renderPage(req, res, 'admin-people-invite', inviteLocals({ roles: ['reviewer'] }, {}));
+    renderPage(req, res, 'admin-people-invite', inviteLocals({ roles: [] }, {}));
   });
 
   router.post('/admin/people/invite', requireRole('admin'), async (req, res) => {
@@ -122,11 +124,15 @@ export function userAdminRoutes(services: AppServices): Router {
     const userId = recordIdSchema.parse(req.params.userId);
     const organisationId = req.user!.organisationId;
     const member = await findMember(db, organisationId, userId);
-    const history = await memberHistory(db, organisationId, userId);
+    const [history, cause] = await Promise.all([
+      memberHistory(db, organisationId, userId),
+      member.locked ? lockCause(db, organisationId, userId) : null,
+    ]);
     renderPage(req, res, 'admin-people-person', {
       title: member.fullName,
       notice: takeNotice(req),
       member,
+      lockCause: cause,
       isSelf: member.id === req.user!.id,
       roles: MEMBER_ROLES.map((role) => ({
         role,

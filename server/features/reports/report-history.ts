@@ -1,4 +1,5 @@
 import { and, asc, eq, type SQL, sql } from 'drizzle-orm';
+import { type ReviewStandingName, reportRenditionUrl } from '../../../shared/api/report-standing.ts';
 import {
   type ReportDetail,
   type ReportFilterOptions,
@@ -17,6 +18,7 @@ import {
   users,
 } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { VERSION_STANDING, versionStandings } from './report-standing.ts';
 
 /**
  * Reading reports: the organisation's history a page at a time with its filters, one report with
@@ -37,6 +39,8 @@ type ListRow = {
   version_count: string | number;
   latest_version: number;
   latest_status: ReportListItem['latest']['renderStatus'];
+  latest_review: ReviewStandingName;
+  retired: boolean;
 };
 
 const iso = (value: Date | string) => (value instanceof Date ? value : new Date(value)).toISOString();
@@ -45,15 +49,25 @@ const iso = (value: Date | string) => (value instanceof Date ? value : new Date(
 function listConditions(organisationId: number, query: ReportListQuery): SQL {
   const conditions: SQL[] = [sql`r.organisation_id = ${organisationId}`];
   if (query.status) conditions.push(sql`lv.render_status = ${query.status}`);
+  // Reports with a version in that review standing (a signed v1 counts while v2 is a draft).
+  if (query.review)
+    conditions.push(sql`exists (select 1 from report_versions v
+      left join report_reviews rr on rr.report_version_id = v.id
+      where v.report_id = r.id and ${VERSION_STANDING} = ${query.review})`);
   if (query.studyId) conditions.push(sql`r.study_id = ${query.studyId}`);
   if (query.authorId) conditions.push(sql`r.author_id = ${query.authorId}`);
   if (query.from) conditions.push(sql`r.created_at >= (${query.from}::date)::timestamp at time zone 'UTC'`);
   if (query.to) conditions.push(sql`r.created_at < (${query.to}::date + 1)::timestamp at time zone 'UTC'`);
+  if (!query.includeRetired) conditions.push(sql`not ${REPORT_RETIRED}`);
   return sql.join(conditions, sql` and `);
 }
 
+/** Whether report `r` was retired (server/features/retirement). */
+const REPORT_RETIRED = sql`exists (select 1 from retirements rt where rt.record_type = 'report' and rt.record_id = r.id)`;
+
 const LATEST_VERSION = sql`join lateral (
-    select v.version_number, v.render_status from report_versions v
+    select v.version_number, v.render_status, ${VERSION_STANDING} as review_state
+    from report_versions v left join report_reviews rr on rr.report_version_id = v.id
     where v.report_id = r.id order by v.version_number desc limit 1
   ) lv on true`;
 
@@ -73,7 +87,8 @@ export async function listReports(
       s.id as study_id, s.title as study_title, s.product as study_product,
       u.id as author_id, u.full_name as author_name,
       (select count(*) from report_versions c where c.report_id = r.id) as version_count,
-      lv.version_number as latest_version, lv.render_status as latest_status
+      lv.version_number as latest_version, lv.render_status as latest_status,
+      lv.review_state as latest_review, ${REPORT_RETIRED} as retired
     from reports r
     join studies s on s.id = r.study_id
     join users u on u.id = r.author_id
@@ -90,9 +105,11 @@ export async function listReports(
       author: { id: row.author_id, fullName: row.author_name },
       createdAt: iso(row.created_at),
       versionCount: Number(row.version_count),
+      retired: row.retired === true,
       latest: {
         versionNumber: row.latest_version,
         renderStatus: row.latest_status,
+        reviewState: row.latest_review,
         pdfUrl: row.latest_status === 'ready' ? reportPdfUrl(row.id, row.latest_version) : null,
       },
     })),
@@ -151,6 +168,7 @@ export async function getReportDetail(
     .innerJoin(users, eq(users.id, reportVersions.requestedBy))
     .where(eq(reportVersions.reportId, reportId))
     .orderBy(asc(reportVersions.versionNumber));
+  const standings = await versionStandings(db, reportId);
   return {
     id: row.report.id,
     reportNumber: row.report.reportNumber,
@@ -163,6 +181,11 @@ export async function getReportDetail(
     analysisUrl: `/analyses/${row.report.analysisRunId}`,
     versions: versions.map(({ version, templateVersionNumber, requestedBy }) => {
       const ready = version.renderStatus === 'ready';
+      const standing = standings.get(version.versionNumber) ?? {
+        reviewState: 'draft' as const,
+        supersededBy: null,
+        signedPdfSha256: null,
+      };
       return {
         versionNumber: version.versionNumber,
         analysisRunId: version.analysisRunId,
@@ -180,7 +203,9 @@ export async function getReportDetail(
         renderStartedAt: version.renderStartedAt?.toISOString() ?? null,
         finishedAt: version.finishedAt?.toISOString() ?? null,
         pdfUrl: ready ? reportPdfUrl(reportId, version.versionNumber) : null,
+        renditionUrl: ready ? reportRenditionUrl(reportId, version.versionNumber) : null,
         htmlUrl: ready ? reportHtmlUrl(reportId, version.versionNumber) : null,
+        ...standing,
       };
     }),
   };

@@ -1,4 +1,4 @@
-import { Router } from 'express';
+import { type Request, type Response, Router } from 'express';
 import {
   type CreateReportResponse,
   createReportRequestSchema,
@@ -12,8 +12,9 @@ import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { openRenderQueue } from './queue/render-queue.ts';
-import { versionHtml, versionPdf } from './report-download.ts';
+import { type PdfKind, versionHtml, versionPdf } from './report-download.ts';
 import { getReportDetail, listReports, reportFilterOptions } from './report-history.ts';
+import { withRecordStanding } from './report-record-standing.ts';
 import { type CreatedReport, createReport, createReportVersion } from './reports.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -83,10 +84,17 @@ export function reportRoutes(services: AppServices): Router {
     const { id } = reportIdParamSchema.parse(req.params);
     res
       .set('cache-control', 'no-store')
-      .json(await getReportDetail(services.db, req.user!.organisationId, id));
+      .json(
+        await withRecordStanding(
+          services.db,
+          req.user!.organisationId,
+          await getReportDetail(services.db, req.user!.organisationId, id),
+        ),
+      );
   });
 
-  router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), async (req, res) => {
+  /** The version's PDF (sealed once signed, so no longer immutable under one URL) or its rendition. */
+  const sendPdf = (kind: PdfKind) => async (req: Request, res: Response) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
     const file = await versionPdf({
       db: services.db,
@@ -95,16 +103,23 @@ export function reportRoutes(services: AppServices): Router {
       reportId: id,
       versionNumber: version,
       requestId: req.id ?? null,
+      kind,
     });
     res
       .set({
         'content-type': 'application/pdf',
         'content-disposition': `attachment; filename="${file.fileName}"`,
         etag: `"${file.sha256}"`,
-        'cache-control': 'private, max-age=31536000, immutable',
+        'cache-control': kind === 'rendition' ? 'private, max-age=31536000, immutable' : 'private, no-cache',
       })
       .send(file.pdf);
-  });
+  };
+  router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), sendPdf('current'));
+  router.get(
+    '/api/reports/:id/versions/:version/rendition.pdf',
+    requireRole(...READERS),
+    sendPdf('rendition'),
+  );
 
   router.get('/api/reports/:id/versions/:version/html', requireRole(...READERS), async (req, res) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);

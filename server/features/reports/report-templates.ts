@@ -120,7 +120,14 @@ export async function createTemplateVersion(
 /** Makes `versionId` the version new reports use; an audit event records the old and new pointer. */
 export async function publishTemplateVersion(
   db: Executor,
-  input: { organisationId: number; templateId: number; versionId: number; actor: TemplateActor },
+  input: {
+    organisationId: number;
+    templateId: number;
+    versionId: number;
+    actor: TemplateActor;
+    /** The admin's reason for the change (none when the system installs the default). */
+    reason?: string;
+  },
 ): Promise<void> {
   await transaction(db, async (tx) => {
     const [template] = await tx
@@ -159,7 +166,12 @@ export async function publishTemplateVersion(
       recordType: 'report_template',
       recordId: template.id,
       before: { publishedVersionId: before },
-      after: { publishedVersionId: version.id, versionNumber: version.versionNumber, sha256: version.sha256 },
+      after: {
+        publishedVersionId: version.id,
+        versionNumber: version.versionNumber,
+        sha256: version.sha256,
+        ...(input.reason === undefined ? {} : { reason: input.reason }),
+      },
     });
   });
 }

@@ -21,6 +21,7 @@ import {
 } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { getAnalysisRun } from '../analysis/index.ts';
+import { assertNotRetired } from '../retirement/index.ts';
 import type { RenderQueue } from './queue/render-queue.ts';
 import { templateVersionForNewReports } from './report-templates.ts';
 
@@ -115,6 +116,7 @@ export async function createReport(
   const input = createReportRequestSchema.parse(request);
   return db.transaction(async (tx) => {
     const run = await getAnalysisRun(tx, actor.organisationId, runId);
+    await assertNotRetired(tx, actor.organisationId, 'analysis_run', runId);
     const title = input.title?.trim() || `${run.study.title} — kinetics report`;
     const reportNumber = await allocateReportNumber(tx, actor.organisationId);
     const [report] = await tx

@@ -1,3 +1,4 @@
+import { anchorAuditChainNow } from '../../platform/audit/audit-anchoring.ts';
 import { commitThenMail } from '../../platform/mail/mail-transport.ts';
 import { isoDateTime } from '../reports/index.ts';
 import type { ReviewTarget } from './review-action.ts';
@@ -65,6 +66,8 @@ export async function signReportVersion({
     const id = await recordSignature(tx, context, subject, signature);
     return { result: id, mail: await signedMail(tx, subject, signature) };
   });
+  // Every signature is anchored outside the database at once (docs/audit-trail-security.md).
+  await anchorAuditChainNow(context.db);
   return {
     signatureId,
     signedAt: signed.signedAt,

@@ -1,5 +1,7 @@
+import { reviewStandingText } from '../../../shared/api/report-standing.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Executor } from '../../platform/db/client.ts';
+import { versionStandings } from '../reports/index.ts';
 import { organisationTimeZone } from './organisation-record.ts';
 import type { ReviewTarget } from './review-action.ts';
 import { reviewFacts } from './review-facts.ts';
@@ -29,15 +31,17 @@ function versionView({ report, version }: ReviewVersion) {
     renderStatus: version.renderStatus,
     ready,
     pdfSha256: version.pdfSha256,
-    pdfUrl: ready ? `${base}/pdf` : null,
+    pdfUrl: ready ? `${base}/rendition.pdf` : null,
     htmlUrl: ready ? `${base}/html` : null,
   };
 }
 
-function reviewView({ review }: ReviewVersion) {
+function reviewView({ review }: ReviewVersion, supersededBy: number | null) {
   return {
     state: review.state,
     stateText: STATE_WORDS[review.state],
+    standingText: reviewStandingText(supersededBy === null ? review.state : 'superseded', supersededBy),
+    supersededBy,
     round: review.round,
     lastComment: review.lastComment,
     returned: review.state === 'returned',
@@ -64,11 +68,12 @@ export async function reviewPageModel(options: {
     signatureMeanings(db, actor.organisationId),
   ]);
   const { report, version, review } = subject;
-  const [rounds, signatureList, signedOutput, authorName] = await Promise.all([
+  const [rounds, signatureList, signedOutput, authorName, standings] = await Promise.all([
     loadRounds(db, version.id, review.round),
     loadSignatureList(db, version.id),
     loadSignedOutput(db, version),
     loadAuthorName(db, report.authorId),
+    versionStandings(db, report.id),
   ]);
   const offers = reviewPageOffers(reviewFacts(subject, actor, rounds.assignments));
   const [candidates, lock] = await Promise.all([
@@ -78,7 +83,7 @@ export async function reviewPageModel(options: {
   return {
     report: { id: report.id, number: report.reportNumber, title: report.title, author: authorName },
     version: versionView(subject),
-    review: reviewView(subject),
+    review: reviewView(subject, standings.get(version.versionNumber)?.supersededBy ?? null),
     assigned: rounds.current.map((person) => ({ ...person, isMe: person.id === actor.id })),
     rounds: rounds.history,
     isAuthor: report.authorId === actor.id,

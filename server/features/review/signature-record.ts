@@ -86,6 +86,8 @@ async function appendSignedEvent(
       reportNumber: report.reportNumber,
       versionNumber: version.versionNumber,
       state: 'signed',
+      // The round does not change by signing; leaving it out read as "round removed".
+      round: review.round,
       signatureId: signature.id,
       signerPrintedName: signer.fullName,
       meaning: request.meaning,

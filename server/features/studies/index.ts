@@ -1,3 +1,4 @@
 /** What other features and the app may use from the studies feature. */
 export * from './studies.ts';
 export * from './study-routes.ts';
+export * from './study-versions.ts';

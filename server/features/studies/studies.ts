@@ -13,6 +13,7 @@ import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database, Executor } from '../../platform/db/client.ts';
 import { analysisRuns, datasets, studies, uploads, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { recordStudyVersion } from './study-versions.ts';
 
 export type Study = typeof studies.$inferSelect;
 
@@ -69,6 +70,13 @@ export async function createStudy(
       .insert(studies)
       .values({ ...input, organisationId: actor.organisationId, createdBy: actor.id })
       .returning();
+    await recordStudyVersion(tx, {
+      study: study!,
+      changedFields: [...STUDY_FIELDS],
+      reason: 'Study created.',
+      origin: 'created',
+      recordedBy: actor.id,
+    });
     await appendAuditEvent(tx, {
       organisationId: actor.organisationId,
       actorUserId: actor.id,
@@ -84,12 +92,17 @@ export async function createStudy(
   });
 }
 
-/** Saves the changed fields; returns the study and the names of the fields that changed. */
+/**
+ * Saves the changed fields as a new study version with the reason for change; returns the study
+ * and the names of the fields that changed. A change without a reason is refused (400, naming the
+ * `reasonForChange` field) and writes nothing.
+ */
 export async function updateStudy(
   db: Database,
   actor: SessionUser,
   studyId: number,
   input: StudyInput,
+  reason: string,
   context: AuditContext,
 ): Promise<{ study: Study; changed: string[] }> {
   return db.transaction(async (tx) => {
@@ -101,6 +114,11 @@ export async function updateStudy(
     if (!current) throw new HttpError(404, `There is no study ${studyId} in your organisation.`);
     const changed = STUDY_FIELDS.filter((field) => !sameValue(current[field], input[field]));
     if (changed.length === 0) return { study: current, changed: [] };
+    const reasonForChange = reason.trim();
+    if (reasonForChange === '') {
+      const message = 'Give the reason for this change: it is kept with the new study version.';
+      throw new HttpError(400, message, [{ field: 'reasonForChange', message }]);
+    }
     const before = Object.fromEntries(changed.map((field) => [field, current[field]]));
     const after = Object.fromEntries(changed.map((field) => [field, input[field]]));
     const [study] = await tx
@@ -108,6 +126,13 @@ export async function updateStudy(
       .set({ ...after, updatedAt: new Date() })
       .where(eq(studies.id, studyId))
       .returning();
+    const version = await recordStudyVersion(tx, {
+      study: study!,
+      changedFields: changed,
+      reason: reasonForChange,
+      origin: 'edited',
+      recordedBy: actor.id,
+    });
     await appendAuditEvent(tx, {
       organisationId: actor.organisationId,
       actorUserId: actor.id,
@@ -116,7 +141,7 @@ export async function updateStudy(
       recordType: 'study',
       recordId: studyId,
       before,
-      after,
+      after: { ...after, reasonForChange, studyVersion: version.versionNumber },
       context,
     });
     return { study: study!, changed };
@@ -150,6 +175,7 @@ export async function studyOverview(db: Executor, organisationId: number, studyI
       seriesNames: sql<string>`(select string_agg(entry->>'id', ', ') from jsonb_array_elements(${datasets.series}) entry)`,
       createdAt: datasets.createdAt,
       createdBy: users.fullName,
+      createdById: datasets.createdBy,
     })
     .from(datasets)
     .innerJoin(users, eq(users.id, datasets.createdBy))
@@ -161,6 +187,7 @@ export async function studyOverview(db: Executor, organisationId: number, studyI
       datasetId: analysisRuns.datasetId,
       runAt: analysisRuns.runAt,
       runBy: users.fullName,
+      runById: analysisRuns.runBy,
       supersedesRunId: analysisRuns.supersedesRunId,
     })
     .from(analysisRuns)

@@ -12,6 +12,8 @@ import { requireRole } from '../../platform/auth/route-policy.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { createStudy, findStudy, listStudies, type Study, studyOverview, updateStudy } from './studies.ts';
 import { declarationSelects, declarationSummary } from './study-declaration-fields.ts';
+import { retiredRows } from './study-retired-rows.ts';
+import { listStudyVersions, reasonRefusal } from './study-versions.ts';
 
 /** Who may read studies: every duty of the product. Only analysts create and change them. */
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
@@ -38,6 +40,8 @@ function formValuesOf(study: Study): FormValues {
     littleChange: study.littleChange,
     supportingData: study.supportingData,
     declarationBasis: study.declarationBasis,
+    workingOrder: study.workingOrder === null ? '' : String(study.workingOrder),
+    workingOrderReason: study.workingOrderReason,
     batches: study.batches.join('\n'),
     notes: study.notes,
   };
@@ -117,6 +121,12 @@ function formLocals(values: FormValues, errors: Record<string, string>, action: 
     values,
     errors,
     errorCount: Object.keys(errors).length,
+    workingOrders: [
+      { value: '', label: 'None: only what the data name' },
+      { value: '0', label: 'Zero order' },
+      { value: '1', label: 'First order' },
+      { value: '2', label: 'Second order' },
+    ].map((option) => ({ ...option, selected: (values.workingOrder ?? '') === option.value })),
     directions: STUDY_DIRECTIONS.map((direction) => ({
       value: direction,
       selected: values.direction === direction,
@@ -192,6 +202,10 @@ export function studyRoutes(services: AppServices): Router {
       criterion: criterion(study.lowerLimit, study.upperLimit, study.unit),
       condition: condition(study.storageTemperatureC, study.storageHumidityPercent),
       declaration: declarationSummary(study),
+      workingOrderText:
+        study.workingOrder === null
+          ? null
+          : `${['zero', 'first', 'second'][study.workingOrder]} order — ${study.workingOrderReason}`,
       canEdit: req.user!.roles.includes('analyst'),
       uploadLimit: formatBytes(UPLOAD_SIZE_LIMIT_BYTES),
       uploads: overview.uploads.map((upload) => ({
@@ -199,8 +213,8 @@ export function studyRoutes(services: AppServices): Router {
         size: formatBytes(upload.sizeBytes),
         shortHash: upload.sha256.slice(0, 12),
       })),
-      datasets: overview.datasets.map((dataset) => ({ ...dataset, shortHash: dataset.sha256.slice(0, 12) })),
-      runs: overview.runs,
+      ...(await retiredRows(services.db, req.user!, overview, req.query.includeRetired === '1')),
+      versions: await listStudyVersions(services.db, studyId),
     });
   });
 
@@ -218,7 +232,23 @@ export function studyRoutes(services: AppServices): Router {
       const locals = formLocals(postedValues(req), fieldErrors(parsed.error), `/studies/${studyId}`, current);
       return renderPage(req, res, 'study-form', locals, 400);
     }
-    const { changed } = await updateStudy(services.db, req.user!, studyId, parsed.data, auditContext(req));
+    const reason = typeof req.body?.reasonForChange === 'string' ? req.body.reasonForChange : '';
+    let changed: string[];
+    try {
+      ({ changed } = await updateStudy(
+        services.db,
+        req.user!,
+        studyId,
+        parsed.data,
+        reason,
+        auditContext(req),
+      ));
+    } catch (error) {
+      const refusal = reasonRefusal(error);
+      if (!refusal) throw error;
+      const locals = formLocals(postedValues(req), refusal, `/studies/${studyId}`, current);
+      return renderPage(req, res, 'study-form', locals, 400);
+    }
     res.redirect(303, `/studies/${studyId}?saved=${changed.length > 0 ? 'updated' : 'unchanged'}`);
   });
 

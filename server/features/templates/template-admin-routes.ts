@@ -97,8 +97,8 @@ export function templateAdminRoutes(services: AppServices): Router {
 
   router.post('/api/admin/templates/:id/publish', admin(), async (req, res) => {
     const { id } = templateIdParamSchema.parse(req.params);
-    const { versionId } = publishTemplateVersionRequestSchema.parse(req.body ?? {});
-    res.json(await publishVersion(db, req.user!, id, versionId));
+    const { versionId, reason } = publishTemplateVersionRequestSchema.parse(req.body ?? {});
+    res.json(await publishVersion(db, req.user!, id, versionId, reason));
   });
 
   router.get('/api/admin/templates/:id/diff', admin(), async (req, res) => {

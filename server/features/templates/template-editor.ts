@@ -38,7 +38,8 @@ import { describeProblem, templateProblems } from './template-editor-preview.ts'
  *
  * Rules, and where they hold:
  * - Versions are immutable and numbered (`report-templates.ts`, and a trigger in the database);
- *   a report keeps the version it was created with, so publishing never changes an earlier report.
+ *   a rendered report version keeps the template version it was printed with, so publishing never
+ *   changes an earlier PDF; a new version of a report is printed with the template published then.
  * - A version is saved and published only when it passes `templateProblems` (it compiles and fills
  *   in with the invented sample); the refusal is a 422 naming part, line and column.
  * - Each action is an audit event in the same transaction: `report-template.version-created`
@@ -211,14 +212,15 @@ export async function saveTemplateVersion(
 
 /**
  * Makes `versionId` the version new reports use. A version earlier than the published one is a
- * rollback and gets its own audit event naming both versions. Refused (422) when the version's
- * text no longer passes the check.
+ * rollback and gets its own audit event naming both versions. Both events carry the admin's
+ * `reason` for the change. Refused (422) when the version's text no longer passes the check.
  */
 export async function publishVersion(
   db: Database,
   user: SessionUser,
   templateId: number,
   versionId: number,
+  reason: string,
 ): Promise<PublishTemplateVersionResponse> {
   return db.transaction(async (tx) => {
     const [template] = await tx
@@ -239,6 +241,7 @@ export async function publishVersion(
       templateId: template.id,
       versionId: version.id,
       actor: actorOf(user),
+      reason,
     });
     const rolledBack = previous !== null && version.versionNumber < previous.versionNumber;
     if (rolledBack) {
@@ -250,7 +253,12 @@ export async function publishVersion(
         recordType: 'report_template',
         recordId: template.id,
         before: { versionId: previous.id, versionNumber: previous.versionNumber, sha256: previous.sha256 },
-        after: { versionId: version.id, versionNumber: version.versionNumber, sha256: version.sha256 },
+        after: {
+          versionId: version.id,
+          versionNumber: version.versionNumber,
+          sha256: version.sha256,
+          reason,
+        },
         context: { templateId: template.id, name: template.name },
       });
     }

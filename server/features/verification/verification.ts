@@ -150,7 +150,8 @@ function judge(
   if (seal.signed && !seal.valid)
     return {
       verdictKind: 'altered',
-      verdict: `The file was altered after it was signed: ${seal.reason} It does not match any signed record.`,
+      // The seal check's reason already says what was altered; say it once.
+      verdict: `${seal.reason} It does not match any signed record.`,
     };
   if (seal.signed && seal.valid)
     return {

@@ -2,10 +2,15 @@ import { sql } from 'drizzle-orm';
 import type { Database, Executor } from '../db/client.ts';
 import { auditEvents } from '../db/schema/index.ts';
 import { auditEventHash, GENESIS_HASH, type HashedAuditContent } from './audit-hash.ts';
+import {
+  ALTERED_REASON,
+  BROKEN_LINK_REASON,
+  storedAuditEvents,
+  TIMESTAMP_FORMAT,
+} from './stored-audit-events.ts';
 
 /** One advisory-lock key for the chain: appends are serialised so each sees its predecessor. */
 const AUDIT_CHAIN_LOCK = 7_305_001;
-const TIMESTAMP_FORMAT = `'YYYY-MM-DD"T"HH24:MI:SS.US"Z"'`;
 
 export interface AuditEventInput {
   organisationId?: number | null;
@@ -21,13 +26,14 @@ export interface AuditEventInput {
 
 /**
  * Appends an event to the audit trail inside the caller's transaction (or a new one), so the
- * event commits or rolls back with the change it describes.
+ * event commits or rolls back with the change it describes. The chain's head is anchored outside
+ * the database by `audit-anchoring.ts`; the full check is `audit-trail-check.ts`.
  */
 export async function appendAuditEvent(executor: Executor, input: AuditEventInput): Promise<{ id: number }> {
   const run = async (tx: Executor) => {
     await tx.execute(sql`select pg_advisory_xact_lock(${AUDIT_CHAIN_LOCK})`);
-    const last = await tx.execute<{ hash: string }>(
-      sql`select hash from audit_events order by id desc limit 1`,
+    const last = await tx.execute<{ id: string; hash: string }>(
+      sql`select id, hash from audit_events order by id desc limit 1`,
     );
     const clock = await tx.execute<{ now: string }>(
       sql.raw(`select to_char(clock_timestamp() at time zone 'UTC', ${TIMESTAMP_FORMAT}) as now`),
@@ -48,6 +54,9 @@ export async function appendAuditEvent(executor: Executor, input: AuditEventInpu
     const [row] = await tx
       .insert(auditEvents)
       .values({
+        // Ids without gaps: the next after the head, taken under the chain's lock (a sequence would
+        // skip the ids of rolled-back appends), so a missing id means a removed event.
+        id: Number(last.rows[0]?.id ?? 0) + 1,
         ...content,
         occurredAt: sql`${content.occurredAt}::timestamptz` as unknown as Date,
         hash: auditEventHash(content),
@@ -75,63 +84,20 @@ export interface ChainCheck {
 /** Recomputes every hash in order and reports the first broken link. */
 export async function verifyAuditChain(db: Executor, batchSize = 1000): Promise<ChainCheck> {
   let previousHash = GENESIS_HASH;
-  let afterId = 0;
   let checked = 0;
-  for (;;) {
-    const batch = await db.execute<{
-      id: string;
-      occurred_at: string;
-      organisation_id: number | null;
-      actor_user_id: number | null;
-      actor_label: string;
-      action: string;
-      record_type: string | null;
-      record_id: string | null;
-      before_value: unknown;
-      after_value: unknown;
-      context: unknown;
-      previous_hash: string;
-      hash: string;
-    }>(
-      sql.raw(
-        `select id, to_char(occurred_at at time zone 'UTC', ${TIMESTAMP_FORMAT}) as occurred_at, organisation_id,
-          actor_user_id, actor_label, action, record_type, record_id, before_value, after_value, context,
-          previous_hash, hash from audit_events where id > ${Number(afterId)} order by id limit ${Number(batchSize)}`,
-      ),
-    );
-    if (batch.rows.length === 0) return { ok: true, eventsChecked: checked };
-    for (const row of batch.rows) {
-      const id = Number(row.id);
-      if (row.previous_hash !== previousHash) {
-        return {
-          ok: false,
-          eventsChecked: checked,
-          firstBrokenLink: { id, reason: 'previous-hash link does not match the preceding event' },
-        };
-      }
-      const expected = auditEventHash({
-        previousHash: row.previous_hash,
-        occurredAt: row.occurred_at,
-        organisationId: row.organisation_id,
-        actorUserId: row.actor_user_id,
-        actorLabel: row.actor_label,
-        action: row.action,
-        recordType: row.record_type,
-        recordId: row.record_id,
-        beforeValue: row.before_value,
-        afterValue: row.after_value,
-        context: row.context,
-      });
-      if (expected !== row.hash) {
-        return {
-          ok: false,
-          eventsChecked: checked,
-          firstBrokenLink: { id, reason: 'content does not match its stored hash' },
-        };
-      }
-      previousHash = row.hash;
-      afterId = id;
-      checked += 1;
+  for await (const row of storedAuditEvents(db, batchSize)) {
+    if (row.previousHash !== previousHash) {
+      return {
+        ok: false,
+        eventsChecked: checked,
+        firstBrokenLink: { id: row.id, reason: BROKEN_LINK_REASON },
+      };
     }
+    if (row.recomputedHash !== row.hash) {
+      return { ok: false, eventsChecked: checked, firstBrokenLink: { id: row.id, reason: ALTERED_REASON } };
+    }
+    previousHash = row.hash;
+    checked += 1;
   }
+  return { ok: true, eventsChecked: checked };
 }

@@ -1,3 +1,4 @@
+import { possibleOutlierMessage } from '../order/bonferroni-outlier-test.ts';
 import type { RateLawFit } from '../order/fit-rate-law.ts';
 import { DECISIVE_DELTA_AICC, MIN_FRACTION_REACTED } from '../order/order-decision-thresholds.ts';
 import type { OrderSelection } from '../order/order-selection.ts';
@@ -49,7 +50,11 @@ export function collectWarnings(
     const listed = diagnostics.possibleOutliers.slice(0, 10).map((index) => diagnostics.points[index]!.time);
     warnings.push({
       code: 'possible-outliers',
-      message: `${diagnostics.possibleOutliers.length} point(s) lie more than ${diagnostics.outlierThreshold} studentised residuals from the curve (times ${listed.join(', ')}${diagnostics.possibleOutliers.length > 10 ? ', …' : ''}); investigate them — none was excluded.`,
+      message: possibleOutlierMessage(
+        diagnostics.possibleOutliers.length,
+        diagnostics.outlierThreshold,
+        `${listed.join(', ')}${diagnostics.possibleOutliers.length > 10 ? ', …' : ''}`,
+      ),
     });
   }
   if (diagnostics !== null && diagnostics.runsTest.p < MISFIT_WARNING_ALPHA) {

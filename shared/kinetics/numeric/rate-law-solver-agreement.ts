@@ -30,8 +30,14 @@
  *
  * Throws what `prepareSeries` throws for an unusable series.
  */
-import { START_REPAIR_HALVINGS } from '../order/approach-rate-law-minimum.ts';
-import { fitRateLaw, type RateLawFit, type RateLawModel, type RateLawStart } from '../order/fit-rate-law.ts';
+import { approachRateLawMinimum, START_REPAIR_HALVINGS } from '../order/approach-rate-law-minimum.ts';
+import {
+  certifiedByFirstStage,
+  fitRateLaw,
+  type RateLawFit,
+  type RateLawModel,
+  type RateLawStart,
+} from '../order/fit-rate-law.ts';
 import { initialRateOf, rateConstantFormCovariance, rateConstantOf } from '../order/initial-rate-form.ts';
 import { linearisedFits } from '../order/linearised-fits.ts';
 import { prepareSeries } from '../order/prepare-series.ts';
@@ -75,6 +81,11 @@ export interface SolverComparison {
   standardErrorDigits: number | null;
   /** Largest parameter difference in standard errors of the reference. */
   standardErrorsApart: number;
+  /**
+   * Which stage of `fitRateLaw` gave the product's answer: its streamed first stage (certified by its
+   * remaining step) or the NIST-checked solver that finishes it otherwise; null when it failed.
+   */
+  productStage: 'first-stage' | 'levenberg-marquardt' | null;
   /** The product's answer (`fitRateLaw`). */
   fast: Answer | null;
   /** The NIST-checked solver alone from the product's start. */
@@ -150,6 +161,9 @@ function compareOne(
   const fixedOrder = model === 'n' && fast.atSearchLimit ? fast.n : null;
   const logScale = errorModel === 'proportional';
   const response = logScale ? Float64Array.from(values, Math.log) : values;
+  const productStage = certifiedByFirstStage(approachRateLawMinimum(model, times, response, logScale, start))
+    ? ('first-stage' as const)
+    : ('levenberg-marquardt' as const);
   const problem = rateLawProblem(model, times, response, logScale, fixedOrder);
   const order = model === 'n' ? (fixedOrder ?? start.n ?? 1) : model;
   const solve = (initial: number[]) =>
@@ -161,7 +175,10 @@ function compareOne(
   const reference = solve(feasibleStart(problem, model, [start.initialValue, start.rateConstant, order]));
   if (!reference.converged) {
     return {
-      result: failed(base, 'reference-failed', fastAnswer, reference.answer.reason, reference.answer),
+      result: {
+        ...failed(base, 'reference-failed', fastAnswer, reference.answer.reason, reference.answer),
+        productStage,
+      },
       fast,
     };
   }
@@ -182,6 +199,7 @@ function compareOne(
   const result: SolverComparison = {
     ...base,
     kind,
+    productStage,
     parameterDigits: digitsApart(fastAnswer.parameters.slice(0, compared), reference.answer.parameters),
     // With n fixed the reference has no standard error for n, and its others are those of a 2-parameter fit.
     standardErrorDigits:
@@ -270,6 +288,7 @@ function failed(
   return {
     ...base,
     kind,
+    productStage: null,
     parameterDigits: 0,
     standardErrorDigits: null,
     standardErrorsApart: Number.POSITIVE_INFINITY,

@@ -7,13 +7,14 @@ import type { RateLawStart } from './rate-law-start.ts';
 
 /**
  * The first stage of a rate-law fit: Marquardt-damped Gauss–Newton on streamed 2×2/3×3 normal equations,
- * which brings the parameters close to the least-squares minimum cheaply. It is not the answer:
- * `fitRateLaw` finishes every fit with the NIST-checked `levenbergMarquardt` from the point returned here.
+ * then undamped Gauss–Newton steps while they keep halving. `fitRateLaw` reports its answer when its
+ * remaining step (`remainingRelativeStep`) is at most 1e-11 of every free parameter, and otherwise finishes
+ * the fit with the NIST-checked `levenbergMarquardt` from the point returned here.
  *
- * Why a first stage at all: the NIST-checked solver builds a Jacobian row per point per iteration; from the
+ * Why a streamed stage: the NIST-checked solver builds a Jacobian row per point per iteration; from the
  * product's starting values (the linearised plots) a fit takes 5–40 iterations, which on a 10⁵-point series
  * fitted five or six times costs more than the speed target allows. This stage streams the normal
- * equations without allocation, so the checked solver only needs its last few steps.
+ * equations without allocation.
  *
  * Formula in words: from the start, repeat: form JᵀJ and Jᵀr (`rate-law-objective.ts`); solve
  * (JᵀJ + λ·diag JᵀJ)·δ = Jᵀr; accept the step when the residual sum of squares falls (then λ shrinks
@@ -45,6 +46,14 @@ export interface RateLawApproach {
   /** Free order only: a step was stopped at an end of `ORDER_SEARCH_RANGE`, and n stayed there. */
   atSearchLimit: boolean;
   reason: string;
+  /** Residual sum of squares at `parameters`, on the fitting scale. */
+  residualSumOfSquares: number;
+  /**
+   * Largest |δₐ|/|θₐ| of the undamped Gauss–Newton step δ at `parameters` over the parameters still free
+   * (in the form returned): how far, relatively, the answer may still be from the minimum. Infinite when
+   * JᵀJ is singular there; 0 for an exact fit.
+   */
+  remainingRelativeStep: number;
 }
 
 /** Bates–Watts relative offset below which this stage stops (they suggest 1e-3 for a final answer). */
@@ -206,7 +215,27 @@ export function approachRateLawMinimum(
   if (converged && reason !== 'exact fit') {
     iterations += continueGaussNewton(objective, theta, current, trial, active, degreesOfFreedom, p);
   }
-  return { parameters: [theta[0]!, theta[1]!, theta[2]!], iterations, converged, atSearchLimit, reason };
+  const remainingRelativeStep = reason === 'exact fit' ? 0 : relativeStep(current, theta, p, active);
+  return {
+    parameters: [theta[0]!, theta[1]!, theta[2]!],
+    iterations,
+    converged,
+    atSearchLimit,
+    reason,
+    residualSumOfSquares: current.rss,
+    remainingRelativeStep,
+  };
+}
+
+/** max |δₐ|/|θₐ| of the undamped Gauss–Newton step at `theta` (from its normal equations `current`). */
+function relativeStep(current: NormalEquations, theta: Float64Array, p: number, active: number): number {
+  const block = new Float64Array(active * active);
+  const step = new Float64Array(active);
+  leadingBlock(current.normal, p, active, block);
+  if (!solveSmallSymmetric(block, current.gradient, step, active)) return Number.POSITIVE_INFINITY;
+  let largest = 0;
+  for (let a = 0; a < active; a++) largest = Math.max(largest, Math.abs(step[a]!) / Math.abs(theta[a]!));
+  return Number.isNaN(largest) ? Number.POSITIVE_INFINITY : largest;
 }
 
 /**

@@ -85,3 +85,37 @@ export function rateLawObjective(
     return Number.isFinite(total) ? total : Number.NaN;
   };
 }
+
+/**
+ * The Jacobian of the same residuals as `rateLawObjective`, as `columnCount` columns (∂C/∂θₐ, divided by
+ * C on the log scale), in the same parameters (initial-rate form for the free order), for the QR-based
+ * covariance (`numeric/nonlinear-covariance.ts`) at a fit's answer. Same formulas, one pass, no closures.
+ * Entries are NaN where the law is undefined or, on the log scale, not positive.
+ */
+export function rateLawJacobianColumns(
+  model: RateLawModel,
+  times: ArrayLike<number>,
+  logScale: boolean,
+  parameters: ArrayLike<number>,
+  columnCount: 2 | 3,
+): Float64Array[] {
+  const pointCount = times.length;
+  const columns = Array.from({ length: columnCount }, () => new Float64Array(pointCount));
+  const row = new Float64Array(3);
+  const law = model === 'n' ? null : prepareRateLaw(model, parameters[0]!, parameters[1]!);
+  for (let i = 0; i < pointCount; i++) {
+    const predicted =
+      law === null
+        ? initialRateLawAt(parameters[0]!, parameters[1]!, parameters[2]!, times[i]!, row)
+        : rateLawAt(law, times[i]!, row);
+    const divisor = logScale
+      ? predicted > 0
+        ? predicted
+        : Number.NaN
+      : Number.isNaN(predicted)
+        ? Number.NaN
+        : 1;
+    for (let a = 0; a < columnCount; a++) columns[a]![i] = row[a]! / divisor;
+  }
+  return columns;
+}

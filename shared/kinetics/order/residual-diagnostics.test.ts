@@ -1,7 +1,8 @@
 import { linearRegression } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
+import { bonferroniOutlierCriticalValue } from './bonferroni-outlier-test.ts';
 import { fitRateLaw } from './fit-rate-law.ts';
-import { OUTLIER_THRESHOLD, residualDiagnostics } from './residual-diagnostics.ts';
+import { residualDiagnostics } from './residual-diagnostics.ts';
 
 // A zero-order law that stays above 0 is a straight line, so its diagnostics must equal the textbook
 // ordinary-least-squares ones: hᵢ = 1/n + (tᵢ − t̄)²/Sₜₜ, and the externally studentised residual
@@ -32,14 +33,42 @@ describe('residualDiagnostics on a straight line (zero order) against OLS formul
     });
   });
 
-  it('a planted outlier is flagged above the threshold and kept (never excluded)', () => {
+  it('a planted outlier is flagged above the Bonferroni critical value of its series and kept (never excluded)', () => {
     const spoiled = [...values];
     spoiled[4] = 82;
     const spoiledFit = fitRateLaw(0, times, spoiled, 'constant', { initialValue: 100, rateConstant: 2 });
     const result = residualDiagnostics(spoiledFit, times, spoiled);
+    // 8 points, 2 parameters: t(1 − 0.04/16; 5) = t(0.9975; 5) = 4.773 (t table, upper-tail 0.0025 column;
+    // from memory, e.g. Montgomery & Runger, Applied Statistics and Probability for Engineers, Table V).
+    expect(result.outlierThreshold).toBe(bonferroniOutlierCriticalValue(8, 2));
+    expect(result.outlierThreshold!).toBeCloseTo(4.773, 3);
     expect(result.possibleOutliers).toEqual([4]);
-    expect(Math.abs(result.points[4]!.externallyStudentised!)).toBeGreaterThan(OUTLIER_THRESHOLD);
+    expect(Math.abs(result.points[4]!.externallyStudentised!)).toBeGreaterThan(result.outlierThreshold!);
     expect(result.points).toHaveLength(8);
+  });
+
+  it('the clean line flags nothing, and a residual above 3 but below the critical value is not flagged', () => {
+    expect(diagnostics.possibleOutliers).toEqual([]);
+    // The old fixed rule flagged |t| > 3; with 8 points the critical value is 4.773, and 91.0 at time 4 gives
+    // |t| ≈ 3.4, which the old rule flagged and the Bonferroni rule does not.
+    const moderate = [...values];
+    moderate[4] = 91.0;
+    const moderateFit = fitRateLaw(0, times, moderate, 'constant', { initialValue: 100, rateConstant: 2 });
+    const result = residualDiagnostics(moderateFit, times, moderate);
+    const largest = Math.max(...result.points.map((point) => Math.abs(point.externallyStudentised ?? 0)));
+    expect(largest).toBeGreaterThan(3);
+    expect(largest).toBeLessThan(result.outlierThreshold!);
+    expect(result.possibleOutliers).toEqual([]);
+  });
+
+  it('no test and no flag when N − p − 1 < 1 (three points, two parameters)', () => {
+    const short = fitRateLaw(0, [0, 1, 2], [100, 97, 95.5], 'constant', {
+      initialValue: 100,
+      rateConstant: 2,
+    });
+    const result = residualDiagnostics(short, [0, 1, 2], [100, 97, 95.5]);
+    expect(result.outlierThreshold).toBeNull();
+    expect(result.possibleOutliers).toEqual([]);
   });
 
   it('proportional error reports residuals on the ln scale', () => {

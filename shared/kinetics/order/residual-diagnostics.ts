@@ -1,4 +1,5 @@
 import { invertSmallSymmetric } from '../numeric/small-cholesky.ts';
+import { bonferroniOutlierCriticalValue } from './bonferroni-outlier-test.ts';
 import type { RateLawFit } from './fit-rate-law.ts';
 import { prepareRateLaw, rateLawAt } from './integrated-rate-law.ts';
 import { type RunsTestResult, runsTest } from './runs-test.ts';
@@ -14,7 +15,8 @@ import { type RunsTestResult, runsTest } from './runs-test.ts';
  * hᵢ = jᵢᵀ(JᵀJ)⁻¹jᵢ with jᵢ the row of the model's Jacobian at tᵢ (the tangent-plane approximation for a
  * nonlinear model). Internally studentised rᵢ = eᵢ/(s·√(1 − hᵢ)); externally studentised
  * tᵢ = rᵢ·√((ν − 1)/(ν − rᵢ²)), ν = N − p, which is the residual scaled by the SD estimated without
- * point i. |tᵢ| > `OUTLIER_THRESHOLD` flags a possible outlier.
+ * point i. |tᵢ| above the Bonferroni-corrected two-sided t quantile t(1 − 0.05/(2N); N − p − 1)
+ * flags a possible outlier (`bonferroni-outlier-test.ts`: at most 5 % of clean series get a flag).
  *
  * Reference: D. A. Belsley, E. Kuh & R. E. Welsch, Regression Diagnostics (1980) §2.1 (from memory);
  * NIST/SEMATECH e-Handbook §4.4.4 "How can I tell if a model fits my data?"; Cook & Weisberg, Residuals and
@@ -26,8 +28,6 @@ import { type RunsTestResult, runsTest } from './runs-test.ts';
  * Example: for a straight line through (0, 0), (1, 1), (2, 2), (3, 4) the leverages are 0.7, 0.3, 0.3, 0.7.
  */
 
-/** |externally studentised residual| above this flags a possible outlier (common practice). */
-export const OUTLIER_THRESHOLD = 3;
 /** Leverage this close to 1 means the point fixes the curve by itself; studentising is then meaningless. */
 const LEVERAGE_LIMIT = 1 - 1e-10;
 
@@ -46,7 +46,8 @@ export interface ResidualDiagnostics {
   residualScale: 'value' | 'ln(value)';
   points: ResidualPoint[];
   runsTest: RunsTestResult;
-  outlierThreshold: number;
+  /** Critical |tᵢ| of this series, t(1 − 0.05/(2N); N − p − 1); null when N − p − 1 < 1 (no test). */
+  outlierThreshold: number | null;
   /** Indices into `points` with |externally studentised residual| above the threshold. */
   possibleOutliers: number[];
 }
@@ -79,6 +80,7 @@ export function residualDiagnostics(
   const inverse = invertSmallSymmetric(normal, p);
   const s = fit.residualStandardDeviation;
   const nu = fit.degreesOfFreedom;
+  const threshold = bonferroniOutlierCriticalValue(count, p);
   const points: ResidualPoint[] = new Array(count);
   const possibleOutliers: number[] = [];
   for (let i = 0; i < count; i++) {
@@ -97,7 +99,7 @@ export function residualDiagnostics(
       const room = nu - studentised * studentised;
       if (nu >= 2 && room > 0) externallyStudentised = studentised * Math.sqrt((nu - 1) / room);
     }
-    if (externallyStudentised !== null && Math.abs(externallyStudentised) > OUTLIER_THRESHOLD)
+    if (externallyStudentised !== null && threshold !== null && Math.abs(externallyStudentised) > threshold)
       possibleOutliers.push(i);
     points[i] = {
       time: times[i]!,
@@ -114,7 +116,7 @@ export function residualDiagnostics(
     residualScale: logScale ? 'ln(value)' : 'value',
     points,
     runsTest: runsTest(residuals),
-    outlierThreshold: OUTLIER_THRESHOLD,
+    outlierThreshold: threshold,
     possibleOutliers,
   };
 }

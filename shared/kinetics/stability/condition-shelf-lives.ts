@@ -16,7 +16,8 @@ import {
   type Q1eProposal,
   snappedMonths,
 } from './q1e-proposal.ts';
-import { type Q1eShelfLife, q1eShelfLife } from './q1e-shelf-life.ts';
+import type { Q1eShelfLife } from './q1e-shelf-life.ts';
+import { scaledQ1eShelfLife } from './scaled-q1e-shelf-life.ts';
 import { type SignificantChangeInData, significantChangeInData } from './significant-change-in-data.ts';
 import type { StabilityBatch, StabilityTransform } from './stability-batch.ts';
 
@@ -81,7 +82,8 @@ function evaluate(members: readonly ConditionMember[], options: ConditionShelfLi
   }
   const transform = ORDER_SCALES[order] as StabilityTransform;
   try {
-    const result = q1eShelfLife(batchesOf(members), {
+    // Extreme magnitudes are evaluated scaled by powers of two and mapped back (issue 12 §6).
+    const result = scaledQ1eShelfLife(batchesOf(members), {
       direction: options.direction,
       transform,
       confidence: options.confidence,

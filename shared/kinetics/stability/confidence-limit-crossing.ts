@@ -128,6 +128,6 @@ export function confidenceLimitCrossing(
     status: 'crossing',
     time,
     horizon,
-    reason: `The ${limitName} meets the acceptance limit at ${formatNumber(time)}.`,
+    reason: `The ${limitName} meets the acceptance limit at ${formatNumber(time)} time units (the dataset's unit of time).`,
   };
 }

@@ -9,8 +9,11 @@
  * including "98,7", are read by the intake — and empty cells become null. Blank lines are kept
  * as empty rows so row numbers in messages match the file.
  *
- * Throws `FileReadError('empty-file')` for a file with no content and
- * `FileReadError('malformed-csv')` (with the line) when quoting is broken.
+ * Throws `FileReadError('empty-file')` for a file with no content,
+ * `FileReadError('malformed-csv')` (with the line) when quoting is broken, and
+ * `FileReadError('too-large-to-read')` for a line, a row or a file past the limits of
+ * `sheet-limits.ts` (the line length before parsing; columns and cells before the cells are
+ * made. csv-parse's per-record callback would check them sooner but triples its time, measured).
  *
  * Example: `readCsv('Time;Assay\n0;100,2\n', 'product-a')` gives
  * `[{ name: 'product-a', rows: [['Time', 'Assay'], ['0', '100,2']] }]`.
@@ -18,6 +21,7 @@
 import { parse } from 'csv-parse/sync';
 import type { GridCell, SheetGrid } from '../../../../shared/intake/sheet-grid.ts';
 import { FileReadError } from './file-read-error.ts';
+import { checkRecordLimits, firstLongLine, longLineError } from './sheet-limits.ts';
 
 const CANDIDATE_DELIMITERS = [',', ';', '\t'] as const;
 
@@ -49,6 +53,8 @@ export function detectDelimiter(text: string): string {
 export function readCsv(content: string | Uint8Array, sheetName = 'Sheet1'): SheetGrid[] {
   const text = decode(content);
   if (text.trim() === '') throw new FileReadError('empty-file', 'The file is empty.');
+  const longLine = firstLongLine(text);
+  if (longLine) throw longLineError(longLine);
   let records: string[][];
   try {
     records = parse(text, {
@@ -65,6 +71,7 @@ export function readCsv(content: string | Uint8Array, sheetName = 'Sheet1'): She
       `The CSV file could not be read${where}: ${(error as Error).message}. Check for a quote that is not closed.`,
     );
   }
+  checkRecordLimits(records, sheetName);
   const rows: GridCell[][] = records.map((record) =>
     record.map((cell) => (cell.trim() === '' ? null : cell)),
   );

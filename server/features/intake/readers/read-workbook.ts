@@ -20,12 +20,16 @@
  * is an .xlsx; an OLE compound file holding an "EncryptedPackage" is a password-protected
  * workbook; another OLE compound file is the old binary .xls format.
  *
+ * Before either reader sees a part, `assertNoHostileParts` refuses macros, DTD or entity
+ * declarations and references outside the file (`hostile-parts.ts`).
+ *
  * Archives that would unpack past `MAX_EXPANDED_BYTES` (a "ZIP bomb") or whose ZIP structure is
  * damaged are refused before any reader unpacks them whole: the general reader is only handed
  * archives whose every entry inflated within its declared size.
  *
  * Throws `FileReadError` with code 'empty-file', 'password-protected', 'legacy-workbook',
- * 'not-a-workbook', 'damaged-workbook' (truncated or corrupt ZIP/XML) or 'workbook-too-large'.
+ * 'not-a-workbook', 'damaged-workbook' (truncated or corrupt ZIP/XML), 'workbook-too-large',
+ * 'macro-content', 'xml-declaration' or 'external-reference'.
  *
  * Example: a workbook with sheet "Long term" holding A1 = "Month", B1 = "Assay", A2 = 0,
  * B2 = 100.2 gives `[{ name: 'Long term', rows: [['Month', 'Assay'], [0, 100.2]], merges: [] }]`.
@@ -34,6 +38,7 @@ import type ExcelJS from 'exceljs';
 import { columnIndex } from '../../../../shared/intake/cell-reference.ts';
 import type { GridCell, MergedRange, SheetGrid } from '../../../../shared/intake/sheet-grid.ts';
 import { FileReadError } from './file-read-error.ts';
+import { assertNoHostileParts } from './hostile-parts.ts';
 import { xlsxSheetGrids } from './xlsx-sheet-grids.ts';
 import { assertBoundedExpansion, MAX_EXPANDED_BYTES, ZipDamaged, ZipTooLarge } from './xlsx-zip-entries.ts';
 
@@ -142,8 +147,10 @@ function finalArchiveError(error: unknown): FileReadError | null {
 export async function readWorkbook(content: Uint8Array): Promise<SheetGrid[]> {
   checkContainer(content);
   try {
+    assertNoHostileParts(content);
     return xlsxSheetGrids(content);
   } catch (error) {
+    if (error instanceof FileReadError) throw error;
     const final = finalArchiveError(error);
     if (final) throw final;
     // Outside the fast reader's plain subset: the general reader decides.

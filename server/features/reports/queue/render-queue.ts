@@ -45,6 +45,11 @@ export interface RenderQueueOptions {
   pool?: pg.Pool;
   /** Run pg-boss maintenance (expiry of lost jobs, archiving). Workers do; a sender need not. */
   supervise: boolean;
+  /**
+   * Install or migrate pg-boss's schema: only the migration step does (`server/migrate-database.ts`,
+   * as the owner role); the app's role may not create anything, so it starts without migrating.
+   */
+  migrate?: boolean;
 }
 
 export function openRenderQueue(options: RenderQueueOptions): RenderQueue {
@@ -57,6 +62,7 @@ export function openRenderQueue(options: RenderQueueOptions): RenderQueue {
     schema: PGBOSS_SCHEMA,
     application_name: 'rateledger-render-queue',
     supervise: options.supervise,
+    migrate: options.migrate ?? false,
     schedule: false,
     maintenanceIntervalSeconds: config.maintenanceIntervalSeconds,
   });

@@ -153,6 +153,13 @@ function proposalTable(analysis: DatasetAnalysis): ReportTable | null {
   };
 }
 
+/** Which order the Arrhenius rate constants are of, and why, in the caption's words. */
+const ARRHENIUS_ORDER_WHY: Record<string, string> = {
+  analyst: 'rate constants of the order fixed by the analyst',
+  study: 'rate constants of the study’s working order, as no series named an order',
+  data: 'rate constants of the order with the lowest summed AICc over the series',
+};
+
 /** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
 export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
   const rows = resultRows(analysis);
@@ -165,9 +172,28 @@ export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
       listTable(analysis, of('shelf-life'), 'ICH Q1E statistical shelf-life estimate per condition'),
     );
   if (of('arrhenius').length > 0)
-    tables.push(listTable(analysis, of('arrhenius'), 'Temperature dependence (Arrhenius)'));
+    tables.push(
+      listTable(
+        analysis,
+        of('arrhenius'),
+        `Temperature dependence (Arrhenius; Eyring ΔH‡ and ΔS‡ through the same rate constants): ${ARRHENIUS_ORDER_WHY[String(analysis.arrhenius?.orderSource)] ?? 'order of the analysis'}`,
+      ),
+    );
   if (of('derived').length > 0) {
     tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
+  }
+  if (of('plausible').length > 0) {
+    const named = of('plausible').map((row) => ({
+      ...row,
+      label: `${row.model === 'average' ? 'Model average' : modelName(row)}: ${row.label}`,
+    }));
+    tables.push(
+      listTable(
+        analysis,
+        named,
+        'Series whose order the data do not name: each plausible law (Akaike weight ≥ 0.1 or ΔAICc ≤ 2) and the model-averaged t90 and time to a limit with the unconditional interval (Burnham & Anderson 2002, §4.3); k is never averaged',
+      ),
+    );
   }
   if (of('rate-law').length > 0) tables.push(modelTable(analysis, of('rate-law')));
   if (of('linearised').length > 0) tables.push(linearisedTable(of('linearised')));

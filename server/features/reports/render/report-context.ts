@@ -182,6 +182,22 @@ function arrheniusSummary(analysis: DatasetAnalysis) {
   const kilo = (value: number) => value / 1000;
   return {
     order: arrhenius.order === null ? null : ORDER_WORDS[arrhenius.order],
+    orderWhy:
+      arrhenius.orderSource === 'analyst'
+        ? 'the order fixed by the analyst'
+        : arrhenius.orderSource === 'study'
+          ? 'the study’s working order, as no series named an order'
+          : 'the order with the lowest summed AICc over the series',
+    noOrderNamedWarning:
+      analysis.warnings.find((warning) => warning.code === 'no-order-named')?.message ?? null,
+    eyring: arrhenius.eyring?.fit
+      ? {
+          deltaHKJPerMol: kilo(arrhenius.eyring.fit.enthalpyOfActivation.estimate),
+          deltaHInterval: arrhenius.eyring.fit.enthalpyOfActivation.interval?.map(kilo) ?? null,
+          deltaSJPerMolK: arrhenius.eyring.fit.entropyOfActivation.estimate,
+          deltaSInterval: arrhenius.eyring.fit.entropyOfActivation.interval ?? null,
+        }
+      : null,
     temperatures: arrhenius.rateConstants.map((point) => point.temperatureC),
     activationEnergyKJPerMol: fit ? kilo(fit.activationEnergy) : null,
     activationEnergyInterval: fit?.activationEnergyInterval ? fit.activationEnergyInterval.map(kilo) : null,

@@ -54,6 +54,12 @@ export const studies = pgTable('studies', {
   supportingData: declaredAnswerEnum('supporting_data').notNull().default('unknown'),
   /** Where the statements come from (report numbers of the accelerated study, supporting batches). */
   declarationBasis: text('declaration_basis').notNull().default(''),
+  /**
+   * The working order the study's protocol states (0, 1, 2), with its reason: the analysis uses it
+   * only where the data do not name an order, labelled "working order from the study".
+   */
+  workingOrder: integer('working_order'),
+  workingOrderReason: text('working_order_reason').notNull().default(''),
   /** Batch (lot) identifiers on test. */
   batches: jsonb('batches').$type<string[]>().notNull().default([]),
   notes: text('notes').notNull().default(''),

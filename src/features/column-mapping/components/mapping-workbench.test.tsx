@@ -150,6 +150,18 @@ describe('the mapping workbench', () => {
     expect(screen.getByText(/Choose at least the time column/)).toBeDefined();
   });
 
+  it('two roles on one column name that problem, not the missing columns (issue 13 §8)', async () => {
+    mockApi([previewRoute]);
+    renderWorkbench();
+    const valueColumn = await screen.findByLabelText('Value column');
+
+    fireEvent.change(valueColumn, { target: { value: 'Month' } });
+
+    expect(screen.getByText(/^This column is already chosen as the /)).toBeDefined();
+    expect(screen.queryByText(/Choose at least the time column/)).toBeNull();
+    expect(screen.getByText(/^Correct the mapping above/)).toBeDefined();
+  });
+
   it('lists every problem of a refused import with its cell, and marks the cell', async () => {
     mockApi([
       previewRoute,

@@ -10,6 +10,7 @@ import {
   guessDraft,
   type MappingDraft,
 } from '../mapping-draft.ts';
+import { DuplicateImportReason } from './duplicate-import-reason.tsx';
 import { ImportSummary } from './import-summary.tsx';
 import { MappingFields } from './mapping-fields.tsx';
 import { type ListedProblem, ProblemList } from './problem-list.tsx';
@@ -169,7 +170,9 @@ export function MappingWorkbench({
       <section aria-label="Check of the whole sheet" aria-live="polite">
         {!checked?.ok ? (
           <p className="text-sm text-ink-muted">
-            Choose at least the time column, its unit and the value column; the whole sheet is then checked.
+            {draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
+              ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
+              : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
           </p>
         ) : !check ? (
           <p className="text-sm text-ink-muted">Checking the whole sheet…</p>
@@ -229,6 +232,18 @@ export function MappingWorkbench({
           />
         </label>
         {refused && <ProblemList heading={refused.message} problems={refusedProblems} />}
+        {refused?.status === 409 && checked?.ok && (
+          <DuplicateImportReason
+            pending={importer.isPending}
+            onImport={(duplicateReason) =>
+              importer.mutate({
+                mapping: checked.mapping,
+                ...(saveWanted && saveAs.trim() !== '' ? { saveMappingAs: saveAs.trim() } : {}),
+                duplicateReason,
+              })
+            }
+          />
+        )}
         {importer.isError && !refused && (
           <p role="alert" className="text-sm text-alert">
             {importer.error.message}

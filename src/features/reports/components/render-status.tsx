@@ -1,3 +1,4 @@
+import { type ReviewStandingName, reviewStandingText } from '../../../../shared/api/report-standing.ts';
 import type { RenderStatus } from '../../../../shared/api/reports.ts';
 
 const LABELS: Record<RenderStatus, string> = {
@@ -22,6 +23,32 @@ export function RenderStatusBadge({ status }: { status: RenderStatus }) {
       data-status={status}
     >
       {LABELS[status]}
+    </span>
+  );
+}
+
+const REVIEW_STYLES: Record<ReviewStandingName, string> = {
+  draft: 'border-rule text-ink-muted',
+  in_review: 'border-ledger text-ledger',
+  returned: 'border-alert text-alert',
+  signed: 'border-ledger bg-ledger text-white',
+  superseded: 'border-rule bg-paper text-ink-muted',
+};
+
+/** Where the version stands in review, in words, beside its render state. */
+export function ReviewStandingBadge({
+  standing,
+  supersededBy = null,
+}: {
+  standing: ReviewStandingName;
+  supersededBy?: number | null;
+}) {
+  return (
+    <span
+      className={`inline-block rounded-sm border px-1.5 py-0.5 text-xs font-semibold tracking-wide ${REVIEW_STYLES[standing]}`}
+      data-review-state={standing}
+    >
+      {reviewStandingText(standing, supersededBy)}
     </span>
   );
 }

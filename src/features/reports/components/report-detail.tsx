@@ -3,7 +3,8 @@ import { useMe } from '../../session/api/get-me.ts';
 import { useCreateReportVersion } from '../api/create-report-version.ts';
 import { useReport } from '../api/get-report.ts';
 import { isRendering } from '../api/report-keys.ts';
-import { byteSize, RenderStatusBadge, utcTime } from './render-status.tsx';
+import { byteSize, RenderStatusBadge, ReviewStandingBadge, utcTime } from './render-status.tsx';
+import { ReportRecordNotes } from './report-record-notes.tsx';
 
 const PAPER_NAMES = { a4: 'A4', letter: 'US Letter' } as const;
 
@@ -13,7 +14,8 @@ export function ReportDetail() {
   const report = useReport(reportId);
   const renderAgain = useCreateReportVersion(reportId);
   // Only analysts may render; the server enforces it, the button just does not offer it to others.
-  const canRender = useMe().data?.roles.includes('analyst') ?? false;
+  const me = useMe().data;
+  const canRender = me?.roles.includes('analyst') ?? false;
 
   if (!Number.isInteger(reportId) || reportId <= 0) return <p role="alert">There is no such report.</p>;
   if (report.isPending) return <p className="text-ink-muted">Loading the report…</p>;
@@ -52,6 +54,7 @@ export function ReportDetail() {
         <dt className="text-ink-muted">Created</dt>
         <dd className="tabular-nums">{utcTime(data.createdAt)}</dd>
       </dl>
+      <ReportRecordNotes detail={data} me={me} />
 
       <div className="mt-4 flex items-center gap-3">
         <h2 className="font-serif text-lg">Versions</h2>
@@ -79,7 +82,8 @@ export function ReportDetail() {
         <thead>
           <tr className="border-b border-rule text-left">
             <th className="px-2 py-1">Version</th>
-            <th className="px-2 py-1">State</th>
+            <th className="px-2 py-1">Render</th>
+            <th className="px-2 py-1">Review</th>
             <th className="px-2 py-1">Paper</th>
             <th className="px-2 py-1">Pages</th>
             <th className="px-2 py-1">Requested</th>
@@ -109,6 +113,9 @@ export function ReportDetail() {
                   <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>
                 )}
               </td>
+              <td className="px-2 py-1.5">
+                <ReviewStandingBadge standing={version.reviewState} supersededBy={version.supersededBy} />
+              </td>
               <td className="px-2 py-1.5">{PAPER_NAMES[version.paperSize]}</td>
               <td className="px-2 py-1.5 tabular-nums">
                 {version.pageCount ?? '—'}
@@ -124,9 +131,22 @@ export function ReportDetail() {
               <td className="px-2 py-1.5">
                 {version.pdfUrl && version.htmlUrl ? (
                   <div className="flex flex-col gap-0.5">
-                    <a className="text-ledger underline" href={version.pdfUrl} download>
-                      Download PDF
-                    </a>
+                    {version.signedPdfSha256 ? (
+                      <>
+                        <a className="font-semibold text-ledger underline" href={version.pdfUrl} download>
+                          Download signed PDF
+                        </a>
+                        {version.renditionUrl && (
+                          <a className="text-ledger underline" href={version.renditionUrl} download>
+                            Unsigned rendition (PDF, not the signed record)
+                          </a>
+                        )}
+                      </>
+                    ) : (
+                      <a className="text-ledger underline" href={version.pdfUrl} download>
+                        Download PDF (unsigned)
+                      </a>
+                    )}
                     <a
                       className="font-semibold text-ledger underline"
                       href={`/review/reports/${data.id}/versions/${version.versionNumber}`}
@@ -147,6 +167,14 @@ export function ReportDetail() {
                         title="SHA-256 of the stored PDF"
                       >
                         SHA-256 {version.pdfSha256.slice(0, 16)}…
+                      </span>
+                    )}
+                    {version.signedPdfSha256 && (
+                      <span
+                        className="font-mono text-[10px] text-ink-muted"
+                        title="SHA-256 of the signed PDF"
+                      >
+                        signed SHA-256 {version.signedPdfSha256.slice(0, 16)}…
                       </span>
                     )}
                   </div>

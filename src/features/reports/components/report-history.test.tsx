@@ -25,6 +25,8 @@ describe('the report history under /app/reports', () => {
     expect(readyRow?.textContent).toContain('2026-03-01 08:30 UTC');
     expect(readyRow?.textContent).toContain('(2 versions)');
     expect(within(readyRow!).getByText('Ready')).toBeDefined();
+    expect(within(readyRow!).getByText('In review').getAttribute('data-review-state')).toBe('in_review');
+    expect(within(failedRow!).getByText('Draft')).toBeDefined();
     expect(within(readyRow!).getByRole('link', { name: 'Download' }).getAttribute('href')).toBe(
       '/api/reports/5/versions/2/pdf',
     );

@@ -1,4 +1,5 @@
 import { Link, useSearchParams } from 'react-router';
+import { REVIEW_STANDING_LABELS, REVIEW_STANDINGS } from '../../../../shared/api/report-standing.ts';
 import {
   RENDER_STATUSES,
   type ReportListQuery,
@@ -6,9 +7,9 @@ import {
 } from '../../../../shared/api/reports.ts';
 import { useReportFilterOptions } from '../api/get-report-filter-options.ts';
 import { useReportList } from '../api/list-reports.ts';
-import { RenderStatusBadge, utcTime } from './render-status.tsx';
+import { RenderStatusBadge, ReviewStandingBadge, utcTime } from './render-status.tsx';
 
-const FILTERS = ['status', 'studyId', 'authorId', 'from', 'to'] as const;
+const FILTERS = ['status', 'review', 'studyId', 'authorId', 'from', 'to', 'includeRetired'] as const;
 
 /** The query the URL describes; a hand-edited URL that does not parse falls back to page 1. */
 function queryFrom(params: URLSearchParams): { query: ReportListQuery; problem: string | null } {
@@ -64,6 +65,21 @@ export function ReportHistory() {
           </select>
         </label>
         <label className="flex flex-col">
+          <span>Review</span>
+          <select
+            className="rounded-sm border border-rule bg-white px-2 py-1"
+            value={query.review ?? ''}
+            onChange={(event) => setFilter('review', event.target.value)}
+          >
+            <option value="">Any</option>
+            {REVIEW_STANDINGS.map((standing) => (
+              <option key={standing} value={standing}>
+                {REVIEW_STANDING_LABELS[standing]} (a version)
+              </option>
+            ))}
+          </select>
+        </label>
+        <label className="flex flex-col">
           <span>Study</span>
           <select
             className="rounded-sm border border-rule bg-white px-2 py-1"
@@ -110,6 +126,14 @@ export function ReportHistory() {
             value={query.to ?? ''}
             onChange={(event) => setFilter('to', event.target.value)}
           />
+        </label>
+        <label className="flex items-center gap-1.5 self-end py-1">
+          <input
+            type="checkbox"
+            checked={query.includeRetired === true}
+            onChange={(event) => setFilter('includeRetired', event.target.checked ? '1' : '')}
+          />
+          <span>include retired</span>
         </label>
         {FILTERS.some((name) => params.has(name)) && (
           <button
@@ -158,6 +182,11 @@ export function ReportHistory() {
                     <Link className="text-ledger underline" to={`/reports/${report.id}`}>
                       {report.reportNumber}
                     </Link>
+                    {report.retired && (
+                      <span className="ml-1 rounded-sm bg-alert/10 px-1 text-xs font-normal text-alert">
+                        retired
+                      </span>
+                    )}
                   </td>
                   <td className="py-1.5 pr-3">
                     {report.title}
@@ -166,7 +195,8 @@ export function ReportHistory() {
                   <td className="py-1.5 pr-3">{report.author.fullName}</td>
                   <td className="py-1.5 pr-3 tabular-nums">{utcTime(report.createdAt)}</td>
                   <td className="py-1.5 pr-3">
-                    v{report.latest.versionNumber} <RenderStatusBadge status={report.latest.renderStatus} />
+                    v{report.latest.versionNumber} <RenderStatusBadge status={report.latest.renderStatus} />{' '}
+                    <ReviewStandingBadge standing={report.latest.reviewState} />
                     {report.versionCount > 1 && (
                       <span className="ml-1 text-xs text-ink-muted">({report.versionCount} versions)</span>
                     )}
@@ -174,7 +204,7 @@ export function ReportHistory() {
                   <td className="py-1.5">
                     {report.latest.pdfUrl ? (
                       <a className="text-ledger underline" href={report.latest.pdfUrl} download>
-                        Download
+                        {report.latest.reviewState === 'signed' ? 'Download signed PDF' : 'Download'}
                       </a>
                     ) : (
                       '—'

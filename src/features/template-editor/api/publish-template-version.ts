@@ -1,20 +1,23 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import { publishTemplateVersionResponseSchema } from '../../../../shared/api/templates.ts';
+import {
+  type PublishTemplateVersionRequest,
+  publishTemplateVersionResponseSchema,
+} from '../../../../shared/api/templates.ts';
 import { fetchJson } from '../../../lib/http.ts';
 import { templateKeys } from './template-keys.ts';
 
 /** POST /api/admin/templates/:id/publish — an earlier version than the published one is a rollback. */
-export function publishTemplateVersion(templateId: number, versionId: number) {
+export function publishTemplateVersion(templateId: number, request: PublishTemplateVersionRequest) {
   return fetchJson(`/api/admin/templates/${templateId}/publish`, publishTemplateVersionResponseSchema, {
     method: 'POST',
-    json: { versionId },
+    json: request,
   });
 }
 
 export function usePublishTemplateVersion(templateId: number) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: (versionId: number) => publishTemplateVersion(templateId, versionId),
+    mutationFn: (request: PublishTemplateVersionRequest) => publishTemplateVersion(templateId, request),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: templateKeys.editor(templateId) }),
   });
 }

@@ -132,7 +132,7 @@ describe('the template editor', () => {
   });
 
   it('opens the published version, previews an edit, saves it as a new version and publishes it', async () => {
-    templateApi(() => json(201, { version: version3 }));
+    const requests = templateApi(() => json(201, { version: version3 }));
     await openEditor();
 
     expect(screen.getAllByRole('tab').map((tab) => tab.textContent)).toContain('letterhead');
@@ -164,7 +164,26 @@ describe('the template editor', () => {
 
     fireEvent.click(publish);
 
+    // Publishing is change-controlled: a reason and a confirmation, checked before anything is sent.
+    const confirm = within(editing).getByRole('form', { name: 'Publish version 3' });
+    fireEvent.click(within(confirm).getByRole('button', { name: 'Confirm the publication' }));
+    expect(within(confirm).getByText(/^Give the reason for this change/)).toBeDefined();
+    expect(within(confirm).getByText('Confirm that new reports are to use this version.')).toBeDefined();
+    const publishes = () => requests.filter((request) => request.url.pathname.endsWith('/publish'));
+    expect(publishes()).toHaveLength(0);
+    fireEvent.change(within(confirm).getByLabelText(/^Reason for the change/), {
+      target: { value: 'Report number shown in the heading (change request CR-12)' },
+    });
+    fireEvent.click(within(confirm).getByLabelText('I confirm that new reports are to use version 3.'));
+    fireEvent.click(within(confirm).getByRole('button', { name: 'Confirm the publication' }));
+
     expect(await screen.findByText(/^Version 3 is published\. New reports use it/)).toBeDefined();
+    expect(publishes()).toHaveLength(1);
+    expect(JSON.parse(String(publishes()[0]!.body))).toEqual({
+      versionId: 30,
+      reason: 'Report number shown in the heading (change request CR-12)',
+      confirmed: true,
+    });
   });
 
   it('lists the problems of a draft and of a refused save, each with its part and line', async () => {

@@ -13,6 +13,7 @@ import { CodeEditor, type CodeEditorHandle } from './code-editor.tsx';
 import { NewPartialForm } from './new-partial-form.tsx';
 import { PreviewPane } from './preview-pane.tsx';
 import { ProblemList } from './problem-list.tsx';
+import { PublishConfirmForm } from './publish-confirm-form.tsx';
 import { ReferencePanel } from './reference-panel.tsx';
 import { VersionsPanel } from './versions-panel.tsx';
 
@@ -34,6 +35,11 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
   const [note, setNote] = useState('');
   const [message, setMessage] = useState<string | null>(null);
   const [lastGoodHtml, setLastGoodHtml] = useState<string | null>(null);
+  /** The version whose publication (or rollback) waits for its reason and confirmation. */
+  const [pendingPublish, setPendingPublish] = useState<{
+    versionId: number;
+    from: 'editor' | 'versions';
+  } | null>(null);
   const handle = useRef<CodeEditorHandle | null>(null);
   const save = useSaveTemplateVersion(templateId);
   const publish = usePublishTemplateVersion(templateId);
@@ -112,18 +118,39 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
       },
     );
   };
-  const onPublish = (versionId: number) => {
+  const onPublish = (versionId: number, from: 'editor' | 'versions') => {
     setMessage(null);
     save.reset();
-    publish.mutate(versionId, {
-      onSuccess: (result) =>
+    publish.reset();
+    setPendingPublish({ versionId, from });
+  };
+  const pendingVersion = template.versions.find((version) => version.id === pendingPublish?.versionId);
+  const onConfirmPublish = (request: { versionId: number; reason: string; confirmed: true }) => {
+    publish.mutate(request, {
+      onSuccess: (result) => {
+        setPendingPublish(null);
         setMessage(
           result.rolledBack
             ? `Rolled back: version ${result.publishedVersionNumber} is published again (was ${result.previousVersionNumber}). New reports use it; earlier reports keep their version.`
             : `Version ${result.publishedVersionNumber} is published. New reports use it; earlier reports keep the version they were made with.`,
-        ),
+        );
+      },
     });
   };
+  const confirmForm = pendingVersion && (
+    <PublishConfirmForm
+      key={pendingVersion.id}
+      versionId={pendingVersion.id}
+      versionNumber={pendingVersion.versionNumber}
+      rollback={
+        template.publishedVersionNumber !== null &&
+        pendingVersion.versionNumber < template.publishedVersionNumber
+      }
+      publishing={publish.isPending}
+      onConfirm={onConfirmPublish}
+      onCancel={() => setPendingPublish(null)}
+    />
+  );
   const savedUnpublished = template.versions.find(
     (version) => version.id === baseVersionId && !version.published,
   );
@@ -219,7 +246,7 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
               <button
                 type="button"
                 disabled={publish.isPending}
-                onClick={() => onPublish(savedUnpublished.id)}
+                onClick={() => onPublish(savedUnpublished.id, 'editor')}
                 className="rounded-sm border border-ledger px-3 py-1.5 font-semibold text-ledger disabled:opacity-50"
               >
                 Publish version {savedUnpublished.versionNumber}
@@ -231,6 +258,7 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
                 : `Showing version ${base.data.version.versionNumber}.`}
             </span>
           </form>
+          {pendingPublish?.from === 'editor' && confirmForm}
           {message && (
             <p role="status" className="rounded-sm border border-ledger/40 bg-ledger-light px-3 py-2 text-sm">
               {message}
@@ -271,7 +299,8 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
           baseVersionId={baseVersionId}
           publishing={publish.isPending}
           onOpen={openVersion}
-          onPublish={onPublish}
+          onPublish={(versionId) => onPublish(versionId, 'versions')}
+          confirmForm={pendingPublish?.from === 'versions' ? confirmForm : null}
         />
       </div>
     </div>

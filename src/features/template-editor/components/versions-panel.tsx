@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { type ReactNode, useState } from 'react';
 import type { TemplateSummary } from '../../../../shared/api/templates.ts';
 import { useTemplateDiff } from '../api/get-template-diff.ts';
 import { VersionDiff } from './version-diff.tsx';
@@ -9,7 +9,10 @@ interface VersionsPanelProps {
   baseVersionId: number | null;
   publishing: boolean;
   onOpen(versionId: number): void;
+  /** Asks for the reason and confirmation of publishing (or rolling back to) a version. */
   onPublish(versionId: number): void;
+  /** The reason-and-confirmation form of a publication asked for here, shown under the table. */
+  confirmForm?: ReactNode;
 }
 
 const when = (iso: string) => `${iso.slice(0, 16).replace('T', ' ')} UTC`;
@@ -21,10 +24,10 @@ export function VersionsPanel({
   publishing,
   onOpen,
   onPublish,
+  confirmForm = null,
 }: VersionsPanelProps) {
   const versions = template.versions;
   const published = template.publishedVersionNumber;
-  const [confirming, setConfirming] = useState<number | null>(null);
   const [from, setFrom] = useState<number | ''>('');
   const [to, setTo] = useState<number | ''>('');
   const [pair, setPair] = useState<{ from: number; to: number } | null>(null);
@@ -38,8 +41,9 @@ export function VersionsPanel({
         Versions
       </h2>
       <p className="mt-1 text-sm text-ink-muted">
-        New reports use the published version. Publishing an earlier version rolls back; reports made before
-        keep the version they were made with.
+        New reports use the published version. Publishing an earlier version rolls back; both ask for a
+        reason, recorded in the audit trail. Report versions rendered before keep the template version they
+        were printed with.
       </p>
       <table className="mt-3 w-full border-collapse text-sm">
         <thead>
@@ -98,34 +102,16 @@ export function VersionsPanel({
                     <button type="button" className="underline" onClick={() => onOpen(version.id)}>
                       Open in editor
                     </button>
-                    {!version.published &&
-                      (confirming === version.id ? (
-                        <>
-                          <button
-                            type="button"
-                            disabled={publishing}
-                            className="rounded-sm bg-ledger px-2 py-0.5 font-semibold text-white disabled:opacity-60"
-                            onClick={() => {
-                              setConfirming(null);
-                              onPublish(version.id);
-                            }}
-                          >
-                            Confirm: {rollback ? 'roll back' : 'publish'}
-                          </button>
-                          <button type="button" className="underline" onClick={() => setConfirming(null)}>
-                            Cancel
-                          </button>
-                        </>
-                      ) : (
-                        <button
-                          type="button"
-                          disabled={publishing}
-                          className="rounded-sm border border-ledger px-2 py-0.5 font-semibold text-ledger disabled:opacity-60"
-                          onClick={() => setConfirming(version.id)}
-                        >
-                          {action}
-                        </button>
-                      ))}
+                    {!version.published && (
+                      <button
+                        type="button"
+                        disabled={publishing}
+                        className="rounded-sm border border-ledger px-2 py-0.5 font-semibold text-ledger disabled:opacity-60"
+                        onClick={() => onPublish(version.id)}
+                      >
+                        {action}
+                      </button>
+                    )}
                   </div>
                 </td>
               </tr>
@@ -133,6 +119,7 @@ export function VersionsPanel({
           })}
         </tbody>
       </table>
+      {confirmForm && <div className="mt-3">{confirmForm}</div>}
 
       {versions.length > 1 && (
         <form
