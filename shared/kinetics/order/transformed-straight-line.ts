@@ -4,7 +4,7 @@ import { KineticsError } from '../numeric/kinetics-error.ts';
  * Least-squares straight line through (tᵢ, g(yᵢ)) for a transform g of the values (identity, ln, 1/y),
  * without building the transformed list: slope, intercept, their standard errors and R².
  *
- * Why not `numeric/simple-linear-regression.ts`: that function returns residual and fitted lists and
+ * Why not the general straight line (`tests/reference/simple-linear-regression.ts`, kept as a test reference): it returns residual and fitted lists and
  * allocates a dozen arrays per call, which costs ~35 ms per plot on a 10⁵-point series (measured), three
  * plots per analysis. This one makes three passes over the data with compensated sums and allocates
  * nothing; `transformed-straight-line.test.ts` checks it against that function and against

@@ -1,10 +1,10 @@
 import { linearRegression } from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
-import { KineticsError } from './kinetics-error.ts';
-import { readNistDataset, significantDigits } from './nist-strd-reader.ts';
+import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
+import { readNistDataset, significantDigits } from '../../shared/kinetics/numeric/nist-strd-reader.ts';
+import { studentTQuantile } from '../../shared/kinetics/numeric/student-t-quantile.ts';
 import { predictOnLine } from './predict-on-line.ts';
 import { simpleLinearRegression } from './simple-linear-regression.ts';
-import { studentTQuantile } from './student-t-quantile.ts';
 
 const codeOf = (action: () => unknown): string | undefined => {
   try {

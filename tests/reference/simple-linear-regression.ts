@@ -1,6 +1,9 @@
-import { assertFiniteNumbers, assertValidWeights } from './assert-finite-numbers.ts';
-import { compensatedSum } from './compensated-sum.ts';
-import { KineticsError } from './kinetics-error.ts';
+import {
+  assertFiniteNumbers,
+  assertValidWeights,
+} from '../../shared/kinetics/numeric/assert-finite-numbers.ts';
+import { compensatedSum } from '../../shared/kinetics/numeric/compensated-sum.ts';
+import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
 
 /** A fitted straight line y = intercept + slope·x with its uncertainty; every number is finite. */
 export interface StraightLineFit {

@@ -1,7 +1,7 @@
-import { assertFiniteNumbers } from './assert-finite-numbers.ts';
-import { KineticsError } from './kinetics-error.ts';
+import { assertFiniteNumbers } from '../../shared/kinetics/numeric/assert-finite-numbers.ts';
+import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
+import { studentTQuantile } from '../../shared/kinetics/numeric/student-t-quantile.ts';
 import type { StraightLineFit } from './simple-linear-regression.ts';
-import { studentTQuantile } from './student-t-quantile.ts';
 
 /** The fitted line at one x, with a confidence interval for the mean and a prediction interval. */
 export interface LinePrediction {

@@ -1,9 +1,9 @@
 import { createHash, X509Certificate } from 'node:crypto';
-import { loadSigningIdentity } from './local-certificate-authority.ts';
-import { signingConfigFromEnv } from './signing-config.ts';
+import { loadSigningIdentity } from '../../server/features/signing/local-certificate-authority.ts';
+import { signingConfigFromEnv } from '../../server/features/signing/signing-config.ts';
 
 /**
- * `npx tsx server/features/signing/show-signing-identity.ts "<organisation name>"` prints, as JSON, which
+ * `npx tsx tests/support/show-signing-identity.ts "<organisation name>"` prints, as JSON, which
  * certificate seals that organisation's PDFs — subject, SHA-256 fingerprints of it and of the CA,
  * expiry, source — creating the local CA on first use like the server does. It prints no key
  * material and no passphrase. The tests start several of these at once to show that concurrent
