@@ -6,7 +6,7 @@
  * Field names follow the brief of the command: per series `id`, `n`, `selectedOrder`, `verdict`,
  * `models` (order, k, kCi95, c0, aicc, weight), `linearized` (slope, intercept, r2, k), `halfLife`
  * and `t90` with intervals, `shelfLife` when a limit is given; at top level `arrhenius` (eaJPerMol,
- * eaCi95, lnA, and `eyring` with ΔH‡ and ΔS‡) when a temperature column is given; per series
+ * eaCi95, lnA, `eyring` with ΔH‡ and ΔS‡, and `q10` implied by Ea) when a temperature column is given; per series
  * `plausible` (each plausible law's figures and the model averages) when no order is named.
  * Every number is finite or null.
  *
@@ -156,6 +156,14 @@ function arrheniusEntry(analysis: DatasetAnalysis, temperatureColumnGiven: boole
     n: fit?.n ?? arrhenius.rateConstants.length,
     intervalUnavailableReason: fit?.intervalUnavailableReason ?? null,
     eyring: eyringEntry(arrhenius.eyring),
+    q10: arrhenius.q10
+      ? {
+          fromC: arrhenius.q10.fromC,
+          toC: arrhenius.q10.toC,
+          estimate: arrhenius.q10.estimate,
+          ci95: arrhenius.q10.interval,
+        }
+      : null,
     prediction: prediction
       ? {
           temperatureC: prediction.temperatureC,

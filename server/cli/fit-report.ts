@@ -191,6 +191,12 @@ export function fitReport(document: FitDocument): string {
         `  Eyring: ΔH‡ = ${kilo(eyring.deltaHJPerMol as number)} kJ/mol, CI ${ci(eyring.deltaHCi95, kilo)}; ΔS‡ = ${formatNumber(eyring.deltaSJPerMolK)} J/(mol·K), CI ${ci(eyring.deltaSCi95, formatNumber)}`,
       );
     }
+    if ('q10' in arrhenius && arrhenius.q10) {
+      const q10 = arrhenius.q10;
+      lines.push(
+        `  Q10 over ${q10.fromC} → ${q10.toC} °C (from Ea) = ${formatNumber(q10.estimate)}, CI ${interval(q10.ci95)}`,
+      );
+    }
     if ('prediction' in arrhenius && arrhenius.prediction) {
       const prediction = arrhenius.prediction;
       lines.push(

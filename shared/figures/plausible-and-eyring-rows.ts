@@ -11,7 +11,8 @@ import type { ResultRow } from './result-row.ts';
  *   model-averaged t90 and time to a limit (model 'average', noted "model-averaged, unconditional
  *   interval (Burnham & Anderson 2002 §4.3)"). k is never averaged (its unit differs by order).
  * - Eyring rows in the `arrhenius` section: ΔH‡ (kJ/mol) and ΔS‡ (J/(mol·K)) with intervals
- *   (H. Eyring, J. Chem. Phys. 3 (1935) 107).
+ *   (H. Eyring, J. Chem. Phys. 3 (1935) 107), and the Q10 over θ → θ + 10 °C implied by Ea
+ *   (van 't Hoff 1884), θ the storage temperature or else the lowest tested one.
  *
  * Throws nothing.
  *
@@ -148,6 +149,29 @@ export function eyringRows(arrhenius: DatasetArrhenius): ResultRow[] {
       unit: 'J/(mol·K)',
       digits: ESTIMATE_DIGITS,
       note,
+    }),
+  ];
+}
+
+/** Q10 implied by Ea over fromC → fromC + 10 °C, with the interval carried from Ea's. */
+export function q10Rows(arrhenius: DatasetArrhenius): ResultRow[] {
+  const q10 = arrhenius.q10;
+  if (!q10) return [];
+  return [
+    row({
+      seriesId: null,
+      batch: null,
+      temperatureC: q10.fromC,
+      section: 'arrhenius',
+      model: arrhenius.order === null ? null : String(arrhenius.order),
+      quantity: 'q10',
+      label: `Q10 over ${q10.fromC} → ${q10.toC} °C (from Ea)`,
+      estimate: q10.estimate,
+      interval: q10.interval,
+      unit: '',
+      digits: 3,
+      note:
+        q10.interval === null ? (arrhenius.fit?.intervalUnavailableReason ?? '') : 'from the interval of Ea',
     }),
   ];
 }

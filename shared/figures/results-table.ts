@@ -1,7 +1,7 @@
 import type { DatasetAnalysis, SeriesResult } from '../kinetics/analyse-dataset.ts';
 import type { DerivedFigure } from '../kinetics/derived/model-summary.ts';
 import type { RateLawModel } from '../kinetics/order/fit-rate-law.ts';
-import { eyringRows, plausibleRows } from './plausible-and-eyring-rows.ts';
+import { eyringRows, plausibleRows, q10Rows } from './plausible-and-eyring-rows.ts';
 import type { ResultRow } from './result-row.ts';
 
 /**
@@ -221,7 +221,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
         digits: DIGITS.rSquared,
       }),
     );
-    rows.push(...eyringRows(arrhenius));
+    rows.push(...eyringRows(arrhenius), ...q10Rows(arrhenius));
     for (const point of arrhenius.rateConstants) {
       rows.push(
         row({

@@ -54,6 +54,11 @@ export interface DatasetArrhenius {
   fit: ArrheniusFit | null;
   /** Eyring line through the same rate constants (ΔH‡, ΔS‡); null when there is no Arrhenius fit. */
   eyring: { fit: EyringFit | null; notApplicableReason: string | null } | null;
+  /**
+   * Q10 implied by Ea over fromC → fromC + 10 °C, fromC the storage temperature (else the lowest
+   * tested one); the interval is Ea's interval carried through (Q10 rises with Ea). Null without a fit.
+   */
+  q10: { fromC: number; toC: number; estimate: number; interval: [number, number] | null } | null;
   notApplicableReason: string | null;
   prediction:
     | (RateConstantPrediction & {

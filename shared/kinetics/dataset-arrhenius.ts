@@ -3,6 +3,7 @@ import { KineticsError } from './numeric/kinetics-error.ts';
 import { arrheniusFit } from './temperature/arrhenius-fit.ts';
 import { eyringFit } from './temperature/eyring-fit.ts';
 import { predictRateConstant } from './temperature/predict-rate-constant.ts';
+import { q10FromActivationEnergy } from './temperature/q10.ts';
 import type { IntegerOrder, Series } from './types.ts';
 import { rateConstantUnit, SECONDS_PER_TIME_UNIT, tryParseTimeUnit } from './units.ts';
 
@@ -114,6 +115,7 @@ export function datasetArrhenius(
     excludedSeries: [],
     fit: null,
     eyring: null,
+    q10: null,
     notApplicableReason: null,
     prediction: null,
   };
@@ -185,6 +187,7 @@ export function datasetArrhenius(
   }
   base.fit = fitted.value;
   base.eyring = eyringOf(base, seriesList, options);
+  base.q10 = q10Of(fitted.value, options.storageTemperatureC);
   if (options.storageTemperatureC !== undefined) {
     const storage = options.storageTemperatureC;
     const predicted = kineticsFailure(() => predictRateConstant(fitted.value, storage));
@@ -250,4 +253,30 @@ function eyringOf(
   return 'error' in fitted
     ? { fit: null, notApplicableReason: fitted.error.message }
     : { fit: fitted.value, notApplicableReason: null };
+}
+
+/**
+ * Q10 over θ → θ + 10 °C implied by the Arrhenius activation energy:
+ * ln Q10 = (Ea/R)·(1/T₁ − 1/T₂) with T₂ = T₁ + 10 K (van 't Hoff 1884). θ is the storage
+ * temperature when one is stated, else the lowest tested temperature. Q10 increases with Ea, so
+ * its interval is the Q10 of each end of Ea's interval. A screen only: Q10 drifts with temperature.
+ *
+ * Example: Ea = 83.144 kJ/mol from 25 °C gives Q10 = 2.97.
+ */
+function q10Of(
+  fit: NonNullable<DatasetArrhenius['fit']>,
+  storageTemperatureC: number | undefined,
+): DatasetArrhenius['q10'] {
+  const fromC = storageTemperatureC ?? fit.temperatureRangeC[0];
+  const result = kineticsFailure(() => ({
+    estimate: q10FromActivationEnergy(fit.activationEnergy, fromC),
+    interval:
+      fit.activationEnergyInterval === null
+        ? null
+        : ([
+            q10FromActivationEnergy(fit.activationEnergyInterval[0], fromC),
+            q10FromActivationEnergy(fit.activationEnergyInterval[1], fromC),
+          ] as [number, number]),
+  }));
+  return 'error' in result ? null : { fromC, toC: fromC + 10, ...result.value };
 }

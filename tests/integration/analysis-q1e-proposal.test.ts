@@ -216,4 +216,26 @@ describe('Eyring joins Arrhenius on the analysis page', () => {
     expect(html).toContain('Entropy of activation ΔS‡ (Eyring)');
     expect(html).toContain(`data-value="${deltaH / 1000}"`);
   });
+
+  it("shows the Q10 over 25 → 35 °C implied by Ea, equal to the rate ratio read off the two-point Arrhenius line (van 't Hoff 1884; Q10 = k(θ+10)/k(θ))", async () => {
+    const { html, json } = await runFor(DECLARED);
+    const arrhenius = analysisOf(json).arrhenius!;
+    const q10 = arrhenius.q10!;
+    expect(q10.fromC).toBe(25);
+    expect(q10.toC).toBe(35);
+    // Two points fix the line: ln k(T) = ln k₁ + ln(k₂/k₁)·(1/T₁ − 1/T)/(1/T₁ − 1/T₂), so
+    // Q10 = k(308.15 K)/k(298.15 K) = (k₂/k₁)^((1/T₁ − 1/308.15)/(1/T₁ − 1/T₂)) (common practice).
+    const [p1, p2] = arrhenius.rateConstants as [
+      { k: number; temperatureC: number },
+      { k: number; temperatureC: number },
+    ];
+    const [t1, t2] = [p1.temperatureC + 273.15, p2.temperatureC + 273.15];
+    const ratio = (p2.k / p1.k) ** ((1 / t1 - 1 / 308.15) / (1 / t1 - 1 / t2));
+    expect(q10.estimate).toBeCloseTo(ratio, 10);
+    expect(q10.estimate).toBeGreaterThan(1);
+    // Two temperatures leave no degrees of freedom: no interval, and the row says why.
+    expect(q10.interval).toBeNull();
+    expect(html).toContain('Q10 over 25 → 35 °C (from Ea)');
+    expect(html).toContain(`data-value="${q10.estimate}"`);
+  });
 });

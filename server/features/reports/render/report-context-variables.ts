@@ -91,7 +91,7 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   {
     path: 'summary.arrhenius',
     description:
-      'Arrhenius fit or null: order, orderWhy (why that order), noOrderNamedWarning (text or null), eyring { deltaHKJPerMol, deltaHInterval, deltaSJPerMolK, deltaSInterval } or null, temperatures[], activationEnergyKJPerMol, activationEnergyInterval, rSquared, prediction { temperatureC, k, kInterval, kUnit, t90, t90Interval, extrapolated }, notApplicableReason.',
+      'Arrhenius fit or null: order, orderWhy (why that order), noOrderNamedWarning (text or null), eyring { deltaHKJPerMol, deltaHInterval, deltaSJPerMolK, deltaSInterval } or null, q10 { fromC, toC, estimate, interval } or null, temperatures[], activationEnergyKJPerMol, activationEnergyInterval, rSquared, prediction { temperatureC, k, kInterval, kUnit, t90, t90Interval, extrapolated }, notApplicableReason.',
   },
   {
     path: 'resultTables[]',

@@ -198,6 +198,14 @@ function arrheniusSummary(analysis: DatasetAnalysis) {
           deltaSInterval: arrhenius.eyring.fit.entropyOfActivation.interval ?? null,
         }
       : null,
+    q10: arrhenius.q10
+      ? {
+          fromC: arrhenius.q10.fromC,
+          toC: arrhenius.q10.toC,
+          estimate: arrhenius.q10.estimate,
+          interval: arrhenius.q10.interval,
+        }
+      : null,
     temperatures: arrhenius.rateConstants.map((point) => point.temperatureC),
     activationEnergyKJPerMol: fit ? kilo(fit.activationEnergy) : null,
     activationEnergyInterval: fit?.activationEnergyInterval ? fit.activationEnergyInterval.map(kilo) : null,
