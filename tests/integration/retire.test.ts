@@ -7,6 +7,7 @@ import {
   reportVersions,
   retirements,
 } from '../../server/platform/db/schema/index.ts';
+import { openSuperuserDatabase } from '../support/superuser.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
 import { type Agent, reportWithoutRender, studyWithRun, tokenOf } from './study-flow-fixture.ts';
 
@@ -140,7 +141,18 @@ describe('retiring a dataset', () => {
     expect(await refusal(db.delete(retirements).where(eq(retirements.recordId, datasetId)))).toMatch(
       /retirements is write-once: DELETE is not allowed/,
     );
-    expect(await refusal(db.execute(sql`truncate retirements`))).toMatch(/TRUNCATE is not allowed/);
+    // The app role holds no TRUNCATE privilege (npm test connects as it); a superuser meets the trigger.
+    expect(await refusal(db.execute(sql`truncate retirements`))).toMatch(
+      /TRUNCATE is not allowed|permission denied for table retirements/,
+    );
+    const superuser = await openSuperuserDatabase();
+    try {
+      expect(await refusal(superuser.db.execute(sql`truncate retirements`))).toMatch(
+        /TRUNCATE is not allowed/,
+      );
+    } finally {
+      await superuser.close();
+    }
   });
 });
 
