@@ -225,10 +225,8 @@ describe('Eyring joins Arrhenius on the analysis page', () => {
     expect(q10.toC).toBe(35);
     // Two points fix the line: ln k(T) = ln k₁ + ln(k₂/k₁)·(1/T₁ − 1/T)/(1/T₁ − 1/T₂), so
     // Q10 = k(308.15 K)/k(298.15 K) = (k₂/k₁)^((1/T₁ − 1/308.15)/(1/T₁ − 1/T₂)) (common practice).
-    const [p1, p2] = arrhenius.rateConstants as [
-      { k: number; temperatureC: number },
-      { k: number; temperatureC: number },
-    ];
+    const [p1, p2] = arrhenius.rateConstants;
+    if (!p1 || !p2) throw new Error('expected two temperatures');
     const [t1, t2] = [p1.temperatureC + 273.15, p2.temperatureC + 273.15];
     const ratio = (p2.k / p1.k) ** ((1 / t1 - 1 / 308.15) / (1 / t1 - 1 / t2));
     expect(q10.estimate).toBeCloseTo(ratio, 10);

@@ -183,17 +183,19 @@ export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
     tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
   }
   if (of('plausible').length > 0) {
-    const named = of('plausible').map((row) => ({
-      ...row,
-      label: `${row.model === 'average' ? 'Model average' : modelName(row)}: ${row.label}`,
-    }));
-    tables.push(
-      listTable(
-        analysis,
-        named,
-        'Series whose order the data do not name: each plausible law (Akaike weight ≥ 0.1 or ΔAICc ≤ 2) and the model-averaged t90 and time to a limit with the unconditional interval (Burnham & Anderson 2002, §4.3); k is never averaged',
-      ),
+    // The law in a column of its own, so the quantity does not wrap one word per line.
+    const plausible = of('plausible');
+    const table = listTable(
+      analysis,
+      plausible,
+      'Series whose order the data do not name: each plausible law (Akaike weight ≥ 0.1 or ΔAICc ≤ 2) and the model-averaged t90 and time to a limit with the unconditional interval (Burnham & Anderson 2002, §4.3); k is never averaged',
     );
+    table.columns.splice(1, 0, { key: 'law', label: 'Law' });
+    table.rows.forEach((cells, index) => {
+      const row = plausible[index] as ResultRow;
+      cells.law = row.model === 'average' ? 'model average' : modelName(row);
+    });
+    tables.push(table);
   }
   if (of('rate-law').length > 0) tables.push(modelTable(analysis, of('rate-law')));
   if (of('linearised').length > 0) tables.push(linearisedTable(of('linearised')));
