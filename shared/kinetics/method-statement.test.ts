@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { analyseDataset } from './analyse-dataset.ts';
 import { OUTLIER_FAMILY_ALPHA } from './order/bonferroni-outlier-test.ts';
 import {
-  DECISIVE_DELTA_AICC,
+  DECISIVE_ORDER_EVIDENCE,
   MAX_WRONG_ORDER_RATE_PER_CELL,
   MIN_FRACTION_REACTED,
   ORDER_CONSISTENCY_ALPHA,
@@ -51,10 +51,10 @@ describe('methodStatement', () => {
     expect(statement.engineVersion).toBe(ENGINE_VERSION);
     expect(statement.orderSelection.thresholds).toMatchObject({
       minFractionReacted: MIN_FRACTION_REACTED,
-      decisiveDeltaAicc: DECISIVE_DELTA_AICC,
+      decisiveOrderEvidence: DECISIVE_ORDER_EVIDENCE,
       orderConsistencyAlpha: ORDER_CONSISTENCY_ALPHA,
     });
-    expect(statement.orderSelection.rule).toContain(`by at least ${DECISIVE_DELTA_AICC}`);
+    expect(statement.orderSelection.rule).toContain(`is at least ${DECISIVE_ORDER_EVIDENCE}`);
     expect(statement.orderSelection.rule).toContain(
       `at least ${MIN_FRACTION_REACTED * 100} % of the initial value has reacted`,
     );

@@ -2,7 +2,7 @@ import type { DatasetFindings, DatasetOptions } from './dataset-analysis.ts';
 import { OUTLIER_FAMILY_ALPHA } from './order/bonferroni-outlier-test.ts';
 import { PROPORTIONAL_LOG_LIKELIHOOD_GAIN } from './order/choose-error-model.ts';
 import {
-  DECISIVE_DELTA_AICC,
+  DECISIVE_ORDER_EVIDENCE,
   MAX_WRONG_ORDER_RATE_PER_CELL,
   MIN_FRACTION_REACTED,
   MIN_POINTS_FOR_COMPARISON,
@@ -62,7 +62,7 @@ export interface MethodStatement {
     rule: string;
     thresholds: {
       minFractionReacted: number;
-      decisiveDeltaAicc: number;
+      decisiveOrderEvidence: number;
       orderConsistencyAlpha: number;
       systematicMisfitAlpha: number;
       minPointsForComparison: number;
@@ -142,7 +142,7 @@ export function methodStatement(
   const errorText = used === '' ? errorRule : `${errorRule} Used: ${used}.`;
   const thresholds = {
     minFractionReacted: MIN_FRACTION_REACTED,
-    decisiveDeltaAicc: DECISIVE_DELTA_AICC,
+    decisiveOrderEvidence: DECISIVE_ORDER_EVIDENCE,
     orderConsistencyAlpha: ORDER_CONSISTENCY_ALPHA,
     systematicMisfitAlpha: SYSTEMATIC_MISFIT_ALPHA,
     minPointsForComparison: MIN_POINTS_FOR_COMPARISON,
@@ -151,7 +151,7 @@ export function methodStatement(
   const orderSource = options.order === undefined ? 'data' : 'analyst';
   const dataRule =
     `An integer order is named only when all three integer laws were compared (at least ${MIN_POINTS_FOR_COMPARISON} points), ` +
-    `at least ${percent(MIN_FRACTION_REACTED)} of the initial value has reacted, its AICc is lower than every other integer order's by at least ${DECISIVE_DELTA_AICC}, ` +
+    `at least ${percent(MIN_FRACTION_REACTED)} of the initial value has reacted, its lead over the next-best integer order, as (N − 2)·ln(RSS ratio) = ΔAICc·(N − 2)/N, is at least ${DECISIVE_ORDER_EVIDENCE} (a ΔAICc of ${((DECISIVE_ORDER_EVIDENCE * 9) / 7).toFixed(1)} with 9 points), ` +
     `the F test against the free-order fit does not reject it at ${ORDER_CONSISTENCY_ALPHA}, and the runs test on its residuals does not reject at ${SYSTEMATIC_MISFIT_ALPHA}; otherwise the order is reported as not identified. ` +
     `These thresholds were calibrated by simulation (orders 0, 1, 2; 5 to 15 points; 0.5 to 3 % noise; 10 to 90 % reacted) so that a wrong order is named in at most ${percent(MAX_WRONG_ORDER_RATE_PER_CELL)} of series in every combination of fraction reacted and noise.`;
   const orderRule =

@@ -22,7 +22,8 @@ import { startingValues } from './starting-values.ts';
  *
  * Decidable cell: not every ≥ 60 % cell carries the information to name an order. The information is measured
  * before any noise is drawn, by the separation λ = min over the wrong integer laws of RSS(best fit of that law
- * to the noise-free curve)/σ² — the non-centrality of the misfit. The decision needs ΔAICc ≥ 10; with N = 6
+ * to the noise-free curve)/σ² — the non-centrality of the misfit. The decision needs (N − 2)·ln(RSS ratio) ≥ 7.5, i.e. ΔAICc ≥ 11.25 with N = 6 (engine 0.3.0; the
+ * figures below were derived for the former ΔAICc ≥ 10 and are a slight understatement now); with N = 6
  * (4 residual df), ΔAICc ≈ N·ln(1 + λ′/RSS₀) with RSS₀ ~ σ²χ²₄ and λ′ ≈ λ ± 2√λ, and passing 10 in ≥ 99 % of
  * series needs λ of about 100 (taking the 99th percentiles of χ²₄, 13.3, and of λ′ at once gives 105, an
  * overstatement because both rarely happen together). So cells with λ < 100 — in this grid 1 % noise at

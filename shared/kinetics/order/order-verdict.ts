@@ -1,8 +1,9 @@
 import type { RateLawFit } from './fit-rate-law.ts';
 import {
-  DECISIVE_DELTA_AICC,
+  DECISIVE_ORDER_EVIDENCE,
   MIN_FRACTION_REACTED,
   ORDER_CONSISTENCY_ALPHA,
+  orderEvidence,
   SYSTEMATIC_MISFIT_ALPHA,
 } from './order-decision-thresholds.ts';
 import type { OrderSelection } from './order-selection.ts';
@@ -26,6 +27,7 @@ export function orderVerdict(
   reasons: readonly string[],
   bestFit: RateLawFit | null,
   valueUnit: string,
+  pointCount: number,
 ): string {
   const best = selection.bestIntegerOrder;
   const fraction = selection.fractionReacted;
@@ -70,7 +72,15 @@ export function orderVerdict(
     );
   }
   const delta = selection.deltaAiccToRunnerUp;
-  if (delta !== null && delta < DECISIVE_DELTA_AICC && best !== null && selection.runnerUpOrder !== null) {
+  const evidence = delta === null ? null : orderEvidence(delta, pointCount);
+  if (
+    delta !== null &&
+    evidence !== null &&
+    evidence < DECISIVE_ORDER_EVIDENCE &&
+    best !== null &&
+    selection.runnerUpOrder !== null
+  ) {
+    const needed = (DECISIVE_ORDER_EVIDENCE * pointCount) / (pointCount - 2);
     const scatter = selection.residualStandardDeviation;
     const scatterWords =
       scatter === null
@@ -79,7 +89,7 @@ export function orderVerdict(
           ? `, against a scatter of the points of ${percent(scatter)} (relative residual SD)`
           : `, against a scatter of the points of ${number(scatter)} ${valueUnit} (residual SD)`;
     why.push(
-      `the best-fitting ${ORDER_ADJECTIVES[best]} and ${ORDER_ADJECTIVES[selection.runnerUpOrder]} curves differ by at most ${number(selection.curveSeparation ?? 0)} ${valueUnit} at the measured times${scatterWords}, so their AICc differ by only ${number(delta)} (${DECISIVE_DELTA_AICC} needed)`,
+      `the best-fitting ${ORDER_ADJECTIVES[best]} and ${ORDER_ADJECTIVES[selection.runnerUpOrder]} curves differ by at most ${number(selection.curveSeparation ?? 0)} ${valueUnit} at the measured times${scatterWords}, so their AICc differ by only ${number(delta)} (${number(needed)} needed with ${pointCount} points)`,
     );
   }
   if (bestTest !== null && bestTest !== undefined && bestTest.p < ORDER_CONSISTENCY_ALPHA && best !== null) {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyseSeries } from '../analyse-series.ts';
 import type { Series } from '../types.ts';
-import { DECISIVE_DELTA_AICC, MIN_FRACTION_REACTED } from './order-decision-thresholds.ts';
+import { DECISIVE_ORDER_EVIDENCE, MIN_FRACTION_REACTED, orderEvidence } from './order-decision-thresholds.ts';
 
 const series = (times: number[], values: number[], id = 'S-1'): Series => ({
   id,
@@ -26,8 +26,20 @@ function scatter(count: number, sd: number, seed = 2024): number[] {
   );
 }
 
+describe('orderEvidence: the AICc lead of equal-size laws as (N − 2)·ln(RSS ratio)', () => {
+  it('scales the lead by (N − 2)/N (arithmetic: ΔAICc = N·ln(RSS ratio) for laws with the same parameter count)', () => {
+    // RSS ratio 3 over 9 points: ΔAICc = 9·ln 3, evidence 7·ln 3 = 7.690.
+    expect(orderEvidence(9 * Math.log(3), 9)).toBeCloseTo(7 * Math.log(3), 12);
+    expect(orderEvidence(12, 9)).toBeCloseTo(9.3333, 4);
+    // The same lead is weaker evidence from fewer points: 12.5 is needed with 5 points, 7.5·15/13 = 8.654 with 15.
+    expect(orderEvidence(12.5, 5)).toBeCloseTo(DECISIVE_ORDER_EVIDENCE, 12);
+    expect(orderEvidence(8.65, 15)).toBeLessThan(DECISIVE_ORDER_EVIDENCE);
+    expect(orderEvidence(8.66, 15)).toBeGreaterThan(DECISIVE_ORDER_EVIDENCE);
+  });
+});
+
 describe('selectOrder names an order only on decisive evidence', () => {
-  it('N2O5 in CCl4 (Eyring & Daniels 1930 N2O5 data, from memory; 86 % reacted): first order, with ΔAICc ≥ the threshold', () => {
+  it('N2O5 in CCl4 (Eyring & Daniels 1930 N2O5 data, from memory; 86 % reacted): first order, with small-sample evidence ≥ the threshold', () => {
     const analysis = analyseSeries(
       series(
         [0, 184, 319, 526, 867, 1198, 1877, 2315, 3144],
@@ -35,7 +47,9 @@ describe('selectOrder names an order only on decisive evidence', () => {
       ),
     );
     expect(analysis.selectedOrder).toBe(1);
-    expect(analysis.selection.deltaAiccToRunnerUp!).toBeGreaterThanOrEqual(DECISIVE_DELTA_AICC);
+    expect(orderEvidence(analysis.selection.deltaAiccToRunnerUp!, 9)).toBeGreaterThanOrEqual(
+      DECISIVE_ORDER_EVIDENCE,
+    );
     expect(analysis.verdict).toMatch(/^First order/);
     expect(analysis.verdict).toMatch(/86 % of the initial value has reacted/);
   });
