@@ -1,6 +1,7 @@
 import type { Server } from 'node:http';
 import { createApp } from './app.ts';
 import { DEMO_PASSWORDS_NOTE } from './demo/demo-accounts.ts';
+import { startInProcessChainCheckWorker } from './features/audit-viewer/index.ts';
 import { startInProcessRenderWorker } from './features/reports/index.ts';
 import { closeSigningBrowsers } from './features/signing/index.ts';
 import { startAuditAnchoring } from './platform/audit/audit-anchoring.ts';
@@ -35,6 +36,9 @@ const renderWorker = startInProcessRenderWorker(database, environment.DATABASE_U
 // Checkpoints of the audit chain, signed and logged outside the database (AUDIT_ANCHOR_* settings).
 const auditAnchoring = startAuditAnchoring(database.db);
 
+// Chain checks of trails too large for a request run here, in the background.
+const chainCheckWorker = startInProcessChainCheckWorker(database.db, environment.DATABASE_URL);
+
 let stopping = false;
 async function shutdown(signal: string) {
   if (stopping) return;
@@ -42,6 +46,7 @@ async function shutdown(signal: string) {
   logger.info({ signal }, 'stopping');
   server.close(async () => {
     await renderWorker.close();
+    await chainCheckWorker.close();
     await auditAnchoring.close();
     await closeSigningBrowsers();
     await mail.close();

@@ -1,15 +1,16 @@
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
+import { installChainCheckQueue } from './features/audit-viewer/index.ts';
 import { openRenderQueue, parseRenderConfig } from './features/reports/index.ts';
 import { grantAppRole, roleOf } from './platform/db/app-role-grants.ts';
 import { applyMigrations } from './platform/db/migrate.ts';
 
 /**
  * The migration step of `npm start` and of the test setup, run as the owner role: the committed
- * drizzle migrations, then pg-boss's schema and the render queues (the app's pg-boss starts with
- * `migrate: false` and creates nothing), then the app role's grants when the app connects as
- * another role than the owner. With only DATABASE_URL set the owner is that same role (a
- * development database), and nothing is granted.
+ * drizzle migrations, then pg-boss's schema, the render queues and the audit chain-check queue
+ * (the app's pg-boss starts with `migrate: false` and creates nothing), then the app role's
+ * grants when the app connects as another role than the owner. With only DATABASE_URL set the
+ * owner is that same role (a development database), and nothing is granted.
  */
 export async function migrateDatabase({ appUrl, ownerUrl }: { appUrl: string; ownerUrl: string }) {
   await applyMigrations(ownerUrl);
@@ -24,6 +25,7 @@ export async function migrateDatabase({ appUrl, ownerUrl }: { appUrl: string; ow
   } finally {
     await queue.close();
   }
+  await installChainCheckQueue(ownerUrl);
   if (roleOf(appUrl) !== roleOf(ownerUrl)) await grantAppRole(ownerUrl, roleOf(appUrl));
 }
 

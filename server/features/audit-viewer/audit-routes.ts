@@ -31,6 +31,13 @@ import {
   recentChainChecks,
   zonedTime,
 } from './audit-viewer.ts';
+import {
+  chainCheckProgressView,
+  findChainCheck,
+  parseChainCheckJobSettings,
+  requestChainCheck,
+} from './chain-check-jobs.ts';
+import { openChainCheckQueue } from './chain-check-queue.ts';
 
 /** Who may read the audit trail: those who review records and those who administer them. */
 const AUDITORS = ['admin', 'reviewer'] as const;
@@ -47,6 +54,8 @@ const withoutPage = ({ page: _page, ...rest }: AuditFilter) => rest;
 export function auditRoutes(services: AppServices): Router {
   const router = Router();
   const { db } = services;
+  // The web process only sends chain-check jobs, through the app's own pool (started on first use).
+  const chainCheckQueue = openChainCheckQueue({ pool: services.pool });
 
   router.get('/audit', requireRole(...AUDITORS), async (req, res) => {
     const organisationId = req.user!.organisationId;
@@ -169,6 +178,14 @@ export function auditRoutes(services: AppServices): Router {
 
   router.get('/audit/chain', requireRole(...AUDITORS), async (req, res) => {
     const organisation = await auditOrganisation(db, req.user!.organisationId);
+    const runId = typeof req.query.run === 'string' ? recordIdSchema.parse(req.query.run) : null;
+    const run = runId === null ? null : await findChainCheck(db, organisation.id, runId);
+    if (runId !== null && !run)
+      throw new HttpError(404, `There is no chain check ${runId} of your organisation.`);
+    if (run?.status === 'done' && run.outcomeEventId)
+      return res.redirect(303, `/audit/chain?check=${run.outcomeEventId}`);
+    // While it runs the page reloads itself every few seconds (a Refresh header: no script needed).
+    if (run && run.status !== 'failed') res.set('Refresh', '3');
     const checks = await recentChainChecks(db, organisation.id);
     const wanted = typeof req.query.check === 'string' ? Number(req.query.check) : null;
     const views = await Promise.all(
@@ -190,11 +207,18 @@ export function auditRoutes(services: AppServices): Router {
       title: 'Audit trail chain check',
       organisation,
       latest: views.find((view) => view.highlighted) ?? null,
+      run: run ? chainCheckProgressView(run) : null,
       checks: views,
     });
   });
 
   router.post('/audit/chain', requireRole(...AUDITORS), async (req, res) => {
+    // A small trail is checked at once; a large one in the background, with its progress shown.
+    const events = await lastAuditEventId(db);
+    if (events > parseChainCheckJobSettings().inRequestMaxEvents) {
+      const checkId = await requestChainCheck(db, chainCheckQueue, req.user!, auditContext(req), events);
+      return res.redirect(303, `/audit/chain?run=${checkId}`);
+    }
     const outcome = await checkAuditChain(db, req.user!, auditContext(req));
     res.redirect(303, `/audit/chain?check=${outcome.eventId}`);
   });

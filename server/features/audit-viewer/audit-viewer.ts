@@ -17,7 +17,6 @@ import { AUDIT_PAGE_SIZE, type AuditFilter } from '../../../shared/api/audit.ts'
 import { isKnownTimeZone, wallClockWithOffset } from '../../../shared/time/zoned-time.ts';
 import { type AuditAnchor, configuredAuditAnchor } from '../../platform/audit/audit-anchor.ts';
 import { GENESIS_HASH } from '../../platform/audit/audit-hash.ts';
-import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import { checkAuditTrail } from '../../platform/audit/audit-trail-check.ts';
 import {
   type OrganisationChainResult,
@@ -28,8 +27,10 @@ import type { Database, Executor } from '../../platform/db/client.ts';
 import { auditEvents, organisations, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { listPeople } from '../people/index.ts';
+import { CHAIN_CHECKED_ACTION, recordChainCheck } from './chain-check-jobs.ts';
 
-export const CHAIN_CHECKED_ACTION = 'audit.chain-checked';
+export { CHAIN_CHECKED_ACTION };
+
 export const AUDIT_EXPORTED_ACTION = 'audit.exported';
 const FALLBACK_TIME_ZONE = 'UTC';
 
@@ -189,14 +190,7 @@ export async function checkAuditChain(
   anchor: AuditAnchor = configuredAuditAnchor(),
 ): Promise<ChainCheckOutcome> {
   const check = organisationChainResult(await checkAuditTrail(executor, anchor), actor.organisationId);
-  const { id } = await appendAuditEvent(executor, {
-    organisationId: actor.organisationId,
-    actorUserId: actor.id,
-    actorLabel: actor.email,
-    action: CHAIN_CHECKED_ACTION,
-    after: check,
-    context,
-  });
+  const { id } = await recordChainCheck(executor, actor, check, context);
   return { ...check, eventId: id };
 }
 

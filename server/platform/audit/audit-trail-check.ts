@@ -57,10 +57,14 @@ export interface TrailCheck {
   tallies: Map<number | null, OrganisationTally>;
 }
 
+/** Events read between two progress reports of a check (the CLI's lines, the background job's row). */
+export const PROGRESS_EVERY_EVENTS = 10_000;
+
 export async function checkAuditTrail(
   db: Executor,
   anchor: AuditAnchor,
-  onProgress?: (eventsScanned: number) => void,
+  onProgress?: (eventsScanned: number) => void | Promise<void>,
+  progressEvery = PROGRESS_EVERY_EVENTS,
 ): Promise<TrailCheck> {
   const lines = await anchor.readCheckpoints(db);
   const findings: TrailFinding[] = [];
@@ -164,7 +168,7 @@ export async function checkAuditTrail(
     if (lastCheckpoint === null || row.id > lastCheckpoint.headId) entry.unanchored += 1;
     previous = { id: row.id, hash: row.hash, organisationId: row.organisationId };
     scanned += 1;
-    if (onProgress && scanned % 10_000 === 0) onProgress(scanned);
+    if (onProgress && scanned % progressEvery === 0) await onProgress(scanned);
   }
 
   const newestId = previous?.id ?? 0;

@@ -1,4 +1,5 @@
 export * from './analysis-runs.ts';
+export * from './audit-chain-checks.ts';
 export * from './audit-events.ts';
 export * from './datasets.ts';
 export * from './mail.ts';
