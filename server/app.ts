@@ -5,6 +5,7 @@ import helmet from 'helmet';
 import { analysisRoutes } from './features/analysis/index.ts';
 import { auditRoutes } from './features/audit-viewer/index.ts';
 import { apiRoutes, pageRoutes } from './features/dashboard/index.ts';
+import { inboxCount, inboxRoutes } from './features/inbox/index.ts';
 import { uploadRoutes } from './features/intake/index.ts';
 import { outboxRoutes } from './features/outbox/index.ts';
 import { accountRoutes, authRoutes, userAdminRoutes } from './features/people/index.ts';
@@ -14,7 +15,7 @@ import { reviewRoutes } from './features/review/index.ts';
 import { settingsRoutes } from './features/settings/index.ts';
 import { studyRoutes } from './features/studies/index.ts';
 import { templateAdminRoutes } from './features/templates/index.ts';
-import { verificationRoutes } from './features/verification/index.ts';
+import { publicVerificationRoutes, verificationRoutes } from './features/verification/index.ts';
 import type { AppOptions, AppServices } from './platform/app-services.ts';
 import { createCsrf } from './platform/auth/csrf.ts';
 import { createAuthenticator } from './platform/auth/passport-setup.ts';
@@ -128,10 +129,13 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   );
   app.use(services.authenticator.initialize());
   app.use(services.authenticator.session());
+  app.use(inboxCount(services));
 
   app.use(requireJsonBody);
   app.use(express.json({ limit: '100kb' }));
   app.use(express.urlencoded({ extended: false, limit: '100kb' }));
+  // The public PDF check reads its multipart body first and then runs this same CSRF check itself.
+  app.use(publicVerificationRoutes(services, csrf.protect));
   app.use(csrf.protect);
 
   app.use(authRoutes(services));
@@ -149,6 +153,7 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   app.use(uploadRoutes(services));
   app.use(reviewRoutes(services));
   app.use(verificationRoutes(services));
+  app.use(inboxRoutes(services));
   app.use(templateAdminRoutes(services));
 
   app.use(notFound);

@@ -10,6 +10,8 @@ export const activityEntrySchema = z.object({
   id: z.number().int(),
   occurredAt: z.string(),
   action: z.string(),
+  /** The event in plain words (the code stays in `action`). */
+  summary: z.string(),
   recordType: z.string().nullable(),
   recordId: z.string().nullable(),
 });

@@ -3,6 +3,7 @@ import {
   temperatureUnitFromHeader,
   timeUnitFromHeader,
   unitTextOfHeader,
+  valueUnitForStudy,
   valueUnitFromHeader,
 } from './unit-from-header.ts';
 
@@ -30,5 +31,21 @@ describe('units stated in headers', () => {
     expect(temperatureUnitFromHeader('Lagerung °C')).toBe('C');
     expect(temperatureUnitFromHeader('T / K')).toBe('K');
     expect(temperatureUnitFromHeader('Storage')).toBeNull();
+  });
+});
+
+// Issue 13 §8: "% LC" in the header and "% of label claim" on the study are one unit (LC is the
+// usual abbreviation of label claim, common practice); one label is shown for it.
+describe('the value unit a mapping starts with', () => {
+  it("keeps the study's label when the header spells the same unit otherwise", () => {
+    expect(valueUnitForStudy('Assay (% LC)', '% of label claim')).toBe('% of label claim');
+    expect(valueUnitForStudy('Assay [% label claim]', '% of label claim')).toBe('% of label claim');
+    expect(valueUnitForStudy('Assay (% of label claim)', '% LC')).toBe('% LC');
+  });
+
+  it("takes the header's unit when it names another unit, and the study's when it names none", () => {
+    expect(valueUnitForStudy('Conc. (mg/mL)', '% of label claim')).toBe('mg/mL');
+    expect(valueUnitForStudy('Impurity A (% area)', '% of label claim')).toBe('% area');
+    expect(valueUnitForStudy('Assay', '% of label claim')).toBe('% of label claim');
   });
 });

@@ -41,3 +41,29 @@ export function temperatureUnitFromHeader(header: string): TemperatureUnit | nul
   if (unitText !== null) return tryParseTemperatureUnit(unitText);
   return /°C\b/.test(header) ? 'C' : null;
 }
+
+/** A unit's spelling reduced for comparison: lower case, no spaces, dots or "of"; "LC" is label claim. */
+function unitKey(unit: string): string {
+  return unit
+    .toLowerCase()
+    .replace(/\blabel\s*claim\b/g, 'lc')
+    .replace(/\bl\.\s*c\.?/g, 'lc')
+    .replace(/\bof\b/g, '')
+    .replace(/[\s.]/g, '');
+}
+
+/**
+ * The value unit a mapping starts with: the study's own label when the header names the same
+ * unit in another spelling ("% LC", "% label claim" for a study in "% of label claim"), so the
+ * dataset, the analysis and the report show one label for one unit; the header's unit when it
+ * names another one (then the difference is the analyst's to see); the study's when the header
+ * has none.
+ *
+ * Example: `valueUnitForStudy('Assay (% LC)', '% of label claim')` is '% of label claim';
+ * `valueUnitForStudy('Conc. (mg/mL)', '% of label claim')` is 'mg/mL'.
+ */
+export function valueUnitForStudy(header: string, studyUnit: string): string {
+  const fromHeader = valueUnitFromHeader(header);
+  if (fromHeader === null) return studyUnit;
+  return unitKey(fromHeader) === unitKey(studyUnit) ? studyUnit : fromHeader;
+}

@@ -183,6 +183,7 @@ describe('saving and publishing', () => {
       })
       .expect(200);
     expect(published.body).toEqual({
+      status: 'published',
       publishedVersionId: secondVersionId,
       publishedVersionNumber: 2,
       previousVersionNumber: 1,

@@ -5,6 +5,7 @@ import type { MeResponse } from '../../../shared/api/session.ts';
 import type { AppServices } from '../../platform/app-services.ts';
 import { signedIn } from '../../platform/auth/route-policy.ts';
 import { auditEvents } from '../../platform/db/schema/index.ts';
+import { activityInWords } from './activity-words.ts';
 
 export function apiRoutes(services: AppServices): Router {
   const router = Router();
@@ -24,13 +25,19 @@ export function apiRoutes(services: AppServices): Router {
         action: auditEvents.action,
         recordType: auditEvents.recordType,
         recordId: auditEvents.recordId,
+        before: auditEvents.beforeValue,
+        after: auditEvents.afterValue,
       })
       .from(auditEvents)
       .where(eq(auditEvents.actorUserId, req.user!.id))
       .orderBy(desc(auditEvents.id))
       .limit(query.limit);
     const body: ActivityResponse = {
-      events: rows.map((row) => ({ ...row, occurredAt: row.occurredAt.toISOString() })),
+      events: rows.map(({ before, after, ...row }) => ({
+        ...row,
+        summary: activityInWords({ ...row, before, after }),
+        occurredAt: row.occurredAt.toISOString(),
+      })),
     };
     res.json(body);
   });

@@ -35,6 +35,8 @@ export interface OrganisationSettings {
   timeZone: string;
   lockoutThreshold: number;
   lockoutMinutes: number;
+  /** A template publication or roll back waits for a second admin's approval (EU GMP Annex 11 §10). */
+  templatePublicationNeedsSecondAdmin: boolean;
 }
 
 /** The defaults of `organisation_settings` (server/platform/db/schema/settings.ts) when no row exists. */
@@ -47,6 +49,7 @@ export const DEFAULT_ORGANISATION_SETTINGS = {
   reportNumberFormat: DEFAULT_REPORT_NUMBER_FORMAT,
   passwordMinLength: DEFAULT_PASSWORD_POLICY.minLength,
   passwordRequireClasses: DEFAULT_PASSWORD_POLICY.requiredClasses,
+  templatePublicationNeedsSecondAdmin: false,
 } as const;
 
 /** A serialisation lock per organisation for settings and membership changes. */
@@ -81,6 +84,9 @@ export async function loadOrganisationSettings(
     timeZone: row.organisation.timeZone,
     lockoutThreshold: row.organisation.lockoutThreshold,
     lockoutMinutes: row.organisation.lockoutMinutes,
+    templatePublicationNeedsSecondAdmin:
+      stored?.templatePublicationNeedsSecondAdmin ??
+      DEFAULT_ORGANISATION_SETTINGS.templatePublicationNeedsSecondAdmin,
   };
 }
 
@@ -123,6 +129,7 @@ async function applyPatch(
       reportNumberFormat: next.reportNumberFormat,
       passwordMinLength: next.passwordMinLength,
       passwordRequireMixed: next.passwordRequireClasses,
+      templatePublicationNeedsSecondAdmin: next.templatePublicationNeedsSecondAdmin,
       updatedAt: sql`now()` as unknown as Date,
     };
     await tx
@@ -200,4 +207,23 @@ export function saveSecuritySettings(
   context: AuditContext,
 ): Promise<{ changed: string[] }> {
   return applyPatch(db, actor, input, 'security-settings.changed', context);
+}
+
+/**
+ * Turns on or off the rule that a template publication (or roll back) waits for a second admin's
+ * approval; returns the names of the fields that changed (the change is an audit event).
+ */
+export function saveTemplateChangeControl(
+  db: Database,
+  actor: SessionUser,
+  needsSecondAdmin: boolean,
+  context: AuditContext,
+): Promise<{ changed: string[] }> {
+  return applyPatch(
+    db,
+    actor,
+    { templatePublicationNeedsSecondAdmin: needsSecondAdmin },
+    'template-change-control.changed',
+    context,
+  );
 }

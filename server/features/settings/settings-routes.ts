@@ -24,6 +24,7 @@ import {
   type OrganisationSettings,
   saveOrganisationSettings,
   saveSecuritySettings,
+  saveTemplateChangeControl,
 } from './organisation-settings.ts';
 
 type Values = Record<string, unknown>;
@@ -40,6 +41,7 @@ const FIELD_LABELS: Record<string, string> = {
   passwordRequireClasses: 'character classes required',
   lockoutThreshold: 'failed sign-ins before locking',
   lockoutMinutes: 'lockout period',
+  templatePublicationNeedsSecondAdmin: 'second admin approves template publications',
 };
 
 const limitText = (value: number | null) => (value === null ? '' : String(value));
@@ -57,6 +59,7 @@ function formValues(settings: OrganisationSettings): Values {
     passwordRequireClasses: String(settings.passwordRequireClasses),
     lockoutThreshold: String(settings.lockoutThreshold),
     lockoutMinutes: String(settings.lockoutMinutes),
+    templatePublicationNeedsSecondAdmin: settings.templatePublicationNeedsSecondAdmin,
   };
   settings.acceptancePresets.forEach((preset, row) => {
     values[`preset-${row}-attribute`] = preset.attribute;
@@ -216,6 +219,23 @@ export function settingsRoutes(services: AppServices): Router {
           : 'Nothing had changed.',
     };
     req.session.save(() => res.redirect(303, '/admin/settings#security'));
+  });
+
+  router.post('/admin/settings/change-control', requireRole('admin'), async (req, res) => {
+    const body = (req.body ?? {}) as Values;
+    // A checkbox posts its value only when ticked: absent means off.
+    const needsSecondAdmin = body.templatePublicationNeedsSecondAdmin === 'on';
+    const { changed } = await saveTemplateChangeControl(db, req.user!, needsSecondAdmin, auditContext(req));
+    req.session.adminNotice = {
+      kind: 'done',
+      text:
+        changed.length === 0
+          ? 'Nothing had changed.'
+          : needsSecondAdmin
+            ? 'Saved: from now on a template publication or roll back waits for a second admin. The change is in the audit trail.'
+            : 'Saved: template publications take effect at once again. The change is in the audit trail.',
+    };
+    req.session.save(() => res.redirect(303, '/admin/settings#change-control'));
   });
 
   router.get('/api/admin/settings', requireRole('admin'), async (req, res) => {

@@ -1,5 +1,9 @@
 import { type Response, Router } from 'express';
 import {
+  decidePublicationRequestSchema,
+  publicationParamSchema,
+} from '../../../shared/api/template-publication.ts';
+import {
   publishTemplateVersionRequestSchema,
   saveTemplateVersionRequestSchema,
   templateDiffQuerySchema,
@@ -10,21 +14,22 @@ import {
 import type { AppServices } from '../../platform/app-services.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
+import { loadOrganisationSettings } from '../settings/index.ts';
 import {
   diffTemplateVersions,
   getTemplateEditor,
   getTemplateSummary,
   getTemplateVersion,
   listTemplates,
-  publishVersion,
   saveTemplateVersion,
 } from './template-editor.ts';
 import { previewTemplate } from './template-editor-preview.ts';
+import { decidePublication, listPendingPublications, publishVersion } from './template-publication.ts';
 
 /**
  * The report template editor (admin only, every route): the list of templates and versions, the
  * editor page with its island, and the island's API — preview, save a version, publish or roll
- * back, compare two versions.
+ * back (or propose it, and approve or refuse another admin's proposal), compare two versions.
  *
  * The editor page's policy differs from the app's in one directive: the live preview is an
  * `<iframe sandbox srcdoc>`, and a srcdoc document inherits the page's Content-Security-Policy,
@@ -51,8 +56,10 @@ export function templateAdminRoutes(services: AppServices): Router {
 
   router.get('/admin/templates', admin(), async (req, res) => {
     const templates = await listTemplates(db, req.user!.organisationId);
+    const settings = await loadOrganisationSettings(db, req.user!.organisationId);
     renderPage(req, res, 'admin-templates', {
       title: 'Report templates',
+      needsSecondAdmin: settings.templatePublicationNeedsSecondAdmin,
       templates: templates.map((template) => ({
         ...template,
         versions: template.versions.map((version) => ({ ...version, shortSha: version.sha256.slice(0, 12) })),
@@ -99,6 +106,17 @@ export function templateAdminRoutes(services: AppServices): Router {
     const { id } = templateIdParamSchema.parse(req.params);
     const { versionId, reason } = publishTemplateVersionRequestSchema.parse(req.body ?? {});
     res.json(await publishVersion(db, req.user!, id, versionId, reason));
+  });
+
+  router.get('/api/admin/templates/:id/publications', admin(), async (req, res) => {
+    const { id } = templateIdParamSchema.parse(req.params);
+    res.set('cache-control', 'no-store').json(await listPendingPublications(db, req.user!, id));
+  });
+
+  router.post('/api/admin/templates/:id/publications/:requestId/decision', admin(), async (req, res) => {
+    const { id, requestId } = publicationParamSchema.parse(req.params);
+    const { decision, reason } = decidePublicationRequestSchema.parse(req.body ?? {});
+    res.json(await decidePublication(db, req.user!, id, requestId, decision, reason));
   });
 
   router.get('/api/admin/templates/:id/diff', admin(), async (req, res) => {

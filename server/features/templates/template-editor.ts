@@ -1,6 +1,5 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import type {
-  PublishTemplateVersionResponse,
   SaveTemplateVersionRequest,
   TemplateDiffResponse,
   TemplateEditorResponse,
@@ -8,7 +7,6 @@ import type {
   TemplateVersionResponse,
   TemplateVersionSummary,
 } from '../../../shared/api/templates.ts';
-import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database, Executor } from '../../platform/db/client.ts';
 import {
@@ -21,7 +19,6 @@ import {
 import { HttpError } from '../../platform/http/http-error.ts';
 import {
   createTemplateVersion,
-  publishTemplateVersion,
   TEMPLATE_HELPERS,
   TEMPLATE_VARIABLES,
   type TemplateVersion,
@@ -43,17 +40,16 @@ import { describeProblem, templateProblems } from './template-editor-preview.ts'
  * - A version is saved and published only when it passes `templateProblems` (it compiles and fills
  *   in with the invented sample); the refusal is a 422 naming part, line and column.
  * - Each action is an audit event in the same transaction: `report-template.version-created`
- *   (saved), `report-template.published`, and `report-template.rolled-back` with both version
- *   numbers and hashes.
+ *   (saved); publishing and its second-admin approval are in `template-publication.ts`.
  * Everything is scoped to the caller's organisation: another organisation's template is a 404.
  */
 
 const SAMPLE_RUN_LIMIT = 25;
 const SYSTEM_LABEL = 'Rateledger (shipped default)';
 
-const actorOf = (user: SessionUser) => ({ userId: user.id, label: user.email });
+export const actorOf = (user: SessionUser) => ({ userId: user.id, label: user.email });
 
-function refuse(problems: ReturnType<typeof templateProblems>, what: string): HttpError {
+export function refuse(problems: ReturnType<typeof templateProblems>, what: string): HttpError {
   const first = problems[0];
   const summary = first ? ` First: ${describeProblem(first)}` : '';
   return new HttpError(
@@ -72,7 +68,11 @@ async function templateRow(db: Executor, organisationId: number, templateId: num
   return template;
 }
 
-async function versionRow(db: Executor, templateId: number, versionId: number): Promise<TemplateVersion> {
+export async function versionRow(
+  db: Executor,
+  templateId: number,
+  versionId: number,
+): Promise<TemplateVersion> {
   const [version] = await db
     .select()
     .from(reportTemplateVersions)
@@ -208,67 +208,6 @@ export async function saveTemplateVersion(
   });
   const [template] = await db.select().from(reportTemplates).where(eq(reportTemplates.id, templateId));
   return summariseVersion(version, user.fullName, template?.publishedVersionId ?? null);
-}
-
-/**
- * Makes `versionId` the version new reports use. A version earlier than the published one is a
- * rollback and gets its own audit event naming both versions. Both events carry the admin's
- * `reason` for the change. Refused (422) when the version's text no longer passes the check.
- */
-export async function publishVersion(
-  db: Database,
-  user: SessionUser,
-  templateId: number,
-  versionId: number,
-  reason: string,
-): Promise<PublishTemplateVersionResponse> {
-  return db.transaction(async (tx) => {
-    const [template] = await tx
-      .select()
-      .from(reportTemplates)
-      .where(and(eq(reportTemplates.id, templateId), eq(reportTemplates.organisationId, user.organisationId)))
-      .for('update');
-    if (!template)
-      throw new HttpError(404, `There is no report template ${templateId} in your organisation.`);
-    const version = await versionRow(tx, template.id, versionId);
-    const problems = templateProblems(versionSource(version));
-    if (problems.length > 0) throw refuse(problems, `Version ${version.versionNumber} cannot be published`);
-    const previous = template.publishedVersionId
-      ? await versionRow(tx, template.id, template.publishedVersionId)
-      : null;
-    await publishTemplateVersion(tx, {
-      organisationId: user.organisationId,
-      templateId: template.id,
-      versionId: version.id,
-      actor: actorOf(user),
-      reason,
-    });
-    const rolledBack = previous !== null && version.versionNumber < previous.versionNumber;
-    if (rolledBack) {
-      await appendAuditEvent(tx, {
-        organisationId: user.organisationId,
-        actorUserId: user.id,
-        actorLabel: user.email,
-        action: 'report-template.rolled-back',
-        recordType: 'report_template',
-        recordId: template.id,
-        before: { versionId: previous.id, versionNumber: previous.versionNumber, sha256: previous.sha256 },
-        after: {
-          versionId: version.id,
-          versionNumber: version.versionNumber,
-          sha256: version.sha256,
-          reason,
-        },
-        context: { templateId: template.id, name: template.name },
-      });
-    }
-    return {
-      publishedVersionId: version.id,
-      publishedVersionNumber: version.versionNumber,
-      previousVersionNumber: previous?.versionNumber ?? null,
-      rolledBack,
-    };
-  });
 }
 
 /** Part-by-part difference from version `fromId` to version `toId` of one template. */

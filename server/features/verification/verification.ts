@@ -32,7 +32,11 @@ import { organisationSigningIdentity, verifyPdfSeal } from '../signing/index.ts'
 
 type SignatureView = NonNullable<PdfVerification['record']>['signatures'][number];
 
-async function signaturesOf(db: Executor, versionId: number, timeZone: string): Promise<SignatureView[]> {
+export async function signaturesOf(
+  db: Executor,
+  versionId: number,
+  timeZone: string,
+): Promise<SignatureView[]> {
   const rows = await db
     .select()
     .from(signatures)

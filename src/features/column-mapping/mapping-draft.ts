@@ -9,7 +9,7 @@
 import type { SheetPreview } from '../../../shared/api/uploads.ts';
 import { columnIndex, columnLetter } from '../../../shared/intake/cell-reference.ts';
 import { type ColumnMapping, columnMappingSchema } from '../../../shared/intake/column-mapping.ts';
-import { timeUnitFromHeader, valueUnitFromHeader } from '../../../shared/intake/unit-from-header.ts';
+import { timeUnitFromHeader, valueUnitForStudy } from '../../../shared/intake/unit-from-header.ts';
 
 export interface MappingDraft {
   sheet: string;
@@ -99,7 +99,7 @@ export function guessDraft(sheet: SheetPreview, valueUnit: string): MappingDraft
     timeFormat: firstData?.kind === 'date' ? 'datetime' : 'elapsed',
     timeUnit: timeUnitFromHeader(timeHeader) ?? (firstData?.kind === 'date' ? 'month' : ''),
     valueColumn,
-    valueUnit: valueUnitFromHeader(valueHeader) ?? valueUnit,
+    valueUnit: valueUnitForStudy(valueHeader, valueUnit),
     seriesColumn,
     temperatureColumn,
     temperatureUnit: /\bK\b|kelvin/.test(
@@ -153,22 +153,50 @@ export function checkDraft(draft: MappingDraft): DraftCheck {
       errors[field] ??= friendly(field, issue.message);
     }
   }
-  const chosen = [
-    'timeColumn',
-    'valueColumn',
-    'seriesColumn',
-    'temperatureColumn',
-    'replicateColumn',
-  ] as const;
-  for (const [index, field] of chosen.entries()) {
-    const value = draft[field].trim();
-    const earlier = chosen
-      .slice(0, index)
-      .find((other) => draft[other].trim() !== '' && draft[other].trim() === value);
-    if (value !== '' && earlier) errors[field] ??= `This column is already chosen as the ${LABELS[earlier]}.`;
+  for (const twice of columnsChosenTwice(draft)) {
+    const [first, ...later] = twice.roles;
+    for (const field of later)
+      errors[field] ??=
+        `Column “${twice.column}” is already chosen as the ${LABELS[first!]}; a column can have one role only.`;
   }
   if (Object.keys(errors).length > 0 || !parsed.success) return { ok: false, errors };
   return { ok: true, mapping: parsed.data };
+}
+
+const CHOSEN_COLUMNS = [
+  'timeColumn',
+  'valueColumn',
+  'seriesColumn',
+  'temperatureColumn',
+  'replicateColumn',
+] as const;
+
+/** A column the draft gives more than one role, with the roles in form order. */
+export interface ColumnChosenTwice {
+  column: string;
+  roles: (typeof CHOSEN_COLUMNS)[number][];
+}
+
+/** The columns chosen for more than one role (time, value, batch, temperature, replicate). */
+export function columnsChosenTwice(draft: MappingDraft): ColumnChosenTwice[] {
+  const byColumn = new Map<string, ColumnChosenTwice['roles']>();
+  for (const field of CHOSEN_COLUMNS) {
+    const value = draft[field].trim();
+    if (value !== '') byColumn.set(value, [...(byColumn.get(value) ?? []), field]);
+  }
+  return [...byColumn.entries()]
+    .filter(([, roles]) => roles.length > 1)
+    .map(([column, roles]) => ({ column, roles }));
+}
+
+/** "Column “Month” is chosen as both the time column and the value column." */
+export function describeColumnChosenTwice(twice: ColumnChosenTwice): string {
+  const names = twice.roles.map((role) => LABELS[role]!);
+  const list =
+    names.length === 2
+      ? names.join(' and the ')
+      : `${names.slice(0, -1).join(', the ')} and the ${names.at(-1)}`;
+  return `Column “${twice.column}” is chosen as both the ${list}; give it one role and choose another column for the rest.`;
 }
 
 const LABELS: Record<string, string> = {

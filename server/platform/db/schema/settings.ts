@@ -1,4 +1,13 @@
-import { doublePrecision, integer, jsonb, pgTable, serial, text, timestamp } from 'drizzle-orm/pg-core';
+import {
+  boolean,
+  doublePrecision,
+  integer,
+  jsonb,
+  pgTable,
+  serial,
+  text,
+  timestamp,
+} from 'drizzle-orm/pg-core';
 import { createdAt, updatedAt } from './columns.ts';
 import { organisations } from './organisations.ts';
 import { users } from './users.ts';
@@ -32,6 +41,10 @@ export const organisationSettings = pgTable('organisation_settings', {
   reportNumberFormat: text('report_number_format').notNull().default('RL-{YYYY}-{NNNN}'),
   passwordMinLength: integer('password_min_length').notNull().default(12),
   passwordRequireMixed: integer('password_require_classes').notNull().default(3),
+  /** A template publication or roll back waits for a second admin's approval. */
+  templatePublicationNeedsSecondAdmin: boolean('template_publication_needs_second_admin')
+    .notNull()
+    .default(false),
   updatedAt: updatedAt(),
 });
 

@@ -1,13 +1,5 @@
 import { useActivity } from '../api/get-activity.ts';
 
-const ACTION_LABELS: Record<string, string> = {
-  'sign-in': 'Signed in',
-  'sign-out': 'Signed out',
-  'sign-in.failed': 'Failed sign-in',
-  'sign-in.refused-locked': 'Sign-in refused: account locked',
-  'account.locked': 'Account locked after failed sign-ins',
-};
-
 /** The caller's own audit events, newest first, as recorded in the audit trail. */
 export function ActivityList({ limit }: { limit: number }) {
   const activity = useActivity({ limit });
@@ -32,7 +24,9 @@ export function ActivityList({ limit }: { limit: number }) {
         {activity.data.events.map((event) => (
           <tr key={event.id} className="border-b border-rule/50">
             <td className="py-1 pr-4 tabular-nums">{event.occurredAt.replace('T', ' ').slice(0, 19)}</td>
-            <td className="py-1 pr-4">{ACTION_LABELS[event.action] ?? event.action}</td>
+            <td className="py-1 pr-4" title={event.action}>
+              {event.summary}
+            </td>
             <td className="py-1">{event.recordType ? `${event.recordType} ${event.recordId ?? ''}` : '—'}</td>
           </tr>
         ))}

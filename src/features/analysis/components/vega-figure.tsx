@@ -1,9 +1,52 @@
 import { useEffect, useRef, useState } from 'react';
 import './vega-figure.css';
 
+/** How long a figure out of view waits for the browser to be idle before it is drawn anyway. */
+const IDLE_DRAW_TIMEOUT_MS = 1500;
+
 /**
- * Draws one Vega-Lite spec with vega-embed as SVG, once the figure scrolls into view (a page may
- * hold dozens; vega-embed is loaded on first use, ~1 MB). Under the app's strict CSP
+ * Calls `draw` once: as soon as the element comes near the viewport, when the browser is next
+ * idle (at the latest after IDLE_DRAW_TIMEOUT_MS), or before the page is printed — whichever is
+ * first. Figures in view draw at once; the rest follow without the reader having to scroll to
+ * them (issue 13 §8: "Drawing …" stayed until a figure was scrolled into view, and a printed page
+ * showed it instead of the figure). Returns the cancel function.
+ */
+export function drawSoon(element: Element, draw: () => void): () => void {
+  let done = false;
+  const once = () => {
+    if (done) return;
+    done = true;
+    cancel();
+    draw();
+  };
+  const observer =
+    typeof IntersectionObserver === 'function'
+      ? new IntersectionObserver((entries) => entries.some((entry) => entry.isIntersecting) && once(), {
+          rootMargin: '200px',
+        })
+      : null;
+  observer?.observe(element);
+  const idle =
+    typeof window.requestIdleCallback === 'function'
+      ? window.requestIdleCallback(once, { timeout: IDLE_DRAW_TIMEOUT_MS })
+      : null;
+  const timer = idle === null ? window.setTimeout(once, 0) : null;
+  window.addEventListener('beforeprint', once);
+  function cancel() {
+    observer?.disconnect();
+    if (idle !== null) window.cancelIdleCallback(idle);
+    if (timer !== null) window.clearTimeout(timer);
+    window.removeEventListener('beforeprint', once);
+  }
+  return () => {
+    done = true;
+    cancel();
+  };
+}
+
+/**
+ * Draws one Vega-Lite spec with vega-embed as SVG: at once when in view, otherwise when the
+ * browser is idle or before printing (`drawSoon`; vega-embed is loaded on first use, ~1 MB). Under the app's strict CSP
  * (script-src 'self', no 'unsafe-eval'; style-src 'self') it uses the AST expression interpreter
  * instead of generated functions, and no injected <style> elements: vega-embed's default style and
  * the tooltip's are switched off and replaced by `vega-figure.css`, which the bundler ships as a file.
@@ -41,19 +84,10 @@ export function VegaFigure({ spec, title }: { spec: Record<string, unknown>; tit
         setState('failed');
       }
     };
-    const observer = new IntersectionObserver(
-      (entries) => {
-        if (entries.some((entry) => entry.isIntersecting)) {
-          observer.disconnect();
-          void draw();
-        }
-      },
-      { rootMargin: '200px' },
-    );
-    observer.observe(element);
+    const stop = drawSoon(element, () => void draw());
     return () => {
       cancelled = true;
-      observer.disconnect();
+      stop();
       finalize?.();
     };
   }, [spec, title]);

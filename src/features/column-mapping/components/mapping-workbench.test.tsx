@@ -157,9 +157,17 @@ describe('the mapping workbench', () => {
 
     fireEvent.change(valueColumn, { target: { value: 'Month' } });
 
-    expect(screen.getByText(/^This column is already chosen as the /)).toBeDefined();
+    expect(
+      screen.getByText(
+        /^Column “Month” is already chosen as the time column; a column can have one role only\.$/,
+      ).id,
+    ).toBe('map-valueColumn-error');
     expect(screen.queryByText(/Choose at least the time column/)).toBeNull();
-    expect(screen.getByText(/^Correct the mapping above/)).toBeDefined();
+    expect(
+      screen.getByText(
+        'Column “Month” is chosen as both the time column and the value column; give it one role and choose another column for the rest. The whole sheet is then checked.',
+      ),
+    ).toBeDefined();
   });
 
   it('lists every problem of a refused import with its cell, and marks the cell', async () => {

@@ -6,6 +6,8 @@ import { importProblems, useImportUpload } from '../api/import-upload.ts';
 import {
   checkDraft,
   columnOptions,
+  columnsChosenTwice,
+  describeColumnChosenTwice,
   draftFromMapping,
   guessDraft,
   type MappingDraft,
@@ -170,9 +172,11 @@ export function MappingWorkbench({
       <section aria-label="Check of the whole sheet" aria-live="polite">
         {!checked?.ok ? (
           <p className="text-sm text-ink-muted">
-            {draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
-              ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
-              : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
+            {columnsChosenTwice(draft).length > 0
+              ? `${columnsChosenTwice(draft).map(describeColumnChosenTwice).join(' ')} The whole sheet is then checked.`
+              : draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
+                ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
+                : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
           </p>
         ) : !check ? (
           <p className="text-sm text-ink-muted">Checking the whole sheet…</p>

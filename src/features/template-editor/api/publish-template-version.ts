@@ -1,14 +1,15 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import {
-  type PublishTemplateVersionRequest,
-  publishTemplateVersionResponseSchema,
-} from '../../../../shared/api/templates.ts';
+import { publishOutcomeSchema } from '../../../../shared/api/template-publication.ts';
+import type { PublishTemplateVersionRequest } from '../../../../shared/api/templates.ts';
 import { fetchJson } from '../../../lib/http.ts';
 import { templateKeys } from './template-keys.ts';
 
-/** POST /api/admin/templates/:id/publish — an earlier version than the published one is a rollback. */
+/**
+ * POST /api/admin/templates/:id/publish — an earlier version than the published one is a rollback;
+ * when the organisation requires a second admin, the answer is a pending publication instead.
+ */
 export function publishTemplateVersion(templateId: number, request: PublishTemplateVersionRequest) {
-  return fetchJson(`/api/admin/templates/${templateId}/publish`, publishTemplateVersionResponseSchema, {
+  return fetchJson(`/api/admin/templates/${templateId}/publish`, publishOutcomeSchema, {
     method: 'POST',
     json: request,
   });
@@ -18,6 +19,10 @@ export function usePublishTemplateVersion(templateId: number) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (request: PublishTemplateVersionRequest) => publishTemplateVersion(templateId, request),
-    onSuccess: () => queryClient.invalidateQueries({ queryKey: templateKeys.editor(templateId) }),
+    onSuccess: () =>
+      Promise.all([
+        queryClient.invalidateQueries({ queryKey: templateKeys.editor(templateId) }),
+        queryClient.invalidateQueries({ queryKey: templateKeys.publications(templateId) }),
+      ]),
   });
 }

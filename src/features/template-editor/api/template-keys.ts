@@ -10,6 +10,7 @@ export interface VersionPair {
 export const templateKeys = {
   all: ['admin-templates'] as const,
   editor: (templateId: number) => [...templateKeys.all, 'editor', templateId] as const,
+  publications: (templateId: number) => [...templateKeys.all, 'publications', templateId] as const,
   version: (templateId: number, versionId: number | null) =>
     [...templateKeys.all, 'version', templateId, versionId] as const,
   diff: (templateId: number, pair: VersionPair | null) =>

@@ -1,7 +1,7 @@
 import { fireEvent, screen, waitFor, within } from '@testing-library/react';
 import { beforeAll, describe, expect, it } from 'vitest';
+import { publishOutcomeSchema } from '../../../../shared/api/template-publication.ts';
 import {
-  publishTemplateVersionResponseSchema,
   type TemplateSourceInput,
   templateEditorResponseSchema,
   templatePreviewRequestSchema,
@@ -58,6 +58,10 @@ function templateApi(save: () => Response) {
   return mockApi([
     { path: '/api/admin/templates/2', respond: () => json(200, editorAnswer(versions)) },
     {
+      path: '/api/admin/templates/2/publications',
+      respond: () => json(200, { needsSecondAdmin: false, pending: [] }),
+    },
+    {
       path: '/api/admin/templates/2/versions/20',
       respond: () => json(200, templateVersionResponseSchema.parse({ version: version2, source })),
     },
@@ -104,7 +108,8 @@ function templateApi(save: () => Response) {
       respond: () =>
         json(
           200,
-          publishTemplateVersionResponseSchema.parse({
+          publishOutcomeSchema.parse({
+            status: 'published',
             publishedVersionId: 30,
             publishedVersionNumber: 3,
             previousVersionNumber: 2,

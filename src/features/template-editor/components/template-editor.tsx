@@ -11,6 +11,7 @@ import { templateKeys } from '../api/template-keys.ts';
 import { changedParts, draftParts, readPart, sameSource, writePart } from '../draft.ts';
 import { CodeEditor, type CodeEditorHandle } from './code-editor.tsx';
 import { NewPartialForm } from './new-partial-form.tsx';
+import { PendingPublicationsPanel } from './pending-publications-panel.tsx';
 import { PreviewPane } from './preview-pane.tsx';
 import { ProblemList } from './problem-list.tsx';
 import { PublishConfirmForm } from './publish-confirm-form.tsx';
@@ -129,6 +130,12 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
     publish.mutate(request, {
       onSuccess: (result) => {
         setPendingPublish(null);
+        if (result.status === 'pending') {
+          setMessage(
+            `${result.pending.rollback ? 'Roll back' : 'Publication'} of version ${result.pending.versionNumber} proposed: it waits for another admin's approval. New reports keep the published version until then.`,
+          );
+          return;
+        }
         setMessage(
           result.rolledBack
             ? `Rolled back: version ${result.publishedVersionNumber} is published again (was ${result.previousVersionNumber}). New reports use it; earlier reports keep their version.`
@@ -293,7 +300,8 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
         />
       </div>
 
-      <div className="mt-6">
+      <div className="mt-6 space-y-4">
+        <PendingPublicationsPanel templateId={templateId} />
         <VersionsPanel
           template={template}
           baseVersionId={baseVersionId}
