@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { MAX_CHECKLIST_ITEM_LENGTH, MAX_CHECKLIST_ITEMS } from './review-checklist.ts';
 
 /**
  * The boundary of review and e-signature: submitting a report version for review, returning it
@@ -67,6 +68,33 @@ export const signReportSchema = z.object({
   reviewedSha256: z
     .string({ error: 'The form is incomplete; reload the page.' })
     .regex(/^[0-9a-f]{64}$/, 'The form is incomplete; reload the page.'),
+  /**
+   * Where the record stood when the form was shown (`round:state:event`; record-stamp.ts).
+   * Optional here so that who may sign is decided (and a refusal recorded) first; the signing
+   * service refuses a signature without it.
+   */
+  recordStamp: z
+    .string()
+    .regex(/^\d{1,10}:[a-z_]{1,20}:\d{1,19}$/, 'The form is incomplete; reload the page.')
+    .optional(),
+  /**
+   * The review checklist the form showed (its version id; absent when there was none) and the
+   * items ticked, by their text. The signing service refuses a stale version (409) and a list
+   * that leaves out an item of the current checklist (400).
+   */
+  checklistVersionId: z.preprocess(
+    (raw) => (raw === '' ? undefined : raw),
+    z.coerce
+      .number({ error: 'The form is incomplete; reload the page.' })
+      .int('The form is incomplete; reload the page.')
+      .positive('The form is incomplete; reload the page.')
+      .max(2_147_483_647, 'The form is incomplete; reload the page.')
+      .optional(),
+  ),
+  checklistConfirmed: z.preprocess(
+    (raw) => (raw === undefined || raw === '' ? [] : Array.isArray(raw) ? raw : [raw]),
+    z.array(z.string().trim().max(MAX_CHECKLIST_ITEM_LENGTH)).max(MAX_CHECKLIST_ITEMS),
+  ),
 });
 export type SignReportRequest = z.input<typeof signReportSchema>;
 

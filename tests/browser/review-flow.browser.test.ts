@@ -154,7 +154,17 @@ describe('review and e-signature in Chromium', () => {
     await reviewer.page.goto(`${baseUrl}/review`);
     await reviewer.ui.getByRole('heading', { name: 'Waiting for my review' }).waitFor();
     await reviewer.page.screenshot({ path: shot('review-queue.png'), fullPage: true });
+    const inlinePdf = reviewer.page.waitForResponse((response) =>
+      response.url().endsWith('/under-review.pdf'),
+    );
     await reviewer.page.goto(href!);
+    // The PDF under review is loaded inline in the page's viewer, not blocked by a frame policy
+    // (issue 13 §4): the frame's response arrives whole, as a PDF, under a same-site frame policy.
+    const framed = await inlinePdf;
+    expect(framed.status()).toBe(200);
+    expect(framed.headers()['content-type']).toBe('application/pdf');
+    expect(framed.headers()['content-security-policy']).toBe("frame-ancestors 'self'");
+    expect(reviewer.page.frames().some((frame) => frame.url().endsWith('/under-review.pdf'))).toBe(true);
     const reviewedSha = await reviewer.ui.locator('[data-reviewed-sha256]').textContent();
     expect(reviewedSha).toMatch(/^[0-9a-f]{64}$/);
     await reviewer.ui.getByLabel('Meaning of your signature').selectOption('Approved');

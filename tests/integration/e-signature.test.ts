@@ -22,7 +22,13 @@ import {
 } from '../../server/platform/db/schema/index.ts';
 import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
-import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
+import {
+  createTestWorld,
+  csrfFrom,
+  signFormHiddenFields,
+  signIn,
+  type TestWorld,
+} from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
 /**
@@ -114,7 +120,7 @@ async function post(agent: Agent, url: string, fields: Record<string, unknown>) 
   return agent
     .post(url)
     .type('form')
-    .send({ _csrf: csrfFrom(page.text), ...fields });
+    .send({ _csrf: csrfFrom(page.text), ...signFormHiddenFields(page.text), ...fields });
 }
 
 async function submitted(reviewers: string[]) {

@@ -11,7 +11,13 @@ import { closeSigningBrowsers } from '../../server/features/signing/signed-outpu
 import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
 import { reportVersions, signedOutputs, users } from '../../server/platform/db/schema/index.ts';
 import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
-import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
+import {
+  createTestWorld,
+  csrfFrom,
+  signFormHiddenFields,
+  signIn,
+  type TestWorld,
+} from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
 /**
@@ -92,7 +98,7 @@ async function post(agent: Agent, target: string, fields: Record<string, unknown
   return agent
     .post(target)
     .type('form')
-    .send({ _csrf: csrfFrom(page.text), ...fields });
+    .send({ _csrf: csrfFrom(page.text), ...signFormHiddenFields(page.text), ...fields });
 }
 
 async function submitAndSign(version: number, pdfSha256: string) {
@@ -229,6 +235,7 @@ describe('negatives', () => {
       .type('form')
       .send({
         _csrf: csrfFrom(page.text),
+        ...signFormHiddenFields(page.text),
         meaning: 'Reviewed',
         identity: world.users.leaver!.email,
         password: world.users.leaver!.password,

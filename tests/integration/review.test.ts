@@ -30,7 +30,13 @@ import { mailConfig } from '../../server/platform/mail/mail-config.ts';
 import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
 import { openSuperuserDatabase } from '../support/superuser.ts';
-import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
+import {
+  createTestWorld,
+  csrfFrom,
+  signFormHiddenFields,
+  signIn,
+  type TestWorld,
+} from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
 /**
@@ -112,7 +118,7 @@ async function post(agent: Agent, target: string, fields: Record<string, unknown
   return agent
     .post(target)
     .type('form')
-    .send({ _csrf: csrfFrom(page.text), ...fields });
+    .send({ _csrf: csrfFrom(page.text), ...signFormHiddenFields(page.text), ...fields });
 }
 
 const reviewRow = async () =>

@@ -13,7 +13,13 @@ import { parseRenderConfig } from '../../server/platform/config/render-config.ts
 import { reportVersions, signatures } from '../../server/platform/db/schema/index.ts';
 import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import { startTestSmtp, type TestSmtp } from '../support/smtp.ts';
-import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
+import {
+  createTestWorld,
+  csrfFrom,
+  signFormHiddenFields,
+  signIn,
+  type TestWorld,
+} from '../support/test-app.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
 /**
@@ -45,7 +51,7 @@ async function post(agent: Agent, target: string, fields: Record<string, unknown
   return agent
     .post(target)
     .type('form')
-    .send({ _csrf: csrfFrom(page.text), ...fields });
+    .send({ _csrf: csrfFrom(page.text), ...signFormHiddenFields(page.text), ...fields });
 }
 
 beforeAll(async () => {

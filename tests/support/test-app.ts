@@ -76,6 +76,15 @@ export function csrfFrom(html: string): string {
   return match[1];
 }
 
+/**
+ * The hidden fields a review page's sign form carries besides the CSRF token (the record stamp),
+ * posted back as a browser would; none when the page offers no sign form.
+ */
+export function signFormHiddenFields(html: string): { recordStamp?: string } {
+  const match = /name="recordStamp" value="([^"]+)"/.exec(html);
+  return match?.[1] ? { recordStamp: match[1] } : {};
+}
+
 /** Signs in through the real form; returns the agent (cookie jar) and the response. */
 export async function signIn(app: Express, email: string, password: string) {
   const agent = request.agent(app);

@@ -7,6 +7,7 @@ import {
   formatSignificant,
   NOT_ESTIMABLE,
 } from '../../../shared/figures/significant-figures.ts';
+import { inTimeUnit } from '../../../shared/figures/time-unit-words.ts';
 import { proposalView } from './analysis-proposal-view.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
 import { groupedWarnings, readableNumbers, verdictSummary } from './analysis-verdict.ts';
@@ -242,7 +243,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
       poolability: readableNumbers(
         result?.poolability?.explanation ?? result?.poolabilityNotApplicableReason ?? '',
       ),
-      reason: readableNumbers(result?.reason ?? condition.notApplicableReason ?? ''),
+      reason: inTimeUnit(readableNumbers(result?.reason ?? condition.notApplicableReason ?? ''), timeUnit),
       // Only the declared long-term condition proposes a shelf life; runs recorded before roles use the storage temperature.
       accelerated: proposal.recorded
         ? !proposal.isLongTerm

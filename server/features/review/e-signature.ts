@@ -1,6 +1,7 @@
 import { anchorAuditChainNow } from '../../platform/audit/audit-anchoring.ts';
 import { commitThenMail } from '../../platform/mail/mail-transport.ts';
 import { isoDateTime } from '../reports/index.ts';
+import { assertRecordUnchanged } from './record-stamp.ts';
 import type { ReviewTarget } from './review-action.ts';
 import { loadReviewVersion } from './review-version.ts';
 import { lockVersionForSigning, recordSignature, signedMail } from './signature-record.ts';
@@ -21,6 +22,10 @@ import type { SigningContext, SignReportInput } from './signing-context.ts';
  *
  * A wrong ID or password is refused and recorded (`signature.failed`); repeated failures lock
  * signing (`signing-lockout.ts`).
+ *
+ * The record must be as the form showed it: the form's `recordStamp` is compared with the
+ * record's now, before the password is checked and again in the signing transaction
+ * (`record-stamp.ts`; 409 when the study, data, analysis or review moved on meanwhile).
  *
  * On success, in this order: the signing time is read from the database clock (whole seconds,
  * so the printed time and the stored one are the same instant); the report is printed again with
@@ -48,7 +53,7 @@ export interface SignReportVersionOptions {
 /**
  * Signs version `target.versionNumber` of report `target.reportId` as `context.actor`. Throws
  * HttpError: 403 (own report or not assigned; both recorded), 409 (not in review, already signed,
- * or the PDF shown is not the version's), 423 (signing locked), 401 (wrong user ID or password;
+ * or the PDF shown is not the version's, or the record changed since the form was shown), 423 (signing locked), 401 (wrong user ID or password;
  * recorded), 400 (bad fields), 503 (the signed PDF could not be produced; nothing was signed).
  */
 export async function signReportVersion({
@@ -58,11 +63,13 @@ export async function signReportVersion({
 }: SignReportVersionOptions): Promise<SignOutcome> {
   const subject = await loadReviewVersion(context.db, context.actor.organisationId, target);
   const { reviewedPdfSha256 } = await checkMaySign(context, subject, request);
+  await assertRecordUnchanged(context.db, subject, request.recordStamp);
   const signer = await verifySignatureComponents(context, subject, request);
   const signed = await produceSignedPdf(context, subject, { signer, request });
   const signature = { signer, request, reviewedPdfSha256, signed };
   const { result: signatureId } = await commitThenMail(context.db, async (tx) => {
     await lockVersionForSigning(tx, context, subject);
+    await assertRecordUnchanged(tx, subject, request.recordStamp);
     const id = await recordSignature(tx, context, subject, signature);
     return { result: id, mail: await signedMail(tx, subject, signature) };
   });

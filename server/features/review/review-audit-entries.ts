@@ -3,6 +3,7 @@ import type { Executor } from '../../platform/db/client.ts';
 import { auditEvents, reportVersions } from '../../platform/db/schema/index.ts';
 import { isoDateTime } from '../reports/index.ts';
 import { auditEventInWords } from './audit-plain-words.ts';
+import { eventsOfRecord, type RecordUnderReview } from './record-stamp.ts';
 
 /**
  * The audit trail of the record under review, for the reviewer to read before signing (FDA,
@@ -16,18 +17,6 @@ import { auditEventInWords } from './audit-plain-words.ts';
  * only.
  */
 
-export interface RecordUnderReview {
-  organisationId: number;
-  reportId: number;
-  versionId: number;
-  versionNumber: number;
-  analysisRunId: number;
-  datasetId: number | null;
-  uploadId: number | null;
-  studyId: number;
-  round: number;
-}
-
 export interface ReviewAuditEntry {
   id: number;
   whenText: string;
@@ -40,23 +29,6 @@ export interface ReviewAuditTrail {
   /** Where the entries start, in words. */
   since: string;
   entries: ReviewAuditEntry[];
-}
-
-/** The (record type, id) pairs whose events belong to the record under review. */
-function recordFilter(record: RecordUnderReview) {
-  const pairs: [string, number | null][] = [
-    ['report_version', record.versionId],
-    ['report', record.reportId],
-    ['analysis_run', record.analysisRunId],
-    ['dataset', record.datasetId],
-    ['upload', record.uploadId],
-    ['study', record.studyId],
-  ];
-  return or(
-    ...pairs
-      .filter((pair): pair is [string, number] => pair[1] !== null)
-      .map(([type, id]) => and(eq(auditEvents.recordType, type), eq(auditEvents.recordId, String(id)))),
-  );
 }
 
 /** The id of the event after which the entries start, with the words for it; 0 for the whole history. */
@@ -131,7 +103,7 @@ export async function reviewAuditTrail(
       and(
         eq(auditEvents.organisationId, record.organisationId),
         sql`${auditEvents.id} > ${start.afterId}`,
-        recordFilter(record),
+        eventsOfRecord(record),
       ),
     )
     .orderBy(asc(auditEvents.id));

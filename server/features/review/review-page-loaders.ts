@@ -41,6 +41,7 @@ export async function loadSignatureList(db: Executor, versionId: number) {
     signedAtText: `${isoDateTime(row.signedAt, row.timeZone)} (${row.timeZone})`,
     reviewedPdfSha256: row.reviewedPdfSha256,
     signedPdfSha256: row.signedPdfSha256,
+    checklistConfirmed: row.checklistConfirmed ?? [],
   }));
 }
 

@@ -2,17 +2,23 @@ import { reviewStandingText } from '../../../shared/api/report-standing.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Executor } from '../../platform/db/client.ts';
 import { versionStandings } from '../reports/index.ts';
+import { signFormChecklist } from './checklist-confirmation.ts';
 import { organisationTimeZone } from './organisation-record.ts';
+import { recordStamp, recordUnderReview } from './record-stamp.ts';
 import type { ReviewTarget } from './review-action.ts';
+import { reviewAuditTrail } from './review-audit-entries.ts';
 import { reviewFacts } from './review-facts.ts';
 import { loadAuthorName, loadRounds, loadSignatureList, loadSignedOutput } from './review-page-loaders.ts';
+import { inlinePdfPath } from './review-paths.ts';
 import { reviewerCandidates } from './review-people.ts';
 import { authorsOf, isRendered, reviewPageOffers } from './review-policy.ts';
+import { loadReviewRecord } from './review-record.ts';
 import { loadReviewVersion, type ReviewVersion } from './review-version.ts';
 import { needsBothSignatureComponents } from './signature-components.ts';
 import { signatureMeanings } from './signature-meanings.ts';
 import type { SigningSession } from './signing-context.ts';
 import { signingLock } from './signing-lockout.ts';
+import { type VersionChanges, versionChanges } from './version-changes.ts';
 
 const STATE_WORDS = {
   draft: 'Draft',
@@ -32,7 +38,18 @@ function versionView({ report, version }: ReviewVersion) {
     ready,
     pdfSha256: version.pdfSha256,
     pdfUrl: ready ? `${base}/rendition.pdf` : null,
+    inlinePdfUrl: ready ? inlinePdfPath(report.id, version.versionNumber) : null,
     htmlUrl: ready ? `${base}/html` : null,
+  };
+}
+
+/** The changes since the previous version or round, with the flags the page tests. */
+function changesView(changes: VersionChanges) {
+  return {
+    ...changes,
+    hasPrevious: changes.previousNumber !== null,
+    changedResults: changes.results.filter((row) => row.changed),
+    sameResultCount: changes.results.filter((row) => !row.changed).length,
   };
 }
 
@@ -68,17 +85,23 @@ export async function reviewPageModel(options: {
     signatureMeanings(db, actor.organisationId),
   ]);
   const { report, version, review } = subject;
-  const [rounds, signatureList, signedOutput, authorName, standings] = await Promise.all([
-    loadRounds(db, version.id, review.round),
-    loadSignatureList(db, version.id),
-    loadSignedOutput(db, version),
-    loadAuthorName(db, report.authorId),
-    versionStandings(db, report.id),
-  ]);
+  const [rounds, signatureList, signedOutput, authorName, standings, record, changes, underReview] =
+    await Promise.all([
+      loadRounds(db, version.id, review.round),
+      loadSignatureList(db, version.id),
+      loadSignedOutput(db, version),
+      loadAuthorName(db, report.authorId),
+      versionStandings(db, report.id),
+      loadReviewRecord(db, version, actor.organisationId, review.round),
+      versionChanges(db, version, review.round),
+      recordUnderReview(db, subject),
+    ]);
   const offers = reviewPageOffers(reviewFacts(subject, actor, rounds.assignments));
-  const [candidates, lock] = await Promise.all([
+  const [candidates, lock, auditTrail, stamp] = await Promise.all([
     offers.canSubmit ? reviewerCandidates(db, actor.organisationId, authorsOf(subject)) : [],
     offers.canAct ? signingLock(db, actor.id) : NOT_LOCKED,
+    reviewAuditTrail(db, underReview, timeZone),
+    recordStamp(db, subject),
   ]);
   return {
     report: { id: report.id, number: report.reportNumber, title: report.title, author: authorName },
@@ -95,5 +118,10 @@ export async function reviewPageModel(options: {
     timeZone,
     signatures: signatureList,
     signedOutput,
+    record,
+    changes: changesView(changes),
+    auditTrail,
+    recordStamp: stamp,
+    checklist: await signFormChecklist(db, actor.organisationId),
   };
 }

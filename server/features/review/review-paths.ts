@@ -5,3 +5,7 @@ export const reviewPath = (reportId: number, versionNumber: number) =>
 /** The download of a version's newest signed PDF. */
 export const signedPdfPath = (reportId: number, versionNumber: number) =>
   `${reviewPath(reportId, versionNumber)}/signed.pdf`;
+
+/** The rendered PDF under review, served inline for the review page's viewer. */
+export const inlinePdfPath = (reportId: number, versionNumber: number) =>
+  `${reviewPath(reportId, versionNumber)}/under-review.pdf`;

@@ -10,6 +10,8 @@ import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
+import { versionPdf } from '../reports/index.ts';
+import { typedChecklistTicks } from './checklist-confirmation.ts';
 import { signReportVersion } from './e-signature.ts';
 import { returnForRework } from './return-for-rework.ts';
 import type { ReviewActionContext, ReviewTarget } from './review-action.ts';
@@ -114,6 +116,7 @@ export function reviewRoutes(services: AppServices): Router {
               comment: body.comment,
               meaning: body.meaning,
               identity: body.identity,
+              checked: typedChecklistTicks(body.checklistConfirmed, known?.status),
             },
           },
         },
@@ -176,6 +179,35 @@ export function reviewRoutes(services: AppServices): Router {
       );
       return `Signed (${input.meaning}) at ${outcome.signedAtText}. The version is now locked.`;
     }),
+  );
+
+  // The PDF under review, inline, for the viewer beside the signing form. Its own policy lets only
+  // this site's pages frame it (the app's pages may not be framed at all).
+  router.get(
+    '/review/reports/:reportId/versions/:version/under-review.pdf',
+    requireRole(...READERS),
+    async (req, res) => {
+      const target = reviewTarget(req);
+      const file = await versionPdf({
+        db,
+        storage,
+        organisationId: req.user!.organisationId,
+        reportId: target.reportId,
+        versionNumber: target.versionNumber,
+        requestId: req.id ?? null,
+        kind: 'rendition',
+      });
+      res
+        .set({
+          'content-type': 'application/pdf',
+          'content-disposition': `inline; filename="${file.fileName}"`,
+          'content-security-policy': "frame-ancestors 'self'",
+          'x-frame-options': 'SAMEORIGIN',
+          etag: `"${file.sha256}"`,
+          'cache-control': 'private, max-age=31536000, immutable',
+        })
+        .send(file.pdf);
+    },
   );
 
   router.get(

@@ -4,6 +4,7 @@ import type { Transaction } from '../../platform/db/client.ts';
 import { reportReviews, signatures, signedOutputs, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import type { MailMessage } from '../../platform/mail/mail-transport.ts';
+import { type ConfirmedChecklist, confirmedChecklist } from './checklist-confirmation.ts';
 import { reportSignedMessage } from './review-mail.ts';
 import { stateInWords } from './review-policy.ts';
 import { loadReviewVersion, type ReviewVersion } from './review-version.ts';
@@ -38,14 +39,19 @@ export async function lockVersionForSigning(
     );
 }
 
-/** The signature row (linked to the reviewed and the signed PDF's SHA-256, 21 CFR 11.70); returns its id. */
+/**
+ * The signature row (linked to the reviewed and the signed PDF's SHA-256, 21 CFR 11.70), with the
+ * review checklist version confirmed and a copy of its items; returns its id.
+ */
 async function insertSignature(
   tx: Transaction,
   context: SigningContext,
   subject: ReviewVersion,
   signature: SignatureBeingRecorded,
-): Promise<number> {
+): Promise<{ id: number; checklist: ConfirmedChecklist }> {
   const { signer, request, signed } = signature;
+  // Checked again under the transaction: an admin may have saved a new checklist meanwhile (409).
+  const checklist = await confirmedChecklist(tx, context.actor.organisationId, request);
   const [row] = await tx
     .insert(signatures)
     .values({
@@ -59,9 +65,11 @@ async function insertSignature(
       timeZone: signed.timeZone,
       reviewedPdfSha256: signature.reviewedPdfSha256,
       signedPdfSha256: signed.sha256,
+      checklistVersionId: checklist?.versionId ?? null,
+      checklistConfirmed: checklist?.items ?? null,
     })
     .returning({ id: signatures.id });
-  return row!.id;
+  return { id: row!.id, checklist };
 }
 
 /** `report.signed`, with everything the signature row holds and which components were used. */
@@ -69,7 +77,7 @@ async function appendSignedEvent(
   tx: Transaction,
   context: SigningContext,
   subject: ReviewVersion,
-  signature: SignatureBeingRecorded & { id: number },
+  signature: SignatureBeingRecorded & { id: number; checklist: ConfirmedChecklist },
 ): Promise<void> {
   const { actor } = context;
   const { report, version, review } = subject;
@@ -97,6 +105,8 @@ async function appendSignedEvent(
       reviewedPdfSha256: signature.reviewedPdfSha256,
       signedPdfSha256: signed.sha256,
       signedPdfByteSize: signed.byteSize,
+      checklistVersionId: signature.checklist?.versionId ?? null,
+      checklistConfirmed: signature.checklist?.items ?? null,
       identityComponents: needsBothSignatureComponents(context.session)
         ? ['user ID', 'password']
         : ['password'],
@@ -117,7 +127,7 @@ export async function recordSignature(
   signature: SignatureBeingRecorded,
 ): Promise<number> {
   const versionId = subject.version.id;
-  const id = await insertSignature(tx, context, subject, signature);
+  const { id, checklist } = await insertSignature(tx, context, subject, signature);
   await tx.insert(signedOutputs).values({
     reportVersionId: versionId,
     pdfSha256: signature.signed.sha256,
@@ -129,7 +139,7 @@ export async function recordSignature(
     .set({ state: 'signed', updatedAt: sql`now()` })
     .where(eq(reportReviews.reportVersionId, versionId));
   await clearSigningFailures(tx, context.actor.id);
-  await appendSignedEvent(tx, context, subject, { ...signature, id });
+  await appendSignedEvent(tx, context, subject, { ...signature, id, checklist });
   return id;
 }
 

@@ -9,6 +9,7 @@ import {
   type SignatureEntry,
   storeSignedPdf,
 } from '../signing/index.ts';
+import { confirmedChecklist } from './checklist-confirmation.ts';
 import { organisationOf } from './organisation-record.ts';
 import type { ReviewVersion } from './review-version.ts';
 import type { SignedPdf, Signer, SigningContext, SignReportInput } from './signing-context.ts';
@@ -34,6 +35,7 @@ async function earlierSignatures(db: Executor, versionId: number): Promise<Signa
     signedAt: row.signedAt,
     timeZone: row.timeZone,
     comment: row.comment,
+    checklistConfirmed: row.checklistConfirmed ?? [],
   }));
 }
 
@@ -49,10 +51,11 @@ export async function produceSignedPdf(
   signature: { signer: Signer; request: SignReportInput },
 ): Promise<SignedPdf> {
   const { db } = context;
-  const [organisation, signedAt, earlier] = await Promise.all([
+  const [organisation, signedAt, earlier, checklist] = await Promise.all([
     organisationOf(db, context.actor.organisationId),
     signingClock(db),
     earlierSignatures(db, subject.version.id),
+    confirmedChecklist(db, context.actor.organisationId, signature.request),
   ]);
   const entries: SignatureEntry[] = [
     ...earlier,
@@ -62,6 +65,7 @@ export async function produceSignedPdf(
       signedAt,
       timeZone: organisation.timeZone,
       comment: signature.request.comment || null,
+      checklistConfirmed: checklist?.items ?? [],
     },
   ];
   try {

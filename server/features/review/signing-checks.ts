@@ -2,6 +2,7 @@ import { eq } from 'drizzle-orm';
 import { verifyPassword } from '../../platform/auth/passwords.ts';
 import { users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { confirmedChecklist } from './checklist-confirmation.ts';
 import { loadReviewFacts } from './review-facts.ts';
 import { decideSign } from './review-policy.ts';
 import { enforceDecision, recordRefusal } from './review-refusals.ts';
@@ -17,7 +18,9 @@ const invalidField = (field: string, message: string) =>
 /**
  * Everything that may refuse a signature before a password is checked, in this order: who may
  * sign (the review policy; refusals recorded), the signing lock (recorded), the meaning, the PDF
- * the form showed, and the user ID the session's first signing needs. Returns the reviewed PDF's
+ * the form showed, the review checklist (the version the form showed is the current one, 409,
+ * and every item is confirmed, 400; `checklist-confirmation.ts`), and the user ID the session's
+ * first signing needs. Returns the reviewed PDF's
  * SHA-256 (the version's stored one, which the form's was just checked against).
  */
 export async function checkMaySign(
@@ -49,6 +52,7 @@ export async function checkMaySign(
       409,
       'The PDF shown on the form is not this version’s stored PDF. Reload the page and check it again.',
     );
+  await confirmedChecklist(db, actor.organisationId, request);
   if (needsBothSignatureComponents(context.session) && !request.identity)
     throw invalidField(
       'identity',

@@ -26,6 +26,7 @@ import {
   saveSecuritySettings,
   saveTemplateChangeControl,
 } from './organisation-settings.ts';
+import { reviewChecklistRoutes } from './review-checklist-routes.ts';
 
 type Values = Record<string, unknown>;
 
@@ -103,6 +104,7 @@ function presetRows(values: Values, errors: Record<string, string>) {
 export function settingsRoutes(services: AppServices): Router {
   const router = Router();
   const { db } = services;
+  router.use(reviewChecklistRoutes(services));
 
   async function renderSettings(
     req: Request,

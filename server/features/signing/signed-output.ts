@@ -41,6 +41,8 @@ export interface SignatureEntry {
   signedAt: Date;
   timeZone: string;
   comment: string | null;
+  /** The review checklist items the signer confirmed (empty when there was no checklist). */
+  checklistConfirmed: string[];
 }
 
 const PAPER = { a4: 'A4', letter: 'Letter' } as const;

@@ -123,6 +123,7 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   },
   {
     path: 'signatures.entries[]',
-    description: 'Applied signatures (name, meaning, signedAt); empty until signed.',
+    description:
+      'Applied signatures (name, meaning, signedAt, timeZone, comment, checklistConfirmed[]: the review checklist items the signer confirmed); empty until signed.',
   },
 ];

@@ -1,5 +1,6 @@
 import type { AnalysisFigure } from '../../../../shared/api/analyses.ts';
 import type { StoredAnalysisResult } from '../../../../shared/figures/stored-result.ts';
+import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
 import type { Q1eProposal } from '../../../../shared/kinetics/stability/q1e-proposal.ts';
 import type { AttributeDirection, Series } from '../../../../shared/kinetics/types.ts';
@@ -140,7 +141,7 @@ function shelfLifeSummaries(analysis: DatasetAnalysis, storageTemperatureC: numb
     const estimateStatement = !result
       ? `Shelf life at ${where} not evaluated: ${condition.notApplicableReason ?? 'no result'}.`
       : result.shelfLife === null
-        ? `At ${where} no crossing of the acceptance criterion within ${significant(result.horizon, 3, timeUnit)}: ${result.reason}.`
+        ? `At ${where} no crossing of the acceptance criterion within ${significant(result.horizon, 3, timeUnit)}: ${inTimeUnit(result.reason, timeUnit)}.`
         : `ICH Q1E statistical shelf-life estimate at ${where}: ${significant(result.shelfLife, 3, timeUnit)}${result.limitingLine ? `, limited by ${result.limitingLine}` : ''}${extrapolated} (model: ${result.model}).`;
     // Runs recorded before proposals carry none (stored results are never rewritten).
     const proposal = (condition as { proposal?: Q1eProposal }).proposal ?? null;
@@ -167,7 +168,7 @@ function shelfLifeSummaries(analysis: DatasetAnalysis, storageTemperatureC: numb
       status: result?.status ?? null,
       model: result?.model ?? null,
       limitingLine: result?.limitingLine ?? null,
-      reason: result?.reason ?? condition.notApplicableReason ?? '',
+      reason: inTimeUnit(result?.reason ?? condition.notApplicableReason ?? '', timeUnit),
       beyondObservedData: result?.extrapolation.beyondObservedData ?? null,
       statement,
     };

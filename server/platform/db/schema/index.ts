@@ -11,6 +11,7 @@ export * from './report-templates.ts';
 export * from './reports.ts';
 export * from './retirements.ts';
 export * from './review.ts';
+export * from './review-checklists.ts';
 export * from './sessions.ts';
 export * from './settings.ts';
 export * from './studies.ts';

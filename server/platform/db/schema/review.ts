@@ -1,7 +1,8 @@
-import { index, integer, pgEnum, pgTable, serial, text, timestamp, unique } from 'drizzle-orm/pg-core';
+import { index, integer, jsonb, pgEnum, pgTable, serial, text, timestamp, unique } from 'drizzle-orm/pg-core';
 import { createdAt, updatedAt } from './columns.ts';
 import { organisations } from './organisations.ts';
 import { reportVersions } from './reports.ts';
+import { reviewChecklists } from './review-checklists.ts';
 import { users } from './users.ts';
 
 /**
@@ -79,6 +80,10 @@ export const signatures = pgTable(
     reviewedPdfSha256: text('reviewed_pdf_sha256').notNull(),
     /** SHA-256 of the signed PDF (manifestation page + digital seal), set when it is produced. */
     signedPdfSha256: text('signed_pdf_sha256'),
+    /** The review checklist version the signer confirmed (null when the organisation had none). */
+    checklistVersionId: integer('checklist_version_id').references(() => reviewChecklists.id),
+    /** The checklist items the signer confirmed, copied so the signature record stands alone. */
+    checklistConfirmed: jsonb('checklist_confirmed').$type<string[]>(),
   },
   (table) => [index('signatures_version').on(table.reportVersionId)],
 );
