@@ -5,17 +5,9 @@ import path from 'node:path';
 import { and, desc, eq } from 'drizzle-orm';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
-import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
-import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
+import type { RenderWorker } from '../../server/features/reports/queue/render-worker.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
-import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
-import {
-  auditEvents,
-  reportVersions,
-  reviewChecklists,
-  signatures,
-} from '../../server/platform/db/schema/index.ts';
+import { auditEvents, reviewChecklists, signatures } from '../../server/platform/db/schema/index.ts';
 import { reportStorage } from '../../server/platform/storage/report-storage.ts';
 import {
   createTestWorld,
@@ -24,6 +16,7 @@ import {
   signIn,
   type TestWorld,
 } from '../support/test-app.ts';
+import { startTestRenderWorker, waitForRender } from './render-fixture.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 
 /**
@@ -51,17 +44,7 @@ const SECOND_ITEMS = [...FIRST_ITEMS, 'Shelf-life claim matches the protocol'];
 
 beforeAll(async () => {
   world = await createTestWorld({ author: ['analyst'], reviewer: ['reviewer'], admin: ['admin'] });
-  worker = await startRenderWorker({
-    db: world.database.db,
-    queue: openRenderQueue({
-      config: parseRenderConfig(),
-      connectionString: process.env.DATABASE_URL!,
-      supervise: true,
-    }),
-    storage,
-    renderer: createRenderPipeline(),
-    log: () => undefined,
-  });
+  worker = await startTestRenderWorker(world.database.db, storage);
   ({ runId } = await makeAnalysisRun(world.database.db, world.organisationId, world.users.author!));
   for (const name of ['author', 'reviewer', 'admin'])
     agents[name] = (await signIn(world.app, world.users[name]!.email, world.users[name]!.password)).agent;
@@ -184,18 +167,7 @@ async function submittedReport() {
     .send({});
   expect(created.status).toBe(201);
   const reportId = created.body.reportId as number;
-  const deadline = Date.now() + 60_000;
-  let version: typeof reportVersions.$inferSelect | undefined;
-  for (;;) {
-    [version] = await world.database.db
-      .select()
-      .from(reportVersions)
-      .where(eq(reportVersions.reportId, reportId));
-    if (version?.renderStatus === 'ready' && (await storage.hasPdf(version.pdfSha256!))) break;
-    if (version?.renderStatus === 'failed' || Date.now() > deadline)
-      throw new Error(`render ${version?.renderStatus}`);
-    await new Promise((resolve) => setTimeout(resolve, 200));
-  }
+  const version = await waitForRender(world.database.db, storage, reportId);
   const url = `/review/reports/${reportId}/versions/1`;
   const page = await agents.author!.get(url);
   const submitted = await agents
@@ -203,7 +175,7 @@ async function submittedReport() {
     .type('form')
     .send({ _csrf: csrfFrom(page.text), reviewerIds: String(world.users.reviewer!.id) });
   expect(submitted.status).toBe(303);
-  return { url, versionId: version!.id, sha: version!.pdfSha256! };
+  return { url, versionId: version.id, sha: version.pdfSha256! };
 }
 
 const checklistVersionOn = (html: string) => /name="checklistVersionId" value="(\d+)"/.exec(html)?.[1];

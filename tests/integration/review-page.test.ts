@@ -1,16 +1,13 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { and, eq } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runAnalysis } from '../../server/features/analysis/analysis-runs.ts';
-import { createRenderPipeline } from '../../server/features/reports/queue/render-pipeline.ts';
-import { openRenderQueue } from '../../server/features/reports/queue/render-queue.ts';
-import { type RenderWorker, startRenderWorker } from '../../server/features/reports/queue/render-worker.ts';
+import type { RenderWorker } from '../../server/features/reports/queue/render-worker.ts';
 import { closeSigningBrowsers } from '../../server/features/signing/signed-output.ts';
-import { parseRenderConfig } from '../../server/platform/config/render-config.ts';
-import { datasets, reportVersions, signatures, uploads } from '../../server/platform/db/schema/index.ts';
+import { datasets, signatures, uploads } from '../../server/platform/db/schema/index.ts';
 import { reportStorage, sha256Hex } from '../../server/platform/storage/report-storage.ts';
 import {
   createTestWorld,
@@ -19,6 +16,7 @@ import {
   signIn,
   type TestWorld,
 } from '../support/test-app.ts';
+import { postReviewForm, startTestRenderWorker, waitForRender } from './render-fixture.ts';
 import { makeAnalysisRun } from './reports-fixture.ts';
 import { editStudy } from './study-flow-fixture.ts';
 
@@ -53,17 +51,7 @@ const NOTE = 'Please check the 40 °C series: point 6 was re-injected (invented 
 beforeAll(async () => {
   world = await createTestWorld({ author: ['analyst'], signer: ['reviewer'] });
   other = await createTestWorld({ outsider: ['analyst', 'reviewer', 'admin'] });
-  worker = await startRenderWorker({
-    db: world.database.db,
-    queue: openRenderQueue({
-      config: parseRenderConfig(),
-      connectionString: process.env.DATABASE_URL!,
-      supervise: true,
-    }),
-    storage,
-    renderer: createRenderPipeline(),
-    log: () => undefined,
-  });
+  worker = await startTestRenderWorker(world.database.db, storage);
   ({ runId, studyId, datasetId } = await makeAnalysisRun(
     world.database.db,
     world.organisationId,
@@ -91,28 +79,8 @@ afterAll(async () => {
 
 const reviewUrl = (version: number) => `/review/reports/${reportId}/versions/${version}`;
 
-async function waitReady(versionNumber: number) {
-  const deadline = Date.now() + 60_000;
-  for (;;) {
-    const [row] = await world.database.db
-      .select()
-      .from(reportVersions)
-      .where(and(eq(reportVersions.reportId, reportId), eq(reportVersions.versionNumber, versionNumber)));
-    if (row?.renderStatus === 'ready' && (await storage.hasPdf(row.pdfSha256!))) return row;
-    if (row?.renderStatus === 'failed' || Date.now() > deadline)
-      throw new Error(`render ${row?.renderStatus}`);
-    await new Promise((resolve) => setTimeout(resolve, 200));
-  }
-}
-
-/** Posts a review form with the fields the page carries (CSRF token, record stamp) as a browser would. */
-async function post(agent: Agent, target: string, fields: Record<string, unknown>) {
-  const page = await agent.get(target.replace(/\/(submit|return|sign)$/, ''));
-  return agent
-    .post(target)
-    .type('form')
-    .send({ _csrf: csrfFrom(page.text), ...signFormHiddenFields(page.text), ...fields });
-}
+const waitReady = (versionNumber: number) =>
+  waitForRender(world.database.db, storage, reportId, versionNumber);
 
 const signFields = (pdfSha256: string) => ({
   meaning: 'Reviewed',
@@ -134,7 +102,7 @@ describe('the review page shows what is signed', () => {
     expect(draft.text).toMatch(
       /data-who-can-sign>Who can sign: only the people you tick here, for this round\. One member other than you holds the reviewer role; nobody is ticked for you, even when there is only one\./,
     );
-    const submitted = await post(agents.author!, `${reviewUrl(1)}/submit`, {
+    const submitted = await postReviewForm(agents.author!, `${reviewUrl(1)}/submit`, {
       reviewerIds: String(world.users.signer!.id),
       note: NOTE,
     });
@@ -225,7 +193,7 @@ describe('the review page shows what is signed', () => {
     expect(incomplete.text).toContain('The form is incomplete; reload the page.');
     expect(await signaturesOf(v1.id)).toEqual([]);
     // Read again: signs.
-    const signed = await post(agents.signer!, `${reviewUrl(1)}/sign`, signFields(v1.pdfSha256!));
+    const signed = await postReviewForm(agents.signer!, `${reviewUrl(1)}/sign`, signFields(v1.pdfSha256!));
     expect(signed.status).toBe(303);
     expect(await signaturesOf(v1.id)).toHaveLength(1);
   }, 60_000);
@@ -244,8 +212,11 @@ describe('the review page shows what is signed', () => {
     expect(created.status).toBe(201);
     await waitReady(2);
     expect(
-      (await post(agents.author!, `${reviewUrl(2)}/submit`, { reviewerIds: String(world.users.signer!.id) }))
-        .status,
+      (
+        await postReviewForm(agents.author!, `${reviewUrl(2)}/submit`, {
+          reviewerIds: String(world.users.signer!.id),
+        })
+      ).status,
     ).toBe(303);
     const page = await agents.signer!.get(reviewUrl(2)).expect(200);
     expect(page.text).toContain('What changed since version 1');

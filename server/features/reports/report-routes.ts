@@ -11,6 +11,7 @@ import {
 import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
+import { sendPdf } from '../../platform/http/pdf-response.ts';
 import { openRenderQueue } from './queue/render-queue.ts';
 import { type PdfKind, versionHtml, versionPdf } from './report-download.ts';
 import { getReportDetail, listReports, reportFilterOptions } from './report-history.ts';
@@ -94,7 +95,7 @@ export function reportRoutes(services: AppServices): Router {
   });
 
   /** The version's PDF (sealed once signed, so no longer immutable under one URL) or its rendition. */
-  const sendPdf = (kind: PdfKind) => async (req: Request, res: Response) => {
+  const pdfRoute = (kind: PdfKind) => async (req: Request, res: Response) => {
     const { id, version } = reportVersionParamSchema.parse(req.params);
     const file = await versionPdf({
       db: services.db,
@@ -105,20 +106,13 @@ export function reportRoutes(services: AppServices): Router {
       requestId: req.id ?? null,
       kind,
     });
-    res
-      .set({
-        'content-type': 'application/pdf',
-        'content-disposition': `attachment; filename="${file.fileName}"`,
-        etag: `"${file.sha256}"`,
-        'cache-control': kind === 'rendition' ? 'private, max-age=31536000, immutable' : 'private, no-cache',
-      })
-      .send(file.pdf);
+    sendPdf(res, file, { disposition: 'attachment', immutable: kind === 'rendition' });
   };
-  router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), sendPdf('current'));
+  router.get('/api/reports/:id/versions/:version/pdf', requireRole(...READERS), pdfRoute('current'));
   router.get(
     '/api/reports/:id/versions/:version/rendition.pdf',
     requireRole(...READERS),
-    sendPdf('rendition'),
+    pdfRoute('rendition'),
   );
 
   router.get('/api/reports/:id/versions/:version/html', requireRole(...READERS), async (req, res) => {

@@ -1,4 +1,4 @@
-import { and, desc, eq, notLike, or } from 'drizzle-orm';
+import { and, desc, eq, notInArray, notLike, or } from 'drizzle-orm';
 import type { Executor } from '../../platform/db/client.ts';
 import { analysisRuns, auditEvents, datasets } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
@@ -72,9 +72,16 @@ export function eventsOfRecord(record: RecordUnderReview) {
   );
 }
 
-/** The stamp of the record as it stands now: `round:state:newest-changing-event-id`. */
-export async function recordStamp(db: Executor, subject: ReviewVersion): Promise<string> {
-  const record = await recordUnderReview(db, subject);
+/**
+ * The stamp of the record as it stands now: `round:state:newest-changing-event-id`. Pass `record`
+ * when the caller has already loaded it (`recordUnderReview`).
+ */
+export async function recordStamp(
+  db: Executor,
+  subject: ReviewVersion,
+  record?: RecordUnderReview,
+): Promise<string> {
+  record ??= await recordUnderReview(db, subject);
   const [newest] = await db
     .select({ id: auditEvents.id })
     .from(auditEvents)
@@ -83,8 +90,7 @@ export async function recordStamp(db: Executor, subject: ReviewVersion): Promise
         eq(auditEvents.organisationId, record.organisationId),
         eventsOfRecord(record),
         notLike(auditEvents.action, '%.refused-%'),
-        notLike(auditEvents.action, 'signature.failed'),
-        notLike(auditEvents.action, 'signature.locked'),
+        notInArray(auditEvents.action, ['signature.failed', 'signature.locked']),
       ),
     )
     .orderBy(desc(auditEvents.id))

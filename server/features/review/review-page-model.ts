@@ -97,11 +97,12 @@ export async function reviewPageModel(options: {
       recordUnderReview(db, subject),
     ]);
   const offers = reviewPageOffers(reviewFacts(subject, actor, rounds.assignments));
-  const [candidates, lock, auditTrail, stamp] = await Promise.all([
+  const [candidates, lock, auditTrail, stamp, checklist] = await Promise.all([
     offers.canSubmit ? reviewerCandidates(db, actor.organisationId, authorsOf(subject)) : [],
     offers.canAct ? signingLock(db, actor.id) : NOT_LOCKED,
     reviewAuditTrail(db, underReview, timeZone),
-    recordStamp(db, subject),
+    recordStamp(db, subject, underReview),
+    signFormChecklist(db, actor.organisationId),
   ]);
   return {
     report: { id: report.id, number: report.reportNumber, title: report.title, author: authorName },
@@ -122,6 +123,6 @@ export async function reviewPageModel(options: {
     changes: changesView(changes),
     auditTrail,
     recordStamp: stamp,
-    checklist: await signFormChecklist(db, actor.organisationId),
+    checklist,
   };
 }

@@ -9,6 +9,7 @@ import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { sendPdf } from '../../platform/http/pdf-response.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { versionPdf } from '../reports/index.ts';
 import { typedChecklistTicks } from './checklist-confirmation.ts';
@@ -197,16 +198,7 @@ export function reviewRoutes(services: AppServices): Router {
         requestId: req.id ?? null,
         kind: 'rendition',
       });
-      res
-        .set({
-          'content-type': 'application/pdf',
-          'content-disposition': `inline; filename="${file.fileName}"`,
-          'content-security-policy': "frame-ancestors 'self'",
-          'x-frame-options': 'SAMEORIGIN',
-          etag: `"${file.sha256}"`,
-          'cache-control': 'private, max-age=31536000, immutable',
-        })
-        .send(file.pdf);
+      sendPdf(res, file, { disposition: 'inline', immutable: true, frameableBySelf: true });
     },
   );
 
@@ -221,14 +213,7 @@ export function reviewRoutes(services: AppServices): Router {
         target: reviewTarget(req),
         requestId: req.id ?? null,
       });
-      res
-        .set({
-          'content-type': 'application/pdf',
-          'content-disposition': `attachment; filename="${file.fileName}"`,
-          etag: `"${file.sha256}"`,
-          'cache-control': 'private, max-age=31536000, immutable',
-        })
-        .send(file.pdf);
+      sendPdf(res, file, { disposition: 'attachment', immutable: true });
     },
   );
 
