@@ -18,6 +18,7 @@ import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { findStudy } from '../studies/index.ts';
 import { checkMapping, importUpload } from './datasets.ts';
+import { hashingMemoryStorage, isHashedFile } from './hashing-memory-storage.ts';
 import { matchingSavedMappings } from './saved-mappings.ts';
 import { findUpload, previewSheet, sheetsOfUpload, storeUpload } from './uploads.ts';
 
@@ -29,7 +30,7 @@ const READERS = ['analyst', 'reviewer', 'admin'] as const;
  */
 function receiveOneFile(): RequestHandler {
   const parse = multer({
-    storage: multer.memoryStorage(),
+    storage: hashingMemoryStorage(),
     limits: { fileSize: UPLOAD_SIZE_LIMIT_BYTES, files: 1, fields: 10, parts: 12 },
   }).single(UPLOAD_FIELD);
   return (req, res, next) => {
@@ -83,7 +84,12 @@ export function uploadRoutes(services: AppServices): Router {
       services.db,
       req.user!,
       studyId,
-      { fileName, mediaType: req.file.mimetype, bytes: req.file.buffer },
+      {
+        fileName,
+        mediaType: req.file.mimetype,
+        bytes: req.file.buffer,
+        sha256: isHashedFile(req.file) ? req.file.sha256 : undefined,
+      },
       auditContext(req),
     );
     const body: UploadResponse = {

@@ -125,6 +125,8 @@ export interface ReceivedFile {
   fileName: string;
   mediaType: string;
   bytes: Buffer;
+  /** SHA-256 of `bytes` (hex) when the receiver already computed it while the file arrived. */
+  sha256?: string;
 }
 
 /** Checks the file is readable, then stores it unchanged with its hash and an audit event. */
@@ -136,7 +138,7 @@ export async function storeUpload(
   context: AuditContext,
 ): Promise<Pick<Upload, 'id' | 'sha256' | 'format' | 'sizeBytes'>> {
   const format = detectFormat(file.bytes, file.fileName);
-  const sha256 = sha256Hex(file.bytes);
+  const sha256 = file.sha256 ?? sha256Hex(file.bytes);
   // The dry run reads the whole file in a worker; its cells stay there (the preview reads again).
   await checkFileInWorker(file.bytes, format, file.fileName);
   return db.transaction(async (tx) => {
