@@ -45,11 +45,15 @@ export interface RenderTimings {
 
 const REPORT_FIGURE_PATTERN = /^(q1e-|arrhenius$|series-\d+-curves$)/;
 
-/** The figures of the default report, dataset figures first. */
+/**
+ * The figures of the default report in its reading order, so that they are numbered as they are
+ * read: the ICH Q1E shelf-life plots (results), the Arrhenius plot (temperature dependence), then
+ * each series' data and fitted curves (appendix).
+ */
 export function reportFigures<T extends Pick<FigureSpec, 'id'>>(figures: readonly T[]): T[] {
   const chosen = figures.filter((figure) => REPORT_FIGURE_PATTERN.test(figure.id));
-  const datasetFirst = (figure: T) => (figure.id.startsWith('series-') ? 1 : 0);
-  return [...chosen].sort((a, b) => datasetFirst(a) - datasetFirst(b));
+  const rank = (figure: T) => (figure.id.startsWith('q1e-') ? 0 : figure.id === 'arrhenius' ? 1 : 2);
+  return [...chosen].sort((a, b) => rank(a) - rank(b));
 }
 
 /** Draws each figure to SVG, in order, numbered from 1. */

@@ -1,8 +1,9 @@
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../../../shared/figures/results-table.ts';
+import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
 import type { Series } from '../../../../shared/kinetics/types.ts';
 import { interval, NOT_ESTIMABLE_TEXT, significant } from './template-format.ts';
-import type { ReportTable } from './template-helpers.ts';
+import type { ReportTable, TableColumn } from './template-helpers.ts';
 
 /**
  * The tables of a report, as `ReportTable` objects of pre-formatted text (the `table` helper
@@ -52,9 +53,125 @@ function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string
         row.lower === null || row.upper === null
           ? ''
           : interval([row.lower, row.upper], row.digits, row.unit),
-      note: tidyNote(row.note),
+      // A shelf-life row's unit is the study's time unit: its note says "month", not "time units".
+      note: row.section === 'shelf-life' ? inTimeUnit(tidyNote(row.note), row.unit) : tidyNote(row.note),
     })),
   };
+}
+
+/** A quantity shown as a column of a wide table. */
+interface WideColumn {
+  quantity: string;
+  label: string;
+}
+
+/**
+ * One row per group of result rows (a series, or a series and a law) and one column per
+ * quantity, each cell the estimate with its interval below it. A statement that two or more
+ * cells share ("beyond the observed time (extrapolated)", the model-averaging method) is said
+ * once, as a numbered note under the table, and the cells refer to it as "[n]"; a statement of
+ * one cell only stays in that cell. Same numbers and significant figures as `listTable`.
+ */
+function wideTable(
+  analysis: DatasetAnalysis,
+  rows: ResultRow[],
+  options: {
+    caption: string;
+    groupKey: (row: ResultRow) => string;
+    leading: TableColumn[];
+    leadingCells: (row: ResultRow) => Record<string, string>;
+    quantities: WideColumn[];
+    notePart?: (row: ResultRow, part: string) => string;
+  },
+): ReportTable {
+  const groups = new Map<string, ResultRow[]>();
+  for (const row of rows) {
+    const key = options.groupKey(row);
+    groups.set(key, [...(groups.get(key) ?? []), row]);
+  }
+  const quantities = options.quantities.filter((column) =>
+    rows.some((row) => row.quantity === column.quantity),
+  );
+  const partsOf = (row: ResultRow) =>
+    tidyNote(row.note)
+      .split('; ')
+      .map((part) => (options.notePart ? options.notePart(row, part) : part).trim())
+      .filter(Boolean);
+  const uses = new Map<string, number>();
+  for (const row of rows) for (const part of new Set(partsOf(row))) uses.set(part, (uses.get(part) ?? 0) + 1);
+  const notes: string[] = [];
+  const marker = (part: string) => {
+    if (!notes.includes(part)) notes.push(part);
+    return `[${notes.indexOf(part) + 1}]`;
+  };
+  const cellText = (row: ResultRow | undefined) => {
+    if (!row) return '—';
+    const parts = partsOf(row);
+    const shared = parts.filter((part) => (uses.get(part) ?? 0) > 1).map(marker);
+    const own = parts.filter((part) => (uses.get(part) ?? 0) <= 1);
+    const estimate = [significant(row.estimate, row.digits, row.unit), ...shared].join(' ');
+    const range =
+      row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits, row.unit);
+    return [estimate, range, ...own].filter(Boolean).join('\n');
+  };
+  return {
+    caption: `${options.caption} (${intervalLabel(analysis)} below each estimate)`,
+    columns: [
+      ...options.leading,
+      ...quantities.map((column) => ({ key: column.quantity, label: column.label, align: 'right' as const })),
+    ],
+    rows: [...groups.values()].map((group) => {
+      const cells: Record<string, string> = options.leadingCells(group[0]!);
+      for (const column of quantities)
+        cells[column.quantity] = cellText(group.find((row) => row.quantity === column.quantity));
+      return cells;
+    }),
+    ...(notes.length > 0 ? { notes } : {}),
+  };
+}
+
+const TIME_COLUMNS: WideColumn[] = [
+  { quantity: 'half-life', label: 'Half-life' },
+  { quantity: 't90', label: 't90 (10 % loss)' },
+  { quantity: 'time-to-lower-limit', label: 'Time to the lower limit' },
+  { quantity: 'time-to-upper-limit', label: 'Time to the upper limit' },
+];
+
+/** Half-life, t90 and time to each limit of the reported order: one row per series. */
+function derivedTable(analysis: DatasetAnalysis, rows: ResultRow[]): ReportTable {
+  return wideTable(analysis, rows, {
+    caption: 'Half-life, t90 and time to the limits (reported order)',
+    groupKey: where,
+    leading: [
+      { key: 'where', label: 'Series / condition' },
+      { key: 'law', label: 'Order' },
+    ],
+    leadingCells: (row) => ({ where: where(row), law: modelName(row) }),
+    quantities: TIME_COLUMNS,
+  });
+}
+
+/**
+ * The plausible laws of each series whose order the data do not name, one row per law, and the
+ * model-averaged times in a row of their own; k is never averaged (its units differ by order).
+ */
+function plausibleTable(analysis: DatasetAnalysis, rows: ResultRow[]): ReportTable {
+  return wideTable(analysis, rows, {
+    caption:
+      'Series whose order the data do not name: each plausible law (Akaike weight ≥ 0.1 or ΔAICc ≤ 2) and the model-averaged t90 and time to a limit with the unconditional interval (Burnham & Anderson 2002, §4.3); k is never averaged',
+    groupKey: (row) => `${where(row)}|${row.model}`,
+    leading: [
+      { key: 'where', label: 'Series / condition' },
+      { key: 'law', label: 'Law' },
+    ],
+    leadingCells: (row) => ({
+      where: where(row),
+      law: row.model === 'average' ? 'model average' : modelName(row),
+    }),
+    quantities: [{ quantity: 'k', label: 'Rate constant k' }, ...TIME_COLUMNS],
+    // The caption says each law is plausible; the cell keeps its weight and ΔAICc.
+    notePart: (row, part) => (row.quantity === 'k' ? part.replace(/^plausible law: /, '') : part),
+  });
 }
 
 /** One row per series and rate law: k with its interval, C0, AICc and Akaike weight. */
@@ -160,46 +277,91 @@ const ARRHENIUS_ORDER_WHY: Record<string, string> = {
   data: 'rate constants of the order with the lowest summed AICc over the series',
 };
 
-/** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
-export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
+/** The results tables by the part of the report they belong to, each in reading order. */
+export interface ResultTableGroups {
+  /** The proposed shelf life per condition and the ICH Q1E statistical estimates. */
+  shelfLife: ReportTable[];
+  /** Arrhenius (and Eyring) over the temperatures of the data. */
+  temperature: ReportTable[];
+  /** Per series: derived times, plausible laws, the rate-law comparison, the straight-line plots. */
+  series: ReportTable[];
+}
+
+/** The results tables, from `resultRows` (the screen's rows and figures), grouped by report part. */
+export function resultTableGroups(analysis: DatasetAnalysis): ResultTableGroups {
   const rows = resultRows(analysis);
   const of = (section: ResultRow['section']) => rows.filter((row) => row.section === section);
-  const tables: ReportTable[] = [];
+  const groups: ResultTableGroups = { shelfLife: [], temperature: [], series: [] };
   const proposals = proposalTable(analysis);
-  if (proposals) tables.push(proposals);
+  if (proposals) groups.shelfLife.push(proposals);
   if (of('shelf-life').length > 0)
-    tables.push(
+    groups.shelfLife.push(
       listTable(analysis, of('shelf-life'), 'ICH Q1E statistical shelf-life estimate per condition'),
     );
   if (of('arrhenius').length > 0)
-    tables.push(
+    groups.temperature.push(
       listTable(
         analysis,
         of('arrhenius'),
         `Temperature dependence (Arrhenius; Eyring ΔH‡ and ΔS‡ through the same rate constants): ${ARRHENIUS_ORDER_WHY[String(analysis.arrhenius?.orderSource)] ?? 'order of the analysis'}`,
       ),
     );
-  if (of('derived').length > 0) {
-    tables.push(listTable(analysis, of('derived'), 'Half-life, t90 and time to the limits (reported order)'));
-  }
-  if (of('plausible').length > 0) {
-    // The law in a column of its own, so the quantity does not wrap one word per line.
-    const plausible = of('plausible');
-    const table = listTable(
-      analysis,
-      plausible,
-      'Series whose order the data do not name: each plausible law (Akaike weight ≥ 0.1 or ΔAICc ≤ 2) and the model-averaged t90 and time to a limit with the unconditional interval (Burnham & Anderson 2002, §4.3); k is never averaged',
-    );
-    table.columns.splice(1, 0, { key: 'law', label: 'Law' });
-    table.rows.forEach((cells, index) => {
-      const row = plausible[index] as ResultRow;
-      cells.law = row.model === 'average' ? 'model average' : modelName(row);
-    });
-    tables.push(table);
-  }
-  if (of('rate-law').length > 0) tables.push(modelTable(analysis, of('rate-law')));
-  if (of('linearised').length > 0) tables.push(linearisedTable(of('linearised')));
-  return tables;
+  if (of('derived').length > 0) groups.series.push(derivedTable(analysis, of('derived')));
+  if (of('plausible').length > 0) groups.series.push(plausibleTable(analysis, of('plausible')));
+  if (of('rate-law').length > 0) groups.series.push(modelTable(analysis, of('rate-law')));
+  if (of('linearised').length > 0) groups.series.push(linearisedTable(of('linearised')));
+  return groups;
+}
+
+/** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
+export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
+  const groups = resultTableGroups(analysis);
+  return [...groups.shelfLife, ...groups.temperature, ...groups.series];
+}
+
+/**
+ * A table of rows that each carry a statement in prose (a series' verdict, say), with every
+ * sentence that two or more rows share said once, as a numbered note under the table, and
+ * referred to from the row as "[n]"; sentences of one row only stay in its cell. Sentences are
+ * split at a full stop or semicolon followed by a space and a capital letter or digit, so that a
+ * decimal point ("0.219 half-lives") never splits one. Repeated statements become one sentence
+ * with a list, not a paragraph per row.
+ *
+ * Example: two rows "Order not identified: 4 % reacted. Fixed by the analyst." and "Order not
+ * identified: 6 % reacted. Fixed by the analyst." give cells "Order not identified: 4 % reacted.
+ * [1]" and "… 6 % reacted. [1]" and the note "Fixed by the analyst.".
+ */
+export function sharedStatementTable(
+  caption: string,
+  columns: TableColumn[],
+  statementColumn: TableColumn,
+  rows: { cells: Record<string, string>; statement: string }[],
+): ReportTable {
+  const sentencesOf = (statement: string) =>
+    tidyNote(statement)
+      .split(/(?<=[.;])\s+(?=[A-Z0-9])/)
+      .map((sentence) => sentence.trim())
+      .filter(Boolean);
+  const uses = new Map<string, number>();
+  for (const row of rows)
+    for (const sentence of new Set(sentencesOf(row.statement)))
+      uses.set(sentence, (uses.get(sentence) ?? 0) + 1);
+  const notes: string[] = [];
+  const marker = (sentence: string) => {
+    if (!notes.includes(sentence)) notes.push(sentence);
+    return `[${notes.indexOf(sentence) + 1}]`;
+  };
+  return {
+    caption,
+    columns: [...columns, statementColumn],
+    rows: rows.map((row) => {
+      const sentences = sentencesOf(row.statement);
+      const own = sentences.filter((sentence) => (uses.get(sentence) ?? 0) <= 1);
+      const shared = sentences.filter((sentence) => (uses.get(sentence) ?? 0) > 1).map(marker);
+      return { ...row.cells, [statementColumn.key]: [...own, ...shared].join(' ') };
+    }),
+    ...(notes.length > 0 ? { notes } : {}),
+  };
 }
 
 /** The measured points of each series, in time order, marking excluded ones with their reason. */

@@ -99,6 +99,38 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
       'Results tables (same rows and figures as the analysis screen); print each with {{table this}}.',
   },
   {
+    path: 'tables.shelfLife[]',
+    description:
+      'The results tables of the shelf-life part: the proposal per condition and the ICH Q1E estimates; print each with {{table this}}.',
+  },
+  {
+    path: 'tables.temperature[]',
+    description:
+      'The temperature-dependence table (Arrhenius, Eyring), when the data hold several temperatures.',
+  },
+  {
+    path: 'tables.series[]',
+    description:
+      'Per-series detail tables: derived times, plausible laws, rate-law comparison, straight-line plots (an appendix).',
+  },
+  {
+    path: 'seriesBasis',
+    description:
+      "One row per series: points, order reported and what the data say, with shared sentences said once as the table's notes; print with {{table seriesBasis}}.",
+  },
+  {
+    path: 'figureGroups.shelfLife[]',
+    description: 'The ICH Q1E shelf-life figures (id, number, title, description); print with {{figure id}}.',
+  },
+  {
+    path: 'figureGroups.temperature[]',
+    description: 'The Arrhenius figure, when there is one.',
+  },
+  {
+    path: 'figureGroups.series[]',
+    description: "Each series' data and fitted curves.",
+  },
+  {
     path: 'dataTables[]',
     description: 'Measured data per series with exclusions and reasons; print each with {{table this}}.',
   },

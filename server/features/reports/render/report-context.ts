@@ -4,7 +4,12 @@ import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
 import type { Q1eProposal } from '../../../../shared/kinetics/stability/q1e-proposal.ts';
 import type { AttributeDirection, Series } from '../../../../shared/kinetics/types.ts';
-import { dataTables, resultTables } from './report-context-tables.ts';
+import {
+  dataTables,
+  resultTableGroups,
+  resultTables,
+  sharedStatementTable,
+} from './report-context-tables.ts';
 import { isoDay, significant } from './template-format.ts';
 import type { ReportTable } from './template-helpers.ts';
 
@@ -254,6 +259,12 @@ export function buildReportContext(input: ReportContextInput) {
       ? shelfLife.map((entry) => entry.statement)
       : series.map((entry) => `${entry.id}: ${entry.verdict}`);
   const proposals = shelfLife.filter((entry) => entry.isLongTermCondition);
+  const contextFigures = input.figures.map((figure, index) => ({
+    id: figure.id,
+    number: index + 1,
+    title: figure.title,
+    description: figure.description,
+  }));
   return {
     organisation: { name: organisation.name, timeZone },
     report: {
@@ -303,12 +314,30 @@ export function buildReportContext(input: ReportContextInput) {
     summary: { headline, series, shelfLife, proposals, arrhenius: arrheniusSummary(analysis) },
     resultTables: resultTables(analysis) as ReportTable[],
     dataTables: dataTables(analysisRun.series),
-    figures: input.figures.map((figure, index) => ({
-      id: figure.id,
-      number: index + 1,
-      title: figure.title,
-      description: figure.description,
-    })),
+    tables: resultTableGroups(analysis),
+    seriesBasis: sharedStatementTable(
+      'How each series was analysed: points used, the order reported and what the data say',
+      [
+        { key: 'where', label: 'Series' },
+        { key: 'points', label: 'Points', align: 'right' },
+        { key: 'order', label: 'Order reported' },
+      ],
+      { key: 'basis', label: 'Basis' },
+      series.map((entry) => ({
+        cells: {
+          where: entry.id,
+          points: String(entry.points),
+          order: entry.reportedOrder ?? 'not identified',
+        },
+        statement: entry.verdict,
+      })),
+    ),
+    figures: contextFigures,
+    figureGroups: {
+      shelfLife: contextFigures.filter((figure) => figure.id.startsWith('q1e-')),
+      temperature: contextFigures.filter((figure) => figure.id === 'arrhenius'),
+      series: contextFigures.filter((figure) => figure.id.startsWith('series-')),
+    },
     exclusions,
     warnings: [
       ...analysis.warnings.map((warning) => warning.message),

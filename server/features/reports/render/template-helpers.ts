@@ -116,6 +116,11 @@ export interface ReportTable {
   rows: Record<string, string>[];
   /** Text shown in a single cell when there are no rows. */
   empty?: string;
+  /**
+   * Statements that several cells share, said once under the table as a numbered list; a cell
+   * refers to one as "[n]". A line break in a cell's text ("\n") starts a new line in the cell.
+   */
+  notes?: string[];
 }
 
 export interface FigureMarkup {
@@ -132,7 +137,7 @@ function tableMarkup(hb: Env, table: unknown): string {
   if (!table || typeof table !== 'object' || !Array.isArray((table as ReportTable).columns)) {
     throw new TemplateValueError('table: expected a table object with columns and rows.');
   }
-  const { caption, columns, rows, empty } = table as ReportTable;
+  const { caption, columns, rows, empty, notes } = table as ReportTable;
   const alignClass = (column: TableColumn) => (column.align ? ` class="align-${column.align}"` : '');
   const head = columns
     .map((column) => `<th scope="col"${alignClass(column)}>${escapeText(hb, column.label)}</th>`)
@@ -144,13 +149,16 @@ function tableMarkup(hb: Env, table: unknown): string {
           .map((row) => {
             const cells = columns.map((column) => {
               const cell = Object.hasOwn(row, column.key) ? row[column.key] : '';
-              return `<td${alignClass(column)}>${escapeText(hb, cell)}</td>`;
+              return `<td${alignClass(column)}>${escapeText(hb, cell).replace(/\n/g, '<br>')}</td>`;
             });
             return `<tr>${cells.join('')}</tr>`;
           })
           .join('');
   const captionHtml = caption ? `<caption>${escapeText(hb, caption)}</caption>` : '';
-  return `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
+  const tableHtml = `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
+  if (!Array.isArray(notes) || notes.length === 0) return tableHtml;
+  const items = notes.map((note) => `<li>${escapeText(hb, note)}</li>`).join('');
+  return `${tableHtml}<ol class="table-notes" aria-label="Notes to the table">${items}</ol>`;
 }
 
 /**
