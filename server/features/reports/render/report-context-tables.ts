@@ -59,6 +59,9 @@ function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string
   };
 }
 
+/** The longest statement a cell of a wide table keeps in itself; longer ones become notes. */
+const INLINE_NOTE_CHARACTERS = 40;
+
 /** A quantity shown as a column of a wide table. */
 interface WideColumn {
   quantity: string;
@@ -69,8 +72,10 @@ interface WideColumn {
  * One row per group of result rows (a series, or a series and a law) and one column per
  * quantity, each cell the estimate with its interval below it. A statement that two or more
  * cells share ("beyond the observed time (extrapolated)", the model-averaging method) is said
- * once, as a numbered note under the table, and the cells refer to it as "[n]"; a statement of
- * one cell only stays in that cell. Same numbers and significant figures as `listTable`.
+ * once, as a numbered note under the table, and the cells refer to it as "[n]"; so is a long
+ * statement of one cell (over `INLINE_NOTE_CHARACTERS`), so that the columns stay narrow enough
+ * for the page; a short one stays in its cell. The interval below an estimate omits the unit the
+ * estimate line states. Same numbers and significant figures as `listTable`.
  */
 function wideTable(
   analysis: DatasetAnalysis,
@@ -107,11 +112,12 @@ function wideTable(
   const cellText = (row: ResultRow | undefined) => {
     if (!row) return '—';
     const parts = partsOf(row);
-    const shared = parts.filter((part) => (uses.get(part) ?? 0) > 1).map(marker);
-    const own = parts.filter((part) => (uses.get(part) ?? 0) <= 1);
+    const inNote = (part: string) => (uses.get(part) ?? 0) > 1 || part.length > INLINE_NOTE_CHARACTERS;
+    const shared = parts.filter(inNote).map(marker);
+    const own = parts.filter((part) => !inNote(part));
     const estimate = [significant(row.estimate, row.digits, row.unit), ...shared].join(' ');
     const range =
-      row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits, row.unit);
+      row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits);
     return [estimate, range, ...own].filter(Boolean).join('\n');
   };
   return {
