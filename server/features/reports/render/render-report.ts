@@ -5,6 +5,7 @@ import { renderSvg } from '../figures/render-svg.ts';
 import type { BrowserPool } from '../pdf/browser-pool.ts';
 import { type PdfPaper, type PrintPdfResult, printPdf } from '../pdf/print-pdf.ts';
 import type { ReportContext } from './report-context.ts';
+import { REPORT_FIGURE_PARTS, reportFigurePart } from './report-figure-parts.ts';
 import { compileReportTemplate, type ReportTemplateSource } from './template-engine.ts';
 import type { FigureMarkup } from './template-helpers.ts';
 
@@ -43,17 +44,13 @@ export interface RenderTimings {
   printMs: number;
 }
 
-const REPORT_FIGURE_PATTERN = /^(q1e-|arrhenius$|series-\d+-curves$)/;
-
 /**
- * The figures of the default report in its reading order, so that they are numbered as they are
- * read: the ICH Q1E shelf-life plots (results), the Arrhenius plot (temperature dependence), then
- * each series' data and fitted curves (appendix).
+ * The figures of the default report in its reading order (`report-figure-parts.ts`), so that
+ * they are numbered as they are read.
  */
 export function reportFigures<T extends Pick<FigureSpec, 'id'>>(figures: readonly T[]): T[] {
-  const chosen = figures.filter((figure) => REPORT_FIGURE_PATTERN.test(figure.id));
-  const rank = (figure: T) => (figure.id.startsWith('q1e-') ? 0 : figure.id === 'arrhenius' ? 1 : 2);
-  return [...chosen].sort((a, b) => rank(a) - rank(b));
+  const rank = (figure: T) => REPORT_FIGURE_PARTS.indexOf(reportFigurePart(figure.id)!);
+  return figures.filter((figure) => reportFigurePart(figure.id) !== null).sort((a, b) => rank(a) - rank(b));
 }
 
 /** Draws each figure to SVG, in order, numbered from 1. */

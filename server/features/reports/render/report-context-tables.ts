@@ -59,6 +59,33 @@ function listTable(analysis: DatasetAnalysis, rows: ResultRow[], caption: string
   };
 }
 
+/**
+ * The numbered notes under a table: `cells` are the statements of each cell, `toNote` says
+ * whether a statement (used by `uses` cells) is said once under the table rather than in its
+ * cell. `place` splits one cell's statements into the "[n]" markers of its notes and the ones
+ * it keeps; notes are numbered in the order cells are placed.
+ */
+function tableNotes(cells: readonly string[][], toNote: (statement: string, uses: number) => boolean) {
+  const uses = new Map<string, number>();
+  for (const statements of cells)
+    for (const statement of new Set(statements)) uses.set(statement, (uses.get(statement) ?? 0) + 1);
+  const numbers = new Map<string, number>();
+  const place = (statements: readonly string[]) => {
+    const markers: string[] = [];
+    const own: string[] = [];
+    for (const statement of statements) {
+      if (!toNote(statement, uses.get(statement) ?? 0)) {
+        own.push(statement);
+        continue;
+      }
+      if (!numbers.has(statement)) numbers.set(statement, numbers.size + 1);
+      markers.push(`[${numbers.get(statement)}]`);
+    }
+    return { markers, own };
+  };
+  return { place, notes: () => [...numbers.keys()] };
+}
+
 /** The longest statement a cell of a wide table keeps in itself; longer ones become notes. */
 const INLINE_NOTE_CHARACTERS = 40;
 
@@ -92,7 +119,9 @@ function wideTable(
   const groups = new Map<string, ResultRow[]>();
   for (const row of rows) {
     const key = options.groupKey(row);
-    groups.set(key, [...(groups.get(key) ?? []), row]);
+    const group = groups.get(key);
+    if (group) group.push(row);
+    else groups.set(key, [row]);
   }
   const quantities = options.quantities.filter((column) =>
     rows.some((row) => row.quantity === column.quantity),
@@ -102,36 +131,32 @@ function wideTable(
       .split('; ')
       .map((part) => (options.notePart ? options.notePart(row, part) : part).trim())
       .filter(Boolean);
-  const uses = new Map<string, number>();
-  for (const row of rows) for (const part of new Set(partsOf(row))) uses.set(part, (uses.get(part) ?? 0) + 1);
-  const notes: string[] = [];
-  const marker = (part: string) => {
-    if (!notes.includes(part)) notes.push(part);
-    return `[${notes.indexOf(part) + 1}]`;
-  };
+  const footnotes = tableNotes(
+    rows.map(partsOf),
+    (part, uses) => uses > 1 || part.length > INLINE_NOTE_CHARACTERS,
+  );
   const cellText = (row: ResultRow | undefined) => {
     if (!row) return '—';
-    const parts = partsOf(row);
-    const inNote = (part: string) => (uses.get(part) ?? 0) > 1 || part.length > INLINE_NOTE_CHARACTERS;
-    const shared = parts.filter(inNote).map(marker);
-    const own = parts.filter((part) => !inNote(part));
-    const estimate = [significant(row.estimate, row.digits, row.unit), ...shared].join(' ');
+    const { markers, own } = footnotes.place(partsOf(row));
+    const estimate = [significant(row.estimate, row.digits, row.unit), ...markers].join(' ');
     const range =
       row.lower === null || row.upper === null ? '' : interval([row.lower, row.upper], row.digits);
     return [estimate, range, ...own].filter(Boolean).join('\n');
   };
+  const tableRows = [...groups.values()].map((group) => {
+    const cells: Record<string, string> = options.leadingCells(group[0]!);
+    for (const column of quantities)
+      cells[column.quantity] = cellText(group.find((row) => row.quantity === column.quantity));
+    return cells;
+  });
+  const notes = footnotes.notes();
   return {
     caption: `${options.caption} (${intervalLabel(analysis)} below each estimate)`,
     columns: [
       ...options.leading,
       ...quantities.map((column) => ({ key: column.quantity, label: column.label, align: 'right' as const })),
     ],
-    rows: [...groups.values()].map((group) => {
-      const cells: Record<string, string> = options.leadingCells(group[0]!);
-      for (const column of quantities)
-        cells[column.quantity] = cellText(group.find((row) => row.quantity === column.quantity));
-      return cells;
-    }),
+    rows: tableRows,
     ...(notes.length > 0 ? { notes } : {}),
   };
 }
@@ -319,10 +344,14 @@ export function resultTableGroups(analysis: DatasetAnalysis): ResultTableGroups 
   return groups;
 }
 
+/** The grouped results tables as one list, in reading order. */
+export function allResultTables(groups: ResultTableGroups): ReportTable[] {
+  return [...groups.shelfLife, ...groups.temperature, ...groups.series];
+}
+
 /** The results tables, from `resultRows` (the screen's rows and figures), in reading order. */
 export function resultTables(analysis: DatasetAnalysis): ReportTable[] {
-  const groups = resultTableGroups(analysis);
-  return [...groups.shelfLife, ...groups.temperature, ...groups.series];
+  return allResultTables(resultTableGroups(analysis));
 }
 
 /**
@@ -348,24 +377,19 @@ export function sharedStatementTable(
       .split(/(?<=[.;])\s+(?=[A-Z0-9])/)
       .map((sentence) => sentence.trim())
       .filter(Boolean);
-  const uses = new Map<string, number>();
-  for (const row of rows)
-    for (const sentence of new Set(sentencesOf(row.statement)))
-      uses.set(sentence, (uses.get(sentence) ?? 0) + 1);
-  const notes: string[] = [];
-  const marker = (sentence: string) => {
-    if (!notes.includes(sentence)) notes.push(sentence);
-    return `[${notes.indexOf(sentence) + 1}]`;
-  };
+  const footnotes = tableNotes(
+    rows.map((row) => sentencesOf(row.statement)),
+    (_sentence, uses) => uses > 1,
+  );
+  const tableRows = rows.map((row) => {
+    const { markers, own } = footnotes.place(sentencesOf(row.statement));
+    return { ...row.cells, [statementColumn.key]: [...own, ...markers].join(' ') };
+  });
+  const notes = footnotes.notes();
   return {
     caption,
     columns: [...columns, statementColumn],
-    rows: rows.map((row) => {
-      const sentences = sentencesOf(row.statement);
-      const own = sentences.filter((sentence) => (uses.get(sentence) ?? 0) <= 1);
-      const shared = sentences.filter((sentence) => (uses.get(sentence) ?? 0) > 1).map(marker);
-      return { ...row.cells, [statementColumn.key]: [...own, ...shared].join(' ') };
-    }),
+    rows: tableRows,
     ...(notes.length > 0 ? { notes } : {}),
   };
 }

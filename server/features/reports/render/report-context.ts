@@ -5,11 +5,12 @@ import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-datase
 import type { Q1eProposal } from '../../../../shared/kinetics/stability/q1e-proposal.ts';
 import type { AttributeDirection, Series } from '../../../../shared/kinetics/types.ts';
 import {
+  allResultTables,
   dataTables,
   resultTableGroups,
-  resultTables,
   sharedStatementTable,
 } from './report-context-tables.ts';
+import { reportFigurePart } from './report-figure-parts.ts';
 import { isoDay, significant } from './template-format.ts';
 import type { ReportTable } from './template-helpers.ts';
 
@@ -265,6 +266,8 @@ export function buildReportContext(input: ReportContextInput) {
     title: figure.title,
     description: figure.description,
   }));
+  const tables = resultTableGroups(analysis);
+  const figuresOf = (part: string) => contextFigures.filter((figure) => reportFigurePart(figure.id) === part);
   return {
     organisation: { name: organisation.name, timeZone },
     report: {
@@ -312,9 +315,9 @@ export function buildReportContext(input: ReportContextInput) {
       pointsUsed: statement.data.pointsUsed,
     },
     summary: { headline, series, shelfLife, proposals, arrhenius: arrheniusSummary(analysis) },
-    resultTables: resultTables(analysis) as ReportTable[],
+    resultTables: allResultTables(tables) as ReportTable[],
     dataTables: dataTables(analysisRun.series),
-    tables: resultTableGroups(analysis),
+    tables,
     seriesBasis: sharedStatementTable(
       'How each series was analysed: points used, the order reported and what the data say',
       [
@@ -334,9 +337,9 @@ export function buildReportContext(input: ReportContextInput) {
     ),
     figures: contextFigures,
     figureGroups: {
-      shelfLife: contextFigures.filter((figure) => figure.id.startsWith('q1e-')),
-      temperature: contextFigures.filter((figure) => figure.id === 'arrhenius'),
-      series: contextFigures.filter((figure) => figure.id.startsWith('series-')),
+      shelfLife: figuresOf('shelfLife'),
+      temperature: figuresOf('temperature'),
+      series: figuresOf('series'),
     },
     exclusions,
     warnings: [
