@@ -23,7 +23,7 @@ import {
 } from '../../shared/intake/unit-from-header.ts';
 import { analyseDataset } from '../../shared/kinetics/analyse-dataset.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
-import { FileReadError } from '../features/intake/index.ts';
+import { FileReadError } from '../features/intake/readers/file-read-error.ts';
 import { FIT_USAGE, type FitOptions, parseFitArguments } from './fit-arguments.ts';
 import { fitDocument } from './fit-document.ts';
 import { fitReport } from './fit-report.ts';

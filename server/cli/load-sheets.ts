@@ -12,7 +12,8 @@
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
-import { readCsv, readWorkbook } from '../features/intake/index.ts';
+import { readCsv } from '../features/intake/readers/read-csv.ts';
+import { readWorkbook } from '../features/intake/readers/read-workbook.ts';
 
 const CONTAINER_SIGNATURES = [
   [0x50, 0x4b, 0x03, 0x04],
