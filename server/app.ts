@@ -14,6 +14,7 @@ import { retirementRoutes } from './features/retirement/index.ts';
 import { reviewRoutes } from './features/review/index.ts';
 import { settingsRoutes } from './features/settings/index.ts';
 import { studyRoutes } from './features/studies/index.ts';
+import { temperatureLogRoutes } from './features/temperature-logs/index.ts';
 import { templateAdminRoutes } from './features/templates/index.ts';
 import { publicVerificationRoutes, verificationRoutes } from './features/verification/index.ts';
 import type { AppOptions, AppServices } from './platform/app-services.ts';
@@ -136,6 +137,8 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   app.use(express.urlencoded({ extended: false, limit: '100kb' }));
   // The public PDF check reads its multipart body first and then runs this same CSRF check itself.
   app.use(publicVerificationRoutes(services, csrf.protect));
+  // Its upload form is multipart too: it reads the bounded body, then runs the same CSRF check.
+  app.use(temperatureLogRoutes(services, csrf.protect));
   app.use(csrf.protect);
 
   app.use(authRoutes(services));

@@ -25,13 +25,14 @@ import { findUpload, previewSheet, sheetsOfUpload, storeUpload } from './uploads
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
 
 /**
- * One file in memory, at most UPLOAD_SIZE_LIMIT_BYTES. multer's own errors (too large, a broken
+ * One file in memory, at most UPLOAD_SIZE_LIMIT_BYTES, beside at most `fields` text fields (a
+ * form with more names its own count). multer's own errors (too large, a broken
  * multipart body) become clear 4xx answers instead of reaching the final handler as a 500.
  */
-function receiveOneFile(): RequestHandler {
+export function receiveOneFile(fields = 10): RequestHandler {
   const parse = multer({
     storage: hashingMemoryStorage(),
-    limits: { fileSize: UPLOAD_SIZE_LIMIT_BYTES, files: 1, fields: 10, parts: 12 },
+    limits: { fileSize: UPLOAD_SIZE_LIMIT_BYTES, files: 1, fields, parts: fields + 2 },
   }).single(UPLOAD_FIELD);
   return (req, res, next) => {
     parse(req, res, (error: unknown) => {

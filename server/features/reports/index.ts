@@ -2,6 +2,7 @@
 
 export * from '../../platform/config/render-config.ts';
 export * from '../../platform/storage/report-storage.ts';
+export * from './figures/render-svg.ts';
 export * from './pdf/browser-pool.ts';
 export * from './queue/in-process-worker.ts';
 export * from './queue/render-pipeline.ts';

@@ -16,6 +16,7 @@ export * from './sessions.ts';
 export * from './settings.ts';
 export * from './studies.ts';
 export * from './study-versions.ts';
+export * from './temperature-logs.ts';
 export * from './template-publications.ts';
 export * from './uploads.ts';
 export * from './users.ts';
