@@ -37,11 +37,22 @@ export const TEMPERATURE_LOG_FIELDS = [
   'window',
   'windowStep',
   'maxInterval',
+  'studyId',
+  'latestValue',
 ] as const;
 export type TemperatureLogField = (typeof TEMPERATURE_LOG_FIELDS)[number];
 
 export type TemperatureLogForm =
-  | { ok: true; title: string; mapping: TemperatureLogMapping; settings: TemperatureLogSettings }
+  | {
+      ok: true;
+      title: string;
+      mapping: TemperatureLogMapping;
+      settings: TemperatureLogSettings;
+      /** The study whose Arrhenius fit prices the log; none when blank. */
+      studyId?: number;
+      /** The batch's latest result, in the study's unit, for the margin to the limit. */
+      latestValue?: number;
+    }
   | { ok: false; errors: Partial<Record<TemperatureLogField, string>> };
 
 const titleSchema = z
@@ -107,6 +118,13 @@ export function readTemperatureLogForm(fields: Record<string, unknown>): Tempera
       errors[field] ??= issue.message;
     }
   }
+  const studyText = text(fields, 'studyId');
+  const studyId = studyText === undefined ? undefined : Number(studyText);
+  if (studyId !== undefined && !(Number.isInteger(studyId) && studyId > 0))
+    errors.studyId = 'Choose a study from the list, or none.';
+  const latestValue = number('latestValue', '98.6');
+  if (latestValue !== undefined && studyId === undefined)
+    errors.latestValue ??= 'A latest result needs the study it belongs to: choose the study too.';
   // Said beside the field even when another setting is also wrong (the schema's own check of the
   // range runs only once every field is valid).
   const low = settings.success ? settings.data.rangeMinC : number('rangeMinC', '15');
@@ -115,5 +133,12 @@ export function readTemperatureLogForm(fields: Record<string, unknown>): Tempera
     errors.rangeMaxC ??= 'The lowest labelled temperature must be below the highest.';
   if (Object.keys(errors).length > 0 || !title.success || !mapping.success || !settings.success)
     return { ok: false, errors };
-  return { ok: true, title: title.data, mapping: mapping.data, settings: settings.data };
+  return {
+    ok: true,
+    title: title.data,
+    mapping: mapping.data,
+    settings: settings.data,
+    ...(studyId === undefined ? {} : { studyId }),
+    ...(latestValue === undefined ? {} : { latestValue }),
+  };
 }

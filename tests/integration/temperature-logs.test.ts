@@ -7,6 +7,7 @@ import { and, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { auditEvents, temperatureLogAssessments } from '../../server/platform/db/schema/index.ts';
 import { createTestWorld, csrfFrom, signIn, type TestWorld } from '../support/test-app.ts';
+import { studyThroughForm, studyWithRun } from './study-flow-fixture.ts';
 
 const STORE_ROOM = readFileSync(
   path.resolve(import.meta.dirname, '..', 'fixtures', 'temperature-log-store-room.csv'),
@@ -198,6 +199,56 @@ describe('temperature-log assessments', () => {
       .field('title', 'x')
       .attach('file', STORE_ROOM, 'log.csv');
     expect(forged.status).toBe(403);
+    expect(await countAssessments(world)).toBe(before);
+  });
+
+  it('with a study, the log is priced in the study’s own Arrhenius fit and the analysis is named', async () => {
+    const { agent } = await signInAs(world, 'analyst');
+    // The invented Veltrazine study: 25 °C long-term and 40, 50, 60 °C batches (an Arrhenius fit).
+    const { studyId, runId } = await studyWithRun(agent);
+    const created = await postLog(
+      agent,
+      { ...FIELDS, studyId: String(studyId), latestValue: '99,2' },
+      STORE_ROOM,
+    );
+    expect(created.status).toBe(303);
+    const logId = Number(/\/temperature-logs\/(\d+)/.exec(created.headers.location ?? '')?.[1]);
+    const [row] = await world.database.db
+      .select()
+      .from(temperatureLogAssessments)
+      .where(eq(temperatureLogAssessments.id, logId));
+    // biome-ignore lint/suspicious/noExplicitAny: the stored JSON is checked field by field.
+    const impact = (row!.result as any).impact;
+    expect(impact.source).toMatchObject({ studyId, analysisRunId: runId, unit: '% of label claim' });
+    expect(impact.storageTemperatureC).toBe(25);
+    expect(impact.latestValue).toBe(99.2);
+    expect(impact.limit).toBe(95);
+    // The store room's MKT (21.7 °C) is below the 25 °C storage temperature, so the log cost less
+    // than its own duration at 25 °C, inside an interval around it.
+    expect(impact.equivalentDuration.estimate).toBeLessThan(impact.loggedDuration);
+    expect(impact.equivalentDuration.interval[0]).toBeLessThan(impact.equivalentDuration.estimate);
+    expect(impact.margin.before).toBeCloseTo(4.2, 10);
+    expect(impact.margin.after.estimate).toBeLessThan(4.2);
+    const page = await agent.get(`/temperature-logs/${logId}`);
+    expect(page.text).toContain('What the log cost Veltrazine 10 mg tablets (invented)');
+    expect(page.text).toContain(`Arrhenius fit of analysis ${runId}`);
+    expect(page.text).toContain('Margin left after the log');
+  });
+
+  it('a study without an analysis, or a latest result without a study, is refused beside its field', async () => {
+    const { agent } = await signInAs(world, 'analyst');
+    const before = await countAssessments(world);
+    const bare = await studyThroughForm(agent, { title: 'No analysis yet (invented)' });
+    const refused = await postLog(agent, { ...FIELDS, studyId: String(bare) }, STORE_ROOM);
+    expect(refused.status).toBe(422);
+    expect(refused.text).toMatch(/id="studyId-error"[^>]*>This study has no analysis yet/);
+    const orphan = await postLog(agent, { ...FIELDS, latestValue: '98' }, STORE_ROOM);
+    expect(orphan.status).toBe(400);
+    expect(orphan.text).toMatch(/id="latestValue-error"[^>]*>A latest result needs the study/);
+    // Another organisation's study is not found, as if it did not exist.
+    const { agent: outsider } = await signInAs(other, 'outsider');
+    const foreign = await postLog(outsider, { ...FIELDS, studyId: String(bare) }, STORE_ROOM);
+    expect(foreign.status).toBe(422);
     expect(await countAssessments(world)).toBe(before);
   });
 });

@@ -30,10 +30,13 @@ import { temperatureLogAssessments, users } from '../../platform/db/schema/index
 import { HttpError } from '../../platform/http/http-error.ts';
 import { detectFormat, type ReceivedFile, readSheetsInWorker, sha256Hex } from '../intake/index.ts';
 import { renderSvg } from '../reports/index.ts';
+import { type StudyImpact, StudyImpactRefused, studyImpact } from './study-impact.ts';
 
 export type TemperatureLogAssessmentRecord = typeof temperatureLogAssessments.$inferSelect;
 
 /** The log could not be assessed: every problem, each with its place (sheet, cell, column). */
+export { StudyImpactRefused };
+
 export class TemperatureLogRefused extends HttpError {
   constructor(readonly problems: string[]) {
     super(422, problems.length === 1 ? (problems[0] as string) : `${problems.length} problems in the log.`);
@@ -46,7 +49,12 @@ export interface NewTemperatureLogAssessment {
   file: ReceivedFile;
   mapping: TemperatureLogMapping;
   settings: TemperatureLogSettings;
+  studyId?: number;
+  latestValue?: number;
 }
+
+/** What is stored as the result: the log's document and, with a study, what the log cost it. */
+export type StoredTemperatureLogResult = TemperatureLogDocument & { impact: StudyImpact | null };
 
 function rangeOf(settings: TemperatureLogSettings) {
   return settings.rangeMinC === undefined && settings.rangeMaxC === undefined
@@ -66,19 +74,30 @@ export async function createTemperatureLogAssessment(
   const sheets = await readSheetsInWorker(file.bytes, format, file.fileName);
   const intake = temperatureLogFromGrid(sheets, input.mapping);
   if (!intake.ok) throw new TemperatureLogRefused(intake.problems.map((problem) => problem.text));
-  let result: TemperatureLogDocument;
+  let result: StoredTemperatureLogResult;
   try {
     const assessment = assessTemperatureLog(
       intake.readings,
       temperatureLogOptions(input.settings, intake.timeUnit),
     );
-    result = temperatureLogDocument(assessment, {
+    const document = temperatureLogDocument(assessment, {
       file: file.fileName,
       sheet: intake.sheet,
       timeUnit: intake.timeUnit,
       startAt: intake.startAt,
       rangeC: rangeOf(input.settings),
     });
+    const impact =
+      input.studyId === undefined
+        ? null
+        : await studyImpact(
+            db,
+            actor.organisationId,
+            input.studyId,
+            { readings: intake.readings, assessment, timeUnit: intake.timeUnit },
+            input.latestValue,
+          );
+    result = { ...document, impact };
   } catch (error) {
     if (error instanceof KineticsError) throw new TemperatureLogRefused([error.message]);
     throw error;
@@ -131,6 +150,13 @@ export async function createTemperatureLogAssessment(
         excursions: result.excursions.length,
         gaps: result.gaps.length,
         settings: input.settings,
+        ...(result.impact
+          ? {
+              studyId: result.impact.source.studyId,
+              analysisRunId: result.impact.source.analysisRunId,
+              latestValue: result.impact.latestValue,
+            }
+          : {}),
         engineVersion: ENGINE_VERSION,
       },
       context,

@@ -5,20 +5,22 @@ import {
   TEMPERATURE_LOG_FIELDS,
   type TemperatureLogField,
 } from '../../../shared/api/temperature-logs.ts';
-import type { TemperatureLogDocument } from '../../../shared/kinetics/temperature/temperature-log-document.ts';
 import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { receiveOneFile } from '../intake/index.ts';
+import { listStudies } from '../studies/index.ts';
 import {
   createTemperatureLogAssessment,
   findTemperatureLogAssessment,
   listTemperatureLogAssessments,
+  type StoredTemperatureLogResult,
+  StudyImpactRefused,
   TemperatureLogRefused,
 } from './temperature-log-assessments.ts';
-import { assessmentView, FORM_DEFAULTS, formView } from './temperature-log-view.ts';
+import { assessmentView, FORM_DEFAULTS, formView, impactView } from './temperature-log-view.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
 
@@ -32,7 +34,8 @@ function postedValues(req: Request): Partial<Record<TemperatureLogField, string>
   return values;
 }
 
-function showForm(
+async function showForm(
+  services: AppServices,
   req: Request,
   res: Parameters<RequestHandler>[1],
   values: Partial<Record<TemperatureLogField, string>>,
@@ -40,11 +43,17 @@ function showForm(
   problems: string[] = [],
   status = 200,
 ) {
+  const studies = await listStudies(services.db, req.user!.organisationId);
   renderPage(
     req,
     res,
     'temperature-log-new',
-    { title: 'Assess a temperature log', ...formView(values, errors), problems, reupload: status !== 200 },
+    {
+      title: 'Assess a temperature log',
+      ...formView(values, errors, studies),
+      problems,
+      reupload: status !== 200,
+    },
     status,
   );
 }
@@ -74,22 +83,42 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
     });
   });
 
-  router.get('/temperature-logs/new', requireRole('analyst'), (req, res) => {
-    showForm(req, res, FORM_DEFAULTS, {});
+  router.get('/temperature-logs/new', requireRole('analyst'), async (req, res) => {
+    await showForm(services, req, res, FORM_DEFAULTS, {});
   });
 
   const refusal: ErrorRequestHandler = (error, req, res, next) => {
+    if (error instanceof StudyImpactRefused) {
+      const values = { ...FORM_DEFAULTS, ...postedValues(req) };
+      return showForm(services, req, res, values, { [error.field]: error.message }, [], 422).catch(next);
+    }
     if (!(error instanceof HttpError) || error.status >= 500) return next(error);
     const problems = error instanceof TemperatureLogRefused ? error.problems : [error.message];
-    showForm(req, res, { ...FORM_DEFAULTS, ...postedValues(req) }, {}, problems, error.status);
+    showForm(
+      services,
+      req,
+      res,
+      { ...FORM_DEFAULTS, ...postedValues(req) },
+      {},
+      problems,
+      error.status,
+    ).catch(next);
   };
 
   const assess: RequestHandler = async (req, res) => {
     const values = postedValues(req);
     const form = readTemperatureLogForm(req.body ?? {});
-    if (!form.ok) return showForm(req, res, values, form.errors, [], 400);
+    if (!form.ok) return showForm(services, req, res, values, form.errors, [], 400);
     if (!req.file || req.file.size === 0) {
-      return showForm(req, res, values, {}, ['Choose the logger file (CSV or XLSX) to assess.'], 400);
+      return showForm(
+        services,
+        req,
+        res,
+        values,
+        {},
+        ['Choose the logger file (CSV or XLSX) to assess.'],
+        400,
+      );
     }
     const fileName = Buffer.from(req.file.originalname, 'latin1').toString('utf8').slice(0, 255) || 'log';
     const created = await createTemperatureLogAssessment(
@@ -100,6 +129,8 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
         file: { fileName, mediaType: req.file.mimetype, bytes: req.file.buffer },
         mapping: form.mapping,
         settings: form.settings,
+        ...(form.studyId === undefined ? {} : { studyId: form.studyId }),
+        ...(form.latestValue === undefined ? {} : { latestValue: form.latestValue }),
       },
       auditContext(req),
     );
@@ -113,7 +144,7 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
   router.get('/temperature-logs/:id', requireRole(...READERS), async (req, res) => {
     const id = recordIdSchema.parse(req.params.id);
     const record = await findTemperatureLogAssessment(services.db, req.user!.organisationId, id);
-    const document = record.result as TemperatureLogDocument;
+    const document = record.result as StoredTemperatureLogResult;
     renderPage(req, res, 'temperature-log', {
       title: record.title,
       saved: req.query.saved === '1',
@@ -129,6 +160,7 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
       },
       figureSvg: record.figureSvg,
       ...assessmentView(document),
+      impact: impactView(document.impact ?? null),
     });
   });
 

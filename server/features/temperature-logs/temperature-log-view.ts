@@ -4,9 +4,12 @@
  * the form's fields with their values, hints and errors.
  */
 import type { TemperatureLogField } from '../../../shared/api/temperature-logs.ts';
+import { formatSignificant } from '../../../shared/figures/significant-figures.ts';
+import type { Estimate } from '../../../shared/kinetics/temperature/excursion-impact.ts';
 import type { TemperatureLogDocument } from '../../../shared/kinetics/temperature/temperature-log-document.ts';
 import { TEMPERATURE_LOG_CAUTION } from '../../../shared/kinetics/temperature/temperature-log-text.ts';
 import { TIME_UNITS } from '../../../shared/kinetics/units.ts';
+import type { StudyImpact } from './study-impact.ts';
 
 const celsius = (value: number) => `${value.toFixed(2)} °C`;
 const figure = (value: number) => String(Number(value.toPrecision(6)));
@@ -149,6 +152,7 @@ export const FORM_DEFAULTS: Partial<Record<TemperatureLogField, string>> = {
 export function formView(
   values: Partial<Record<TemperatureLogField, string>>,
   errors: Partial<Record<string, string>>,
+  studies: readonly { id: number; title: string; product: string; attribute: string; unit: string }[] = [],
 ) {
   const fields = (group: keyof typeof FIELDS) =>
     FIELDS[group].map((spec) => ({
@@ -167,7 +171,73 @@ export function formView(
       { value: 'C', label: '°C', selected: values.temperatureUnit === 'C' },
       { value: 'K', label: 'K', selected: values.temperatureUnit === 'K' },
     ],
+    studies: [
+      { value: '', label: 'None: assess the log only', selected: !values.studyId },
+      ...studies.map((study) => ({
+        value: String(study.id),
+        label: `${study.title} · ${study.product} · ${study.attribute} (${study.unit})`,
+        selected: values.studyId === String(study.id),
+      })),
+    ],
+    latestValue: { value: values.latestValue ?? '', error: errors.latestValue ?? '' },
     errors,
     errorCount: Object.keys(errors).length,
+  };
+}
+
+const estimateText = (estimate: Estimate | null, format: (value: number) => string): string => {
+  if (estimate === null) return 'not predicted';
+  const interval = estimate.interval
+    ? ` (${format(estimate.interval[0])} to ${format(estimate.interval[1])})`
+    : '';
+  return `${format(estimate.estimate)}${interval}`;
+};
+
+/** The study part of the page: what the log cost the product in its own kinetics. */
+export function impactView(impact: StudyImpact | null) {
+  if (impact === null) return null;
+  const unit = impact.timeUnit;
+  const duration = (value: number) => `${formatSignificant(value, 3)} ${unit}`;
+  const inUnit = (value: number) => `${formatSignificant(value, 4)} ${impact.source.unit}`;
+  const confidence = `${Math.round(impact.confidence * 100)} %`;
+  const rows = [
+    { label: 'Storage temperature of the study', value: `${impact.storageTemperatureC} °C` },
+    { label: 'Time the readings cover', value: duration(impact.loggedDuration) },
+    {
+      label: `Equivalent time at ${impact.storageTemperatureC} °C (${confidence} interval)`,
+      value: estimateText(impact.equivalentDuration, duration),
+    },
+    {
+      label: `Difference from the same time at ${impact.storageTemperatureC} °C`,
+      value: `${estimateText(impact.extraDuration, duration)}: ${impact.extraDuration.estimate > 0 ? 'the log cost more than storage at the labelled temperature' : 'the log cost no more than storage at the labelled temperature'}`,
+    },
+    {
+      label: `Predicted change of ${impact.source.attribute} over the log`,
+      value: impact.predictedChangePercent
+        ? `${estimateText(impact.predictedChangePercent, (v) => formatSignificant(v, 3))} % of the value at the start`
+        : estimateText(impact.predictedChange, inUnit),
+    },
+  ];
+  if (impact.margin) {
+    rows.push(
+      {
+        label: `Margin to the limit (${inUnit(impact.limit ?? 0)}) before the log`,
+        value: inUnit(impact.margin.before),
+      },
+      { label: 'Margin left after the log', value: estimateText(impact.margin.after, inUnit) },
+    );
+  }
+  const extrapolated = [
+    impact.extrapolation.belowC === null ? null : `down to ${impact.extrapolation.belowC} °C`,
+    impact.extrapolation.aboveC === null ? null : `up to ${impact.extrapolation.aboveC} °C`,
+  ].filter((text): text is string => text !== null);
+  return {
+    source: impact.source,
+    sourceText: `Arrhenius fit of analysis ${impact.source.analysisRunId} of “${impact.source.studyTitle}” (engine ${impact.source.engineVersion}): Ea ${formatSignificant(impact.source.activationEnergyKJPerMol, 3)} kJ/mol over ${impact.source.fittedRangeC[0]}–${impact.source.fittedRangeC[1]} °C, ${impact.order === null ? 'no order named' : `order ${impact.order}`}.`,
+    rows,
+    extrapolation: extrapolated.length
+      ? `The log reaches temperatures outside the fitted range (${extrapolated.join(', ')}): there the straight Arrhenius line is an assumption the study's data cannot check.`
+      : '',
+    notes: impact.notes,
   };
 }

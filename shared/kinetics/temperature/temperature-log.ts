@@ -90,6 +90,8 @@ export interface TemperatureLogAssessment {
   windows: TemperatureWindow[];
   /** The window with the highest MKT; null without windows (or when the log is shorter than one). */
   warmestWindow: TemperatureWindow | null;
+  /** The time each reading stands for, in reading order (for `excursionImpact`). */
+  coverage: number[];
 }
 
 /** The time one reading stands for: [from, to), around its own time. */
@@ -388,5 +390,6 @@ export function assessTemperatureLog(
     windowStep,
     windows,
     warmestWindow,
+    coverage: weights,
   };
 }
