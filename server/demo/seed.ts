@@ -6,6 +6,7 @@ import { type Database, openDatabase } from '../platform/db/client.ts';
 import { memberships, organisations, users } from '../platform/db/schema/index.ts';
 import { DEMO_ACCOUNTS, DEMO_ORGANISATION } from './demo-accounts.ts';
 import { seedDemoStudy } from './demo-study.ts';
+import { seedDemoTemperatureLog } from './demo-temperature-log.ts';
 
 /**
  * Seeds the demo organisation once. When the organisation already exists nothing is touched, so
@@ -17,7 +18,7 @@ export async function seedDemo(db: Database): Promise<'seeded' | 'already-presen
   });
   if (existing) return 'already-present';
   const hashes = await Promise.all(DEMO_ACCOUNTS.map((account) => hashPassword(account.password)));
-  await db.transaction(async (tx) => {
+  const seeded = await db.transaction(async (tx) => {
     const [organisation] = await tx
       .insert(organisations)
       .values({ ...DEMO_ORGANISATION })
@@ -44,8 +45,24 @@ export async function seedDemo(db: Database): Promise<'seeded' | 'already-presen
         accounts: DEMO_ACCOUNTS.map((account) => ({ email: account.email, roles: account.roles })),
       },
     });
-    await seedDemoStudy(tx, { organisationId: organisation!.id });
+    const study = await seedDemoStudy(tx, { organisationId: organisation!.id });
+    return { organisation: organisation!, studyId: study.studyId };
   });
+  // After the study's transaction: the assessment reads the study's committed analysis.
+  const analystAccount = DEMO_ACCOUNTS.find((account) => account.roles.includes('analyst'))!;
+  const [analyst] = await db.select().from(users).where(eq(users.email, analystAccount.email));
+  await seedDemoTemperatureLog(
+    db,
+    {
+      id: analyst!.id,
+      email: analyst!.email,
+      fullName: analyst!.fullName,
+      organisationId: seeded.organisation.id,
+      organisationName: seeded.organisation.name,
+      roles: analystAccount.roles,
+    },
+    seeded.studyId,
+  );
   return 'seeded';
 }
 

@@ -68,10 +68,12 @@ export async function createTemperatureLogAssessment(
   actor: SessionUser,
   input: NewTemperatureLogAssessment,
   context: AuditContext,
+  /** How the file's sheets are read: in the parse worker by default (the demo seed reads in place). */
+  readSheets: typeof readSheetsInWorker = readSheetsInWorker,
 ): Promise<{ id: number }> {
   const { file } = input;
   const format = detectFormat(file.bytes, file.fileName);
-  const sheets = await readSheetsInWorker(file.bytes, format, file.fileName);
+  const sheets = await readSheets(file.bytes, format, file.fileName);
   const intake = temperatureLogFromGrid(sheets, input.mapping);
   if (!intake.ok) throw new TemperatureLogRefused(intake.problems.map((problem) => problem.text));
   let result: StoredTemperatureLogResult;
