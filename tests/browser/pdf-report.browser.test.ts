@@ -3,15 +3,23 @@ import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSyn
 import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DEMO_MAPPING, demoWorkbook } from '../../server/demo/demo-study.ts';
+import { readWorkbook } from '../../server/features/intake/index.ts';
 import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
 import { reportFixture } from '../../server/features/reports/render/render-fixture.ts';
-import { renderReportPdf } from '../../server/features/reports/render/render-report.ts';
+import { renderReportPdf, reportFigures } from '../../server/features/reports/render/render-report.ts';
 import {
+  buildReportContext,
   REPORT_CAUTION,
   SIGNATURES_PLACEHOLDER,
 } from '../../server/features/reports/render/report-context.ts';
 import { loadDefaultTemplate } from '../../server/features/reports/render/template-default.ts';
+import { analysisFigures } from '../../shared/figures/analysis-figures.ts';
 import { formatSignificant } from '../../shared/figures/significant-figures.ts';
+import { confidenceBands } from '../../shared/figures/stored-result.ts';
+import { columnMappingSchema } from '../../shared/intake/column-mapping.ts';
+import { seriesFromGrid } from '../../shared/intake/series-from-grid.ts';
+import { analyseDataset, type DatasetOptions } from '../../shared/kinetics/analyse-dataset.ts';
 import { SCREENSHOT_DIR } from '../support/browser.ts';
 
 /**
@@ -21,9 +29,59 @@ import { SCREENSHOT_DIR } from '../support/browser.ts';
  */
 
 const fixture = reportFixture();
+
+/**
+ * The demo study's report (the invented Quillatrine data of the demo seed: three batches at 25, 40,
+ * 50 and 60 °C, first order fixed), built as the render pipeline builds it: a longer report whose
+ * tables fall across pages, for the page-foot check.
+ */
+async function demoReport(): Promise<{
+  context: ReturnType<typeof buildReportContext>;
+  figures: typeof fixture.figures;
+}> {
+  const intake = seriesFromGrid(
+    await readWorkbook(await demoWorkbook()),
+    columnMappingSchema.parse(DEMO_MAPPING),
+  );
+  if (!intake.ok) throw new Error('the demo workbook did not read');
+  const options: DatasetOptions = {
+    confidenceLevel: 0.95,
+    order: 1,
+    lowerLimit: 95,
+    upperLimit: 105,
+    storageTemperatureC: 25,
+    direction: 'decreasing',
+    q1e: {
+      storage: 'room-temperature',
+      longTermTemperatureC: 25,
+      acceleratedTemperatureC: 40,
+      acceleratedChange: 'significant',
+      littleChange: 'no',
+      supportingData: 'yes',
+    },
+  };
+  const analysis = analyseDataset(intake.series, options);
+  const stored = { analysis, confidenceBands: confidenceBands(analysis, intake.series, options) };
+  const figures = reportFigures(analysisFigures(stored, intake.series, { lower: 95, upper: 105 }));
+  const context = buildReportContext({
+    ...fixture.input,
+    study: {
+      ...fixture.input.study,
+      product: 'Quillatrine 40 mg film-coated tablets',
+      lowerLimit: 95,
+      upperLimit: 105,
+    },
+    analysisRun: { ...fixture.input.analysisRun, result: stored, series: intake.series },
+    figures,
+  });
+  return { context, figures };
+}
 const pool = new BrowserPool({ size: 1 });
 const folder = mkdtempSync(path.join(os.tmpdir(), 'rateledger-pdf-test-'));
-const printed: Record<'A4' | 'Letter', { file: string; pageCount: number; blocked: number }> = {} as never;
+const printed: Record<
+  'A4' | 'Letter' | 'demo',
+  { file: string; pageCount: number; blocked: number; html: string }
+> = {} as never;
 
 const poppler = (tool: string, ...args: string[]) => execFileSync(tool, args, { encoding: 'utf8' });
 const flat = (text: string) => text.replace(/\s+/g, ' ');
@@ -46,8 +104,18 @@ beforeAll(async () => {
     });
     const file = path.join(folder, `report-${paper}.pdf`);
     writeFileSync(file, result.pdf);
-    printed[paper] = { file, pageCount: result.pageCount, blocked: result.requests.blocked };
+    printed[paper] = {
+      file,
+      pageCount: result.pageCount,
+      blocked: result.requests.blocked,
+      html: result.html,
+    };
   }
+  const demo = await demoReport();
+  const demoResult = await renderReportPdf(pool, { template: loadDefaultTemplate(), ...demo, paper: 'A4' });
+  const demoFile = path.join(folder, 'report-demo.pdf');
+  writeFileSync(demoFile, demoResult.pdf);
+  printed.demo = { file: demoFile, pageCount: demoResult.pageCount, blocked: 0, html: demoResult.html };
   mkdirSync(SCREENSHOT_DIR, { recursive: true });
   for (const old of readdirSync(SCREENSHOT_DIR).filter((name) => name.startsWith('report-a4-')))
     rmSync(path.join(SCREENSHOT_DIR, old));
@@ -150,6 +218,90 @@ describe('the default report as a PDF', () => {
       expect(text).toContain('Report RL-2026-0007 · version 1');
       expect(text).toContain(`Page ${page} of ${pages}`);
     }
+  });
+
+  it('never leaves a heading or a table caption alone at the foot of a page (pdftotext per page)', () => {
+    // Common practice in report typesetting: a heading or caption belongs with what follows it.
+    const decode = (text: string) =>
+      text
+        .replace(/<[^>]+>/g, '')
+        .replace(/&amp;/g, '&')
+        .replace(/&lt;/g, '<')
+        .replace(/&gt;/g, '>')
+        .replace(/&quot;/g, '"')
+        .replace(/&#x27;/g, "'")
+        .replace(/\s+/g, ' ')
+        .trim();
+    for (const paper of ['A4', 'Letter', 'demo'] as const) {
+      const { html, file, pageCount } = printed[paper];
+      const leads = [...html.matchAll(/<(h[1-4]|caption)\b[^>]*>([\s\S]*?)<\/\1>/g)]
+        .map((match) => decode(match[2] ?? ''))
+        .filter((text) => text.length > 0);
+      expect(leads.length).toBeGreaterThan(5);
+      const alone: string[] = [];
+      for (let page = 1; page <= pageCount; page += 1) {
+        const lines = poppler('pdftotext', '-f', String(page), '-l', String(page), file, '-')
+          .split('\n')
+          .map((line) => line.replace(/\s+/g, ' ').trim())
+          .filter(
+            (line) =>
+              line !== '' &&
+              !/^Page \d+ of \d+$/.test(line) &&
+              !line.startsWith('Report RL-') &&
+              !/^RL-\d{4}-\d+ v\d+$/.test(line),
+          );
+        const last = lines.at(-1) ?? '';
+        if (
+          page < pageCount &&
+          leads.some((lead) => lead === last || lead.endsWith(last) || last.startsWith(lead))
+        )
+          alone.push(`${paper} page ${page}: "${last}"`);
+      }
+      expect(alone).toEqual([]);
+    }
+  });
+
+  it('keeps a table caption and header with its first row wherever the page ends (the check can fail)', async () => {
+    // Spacer lines push the results tables down the first page one line at a time, so that for
+    // some count the page ends just after a caption or a header row; they must then move to the
+    // next page with the table's first row (common practice in report typesetting).
+    const template = loadDefaultTemplate();
+    // From a count where both tables fit on the first page to one where both have moved on.
+    const [SPACER_FROM, SPACER_TO] = [18, 34];
+    const tables = fixture.context.tables.shelfLife;
+    const firstCell = (table: (typeof tables)[number]) =>
+      String(table.rows[0]?.[table.columns[0]?.key ?? ''] ?? '');
+    const stranded: string[] = [];
+    let split = 0;
+    for (let lines = SPACER_FROM; lines <= SPACER_TO; lines += 1) {
+      const result = await renderReportPdf(pool, {
+        template: {
+          ...template,
+          body: `<!DOCTYPE html><html lang="en"><head><meta charset="utf-8"><title>Page-foot check</title>{{reportStyles}}</head><body>${'<p>Spacer line.</p>'.repeat(lines)}{{#each tables.shelfLife}}{{table this}}{{/each}}</body></html>`,
+        },
+        context: fixture.context,
+        figures: fixture.figures,
+        paper: 'A4',
+      });
+      const file = path.join(folder, `spacer-${lines}.pdf`);
+      writeFileSync(file, result.pdf);
+      for (let page = 1; page <= result.pageCount; page += 1) {
+        const text = poppler('pdftotext', '-f', String(page), '-l', String(page), file, '-')
+          .split('\n')
+          .map((line) => line.replace(/\s+/g, ' ').trim())
+          .filter((line) => line !== '' && !/^Page \d+ of \d+$/.test(line) && !/^(Report )?RL-/.test(line))
+          .join(' ');
+        for (const table of tables) {
+          const at = text.indexOf(table.caption);
+          if (at < 0) continue;
+          if (page < result.pageCount) split += 1;
+          if (!text.slice(at + table.caption.length).includes(firstCell(table)))
+            stranded.push(`${lines} lines, page ${page}: "${table.caption}"`);
+        }
+      }
+    }
+    expect(split).toBeGreaterThan(0);
+    expect(stranded).toEqual([]);
   });
 
   it('needed no request beyond its inlined resources', () => {

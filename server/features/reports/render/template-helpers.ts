@@ -133,6 +133,9 @@ export interface FigureMarkup {
 const escapeText = (hb: Env, value: unknown) =>
   hb.escapeExpression(value === null || value === undefined ? '' : String(value));
 
+/** Tables of at most this many rows never break across pages (they fit on one with room to spare). */
+export const WHOLE_TABLE_ROWS = 15;
+
 function tableMarkup(hb: Env, table: unknown): string {
   if (!table || typeof table !== 'object' || !Array.isArray((table as ReportTable).columns)) {
     throw new TemplateValueError('table: expected a table object with columns and rows.');
@@ -155,7 +158,13 @@ function tableMarkup(hb: Env, table: unknown): string {
           })
           .join('');
   const captionHtml = caption ? `<caption>${escapeText(hb, caption)}</caption>` : '';
-  const tableHtml = `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
+  // A short table is printed whole on one page, in a block that avoids breaking inside: Chromium
+  // honours neither break-after inside a table nor break-inside on the table itself, so a table
+  // breaking near a page foot could leave its caption and header row alone there. A long table
+  // breaks between rows and repeats its header row.
+  const tableElement = `<table class="report-table">${captionHtml}<thead><tr>${head}</tr></thead><tbody>${body}</tbody></table>`;
+  const tableHtml =
+    rows.length <= WHOLE_TABLE_ROWS ? `<div class="report-table-whole">${tableElement}</div>` : tableElement;
   if (!Array.isArray(notes) || notes.length === 0) return tableHtml;
   const items = notes.map((note) => `<li>${escapeText(hb, note)}</li>`).join('');
   return `${tableHtml}<ol class="table-notes" aria-label="Notes to the table">${items}</ol>`;
