@@ -103,7 +103,11 @@ export function meanKineticTemperature(
   });
   const ratio = activationEnergy / gasConstant;
   const exponents = kelvin.map((temperature) => -ratio / temperature);
-  const largest = Math.max(...exponents.filter((_, i) => (durations[i] ?? 0) > 0));
+  // A loop, not Math.max(...): spreading 10⁵ arguments (a long logger file) overflows the stack.
+  let largest = Number.NEGATIVE_INFINITY;
+  for (let i = 0; i < n; i += 1) {
+    if ((durations[i] ?? 0) > 0 && (exponents[i] as number) > largest) largest = exponents[i] as number;
+  }
   const scaledSum = compensatedSum(
     exponents.map((e, i) => ((durations[i] ?? 0) / totalDuration) * Math.exp(e - largest)),
   );

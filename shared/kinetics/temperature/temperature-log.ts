@@ -1,6 +1,7 @@
 import { compensatedSum } from '../numeric/compensated-sum.ts';
 import { KineticsError } from '../numeric/kinetics-error.ts';
 import { KELVIN_AT_ZERO_CELSIUS } from '../units.ts';
+import { meanKineticTemperature } from './mean-kinetic-temperature.ts';
 import {
   USP_MEAN_KINETIC_TEMPERATURE_ACTIVATION_ENERGY,
   USP_MEAN_KINETIC_TEMPERATURE_GAS_CONSTANT,
@@ -99,7 +100,6 @@ interface Coverage {
   from: number;
   to: number;
   temperatureC: number;
-  exponent: number;
 }
 
 function median(values: readonly number[]): number {
@@ -143,26 +143,13 @@ function positiveOption(name: string, value: number | undefined): void {
   }
 }
 
-/**
- * Log-sum of weighted exponentials, Σ wᵢ·exp(eᵢ), as its natural logarithm, formed with the
- * largest exponent taken out first so that no term underflows (as in `meanKineticTemperature`).
- */
-function logWeightedSum(weights: readonly number[], exponents: readonly number[]): number {
-  let largest = Number.NEGATIVE_INFINITY;
-  for (let i = 0; i < exponents.length; i += 1) {
-    if ((weights[i] as number) > 0) largest = Math.max(largest, exponents[i] as number);
-  }
-  const scaled = compensatedSum(
-    exponents.map((exponent, i) => (weights[i] as number) * Math.exp(exponent - largest)),
-  );
-  return largest + Math.log(scaled);
-}
-
-/** MKT in °C of weighted periods: c / (−ln(Σ wᵢ·exp(−c/Tᵢ) / Σ wᵢ)) − 273.15. */
-function weightedMkt(ratio: number, weights: readonly number[], exponents: readonly number[]): number {
-  const total = compensatedSum(weights);
-  const logMean = logWeightedSum(weights, exponents) - Math.log(total);
-  return -ratio / logMean - KELVIN_AT_ZERO_CELSIUS;
+/** MKT in °C of periods with these temperatures and durations (`meanKineticTemperature`). */
+function periodMkt(
+  temperaturesC: readonly number[],
+  durations: readonly number[],
+  activationEnergy: number,
+): number {
+  return meanKineticTemperature(temperaturesC, { durations, activationEnergy }).meanKineticTemperatureC;
 }
 
 /**
@@ -178,7 +165,6 @@ function coverages(
   readings: readonly TemperatureReading[],
   medianInterval: number,
   maxInterval: number,
-  ratio: number,
 ): { cover: Coverage[]; gaps: TemperatureLogGap[] } {
   const gaps: TemperatureLogGap[] = [];
   const half = medianInterval / 2;
@@ -192,8 +178,7 @@ function coverages(
     }
     const from = before === null || before > maxInterval ? reading.time - half : reading.time - before / 2;
     const to = after === null || after > maxInterval ? reading.time + half : reading.time + after / 2;
-    const kelvin = reading.temperatureC + KELVIN_AT_ZERO_CELSIUS;
-    return { from, to, temperatureC: reading.temperatureC, exponent: -ratio / kelvin };
+    return { from, to, temperatureC: reading.temperatureC };
   });
   return { cover, gaps };
 }
@@ -257,13 +242,12 @@ function firstEndingAfter(cover: readonly Coverage[], time: number): number {
 }
 
 function windowOver(
-  ratio: number,
+  activationEnergy: number,
   cover: readonly Coverage[],
   start: number,
   end: number,
 ): TemperatureWindow | null {
   const weights: number[] = [];
-  const exponents: number[] = [];
   const temperatures: number[] = [];
   for (let index = firstEndingAfter(cover, start); index < cover.length; index += 1) {
     const piece = cover[index] as Coverage;
@@ -271,7 +255,6 @@ function windowOver(
     const overlap = Math.min(piece.to, end) - Math.max(piece.from, start);
     if (overlap > 0) {
       weights.push(overlap);
-      exponents.push(piece.exponent);
       temperatures.push(piece.temperatureC);
     }
   }
@@ -281,7 +264,7 @@ function windowOver(
   return {
     start,
     end,
-    mktC: weightedMkt(ratio, weights, exponents),
+    mktC: periodMkt(temperatures, weights, activationEnergy),
     minC: min,
     maxC: max,
     meanC: compensatedSum(temperatures.map((t, i) => t * (weights[i] as number))) / covered,
@@ -298,7 +281,7 @@ function windowOver(
  * USP <1079.2> recommends, and a gap is reported rather than bridged (nothing is known inside it).
  *
  * Formula: with c = ΔH/R and wᵢ the time reading i covers (see `coverages`),
- * MKT = c / (−ln(Σ wᵢ·exp(−c/Tᵢ) / Σ wᵢ)), Tᵢ in kelvin (J. D. Haynes, J. Pharm. Sci. 60 (1971)
+ * MKT = c / (−ln(Σ wᵢ·exp(−c/Tᵢ) / Σ wᵢ)), Tᵢ in kelvin, computed by `meanKineticTemperature` (J. D. Haynes, J. Pharm. Sci. 60 (1971)
  * 927; USP <1160>, ΔH = 83.144 kJ/mol and R = 8.3144 J/(mol·K) by default). A window clips each
  * reading's covered time to the window and uses the same formula. Time outside the range is the
  * covered time of readings outside it; an excursion is a run of such readings on one side, broken
@@ -329,15 +312,13 @@ export function assessTemperatureLog(
       maxC,
     });
   }
-  const ratio = activationEnergy / gasConstant;
   const intervals = readings
     .slice(1)
     .map((reading, i) => reading.time - (readings[i] as TemperatureReading).time);
   const medianInterval = median(intervals);
   const maxInterval = options.maxInterval ?? 2 * medianInterval;
-  const { cover, gaps } = coverages(readings, medianInterval, maxInterval, ratio);
+  const { cover, gaps } = coverages(readings, medianInterval, maxInterval);
   const weights = cover.map((piece) => piece.to - piece.from);
-  const exponents = cover.map((piece) => piece.exponent);
   const coveredDuration = compensatedSum(weights);
   const first = readings[0] as TemperatureReading;
   const last = readings[readings.length - 1] as TemperatureReading;
@@ -360,7 +341,7 @@ export function assessTemperatureLog(
     // The last window ends with the log, so its end is always assessed.
     if (logStart + count * windowStep + windowLength < logEnd) starts.push(logEnd - windowLength);
     for (const start of starts) {
-      const window = windowOver(ratio, cover, start, start + windowLength);
+      const window = windowOver(activationEnergy, cover, start, start + windowLength);
       if (window) windows.push(window);
     }
   }
@@ -376,7 +357,7 @@ export function assessTemperatureLog(
     weighting: equal ? 'equal' : 'by-duration',
     medianInterval,
     maxInterval,
-    mktC: weightedMkt(ratio, equal ? weights.map(() => 1) : weights, exponents),
+    mktC: periodMkt(temperatures, equal ? weights.map(() => 1) : weights, activationEnergy),
     minC: lowestC,
     maxC: highestC,
     meanC: compensatedSum(temperatures.map((t, i) => t * (weights[i] as number))) / coveredDuration,
