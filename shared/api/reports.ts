@@ -24,10 +24,17 @@ const titleSchema = z
   .max(MAX_REPORT_TITLE_LENGTH, `Keep the title under ${MAX_REPORT_TITLE_LENGTH} characters.`);
 
 /** POST /api/analyses/:runId/reports (JSON) and POST /analyses/:runId/reports (the page form). */
+/** Temperature-log assessments printed in the version as excursion assessments, in this order. */
+const temperatureLogIdsSchema = z
+  .array(z.coerce.number().int().positive())
+  .max(10, 'At most 10 temperature-log assessments can be attached to one report version.')
+  .refine((ids) => new Set(ids).size === ids.length, 'Each assessment can be attached once.');
+
 export const createReportRequestSchema = z.object({
   /** Blank or missing: "<study title> — kinetics report". */
   title: titleSchema.optional(),
   paperSize: paperSizeSchema.default('a4'),
+  temperatureLogIds: temperatureLogIdsSchema.default([]),
 });
 export type CreateReportRequest = z.input<typeof createReportRequestSchema>;
 
@@ -36,6 +43,8 @@ export const createReportVersionRequestSchema = z.object({
   paperSize: paperSizeSchema.optional(),
   /** A later run of the same study (after an exclusion, say); default: the latest version's run. */
   analysisRunId: z.coerce.number().int().positive().optional(),
+  /** Default: the latest version's attachments. */
+  temperatureLogIds: temperatureLogIdsSchema.optional(),
 });
 export type CreateReportVersionRequest = z.input<typeof createReportVersionRequestSchema>;
 

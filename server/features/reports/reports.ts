@@ -1,4 +1,4 @@
-import { and, eq, max, sql } from 'drizzle-orm';
+import { and, eq, inArray, max, sql } from 'drizzle-orm';
 import type {
   CreateReportRequest,
   CreateReportVersionRequest,
@@ -18,6 +18,8 @@ import {
   organisations,
   reports,
   reportVersions,
+  reportVersionTemperatureLogs,
+  temperatureLogAssessments,
 } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { getAnalysisRun } from '../analysis/index.ts';
@@ -144,6 +146,7 @@ export async function createReport(
       versionNumber: 1,
       analysisRunId: run.id,
       paperSize: input.paperSize,
+      temperatureLogIds: input.temperatureLogIds,
       context,
     });
     return { reportId: report!.id, reportNumber, ...version };
@@ -194,10 +197,50 @@ export async function createReportVersion(
       versionNumber: (last?.number ?? 0) + 1,
       analysisRunId: run.id,
       paperSize: input.paperSize ?? latest?.paperSize ?? 'a4',
+      temperatureLogIds:
+        input.temperatureLogIds ?? (latest ? await attachedTemperatureLogIds(tx, latest.id) : []),
       context,
     });
     return { reportId: report.id, reportNumber: report.reportNumber, ...version };
   });
+}
+
+/** The assessments attached to a version, in their order. */
+async function attachedTemperatureLogIds(tx: Executor, versionId: number): Promise<number[]> {
+  const rows = await tx
+    .select({ id: reportVersionTemperatureLogs.assessmentId })
+    .from(reportVersionTemperatureLogs)
+    .where(eq(reportVersionTemperatureLogs.reportVersionId, versionId))
+    .orderBy(reportVersionTemperatureLogs.position);
+  return rows.map((row) => row.id);
+}
+
+/** The ids, checked to be the organisation's assessments (404 for any other, as for a missing one). */
+async function ownTemperatureLogs(
+  tx: Executor,
+  organisationId: number,
+  ids: readonly number[],
+): Promise<number[]> {
+  if (ids.length === 0) return [];
+  const found = await tx
+    .select({ id: temperatureLogAssessments.id })
+    .from(temperatureLogAssessments)
+    .where(
+      and(
+        eq(temperatureLogAssessments.organisationId, organisationId),
+        inArray(temperatureLogAssessments.id, [...ids]),
+      ),
+    );
+  const known = new Set(found.map((row) => row.id));
+  const missing = ids.filter((id) => !known.has(id));
+  if (missing.length > 0) {
+    throw new HttpError(
+      404,
+      `There is no temperature-log assessment ${missing.join(', ')} in your organisation.`,
+      [{ field: 'temperatureLogIds', message: 'Choose assessments of your organisation.' }],
+    );
+  }
+  return [...ids];
 }
 
 async function insertVersion(
@@ -205,9 +248,16 @@ async function insertVersion(
   queue: RenderQueue,
   actor: SessionUser,
   report: typeof reports.$inferSelect,
-  input: { versionNumber: number; analysisRunId: number; paperSize: PaperSize; context: AuditContext },
+  input: {
+    versionNumber: number;
+    analysisRunId: number;
+    paperSize: PaperSize;
+    temperatureLogIds: readonly number[];
+    context: AuditContext;
+  },
 ) {
   const template = await templateVersionForNewReports(tx, actor.organisationId);
+  const attached = await ownTemperatureLogs(tx, actor.organisationId, input.temperatureLogIds);
   const [version] = await tx
     .insert(reportVersions)
     .values({
@@ -219,6 +269,15 @@ async function insertVersion(
       requestedBy: actor.id,
     })
     .returning();
+  if (attached.length > 0) {
+    await tx.insert(reportVersionTemperatureLogs).values(
+      attached.map((assessmentId, index) => ({
+        reportVersionId: version!.id,
+        assessmentId,
+        position: index + 1,
+      })),
+    );
+  }
   const jobId = await queue.enqueue(tx, { reportVersionId: version!.id });
   await tx.update(reportVersions).set({ jobId }).where(eq(reportVersions.id, version!.id));
   await appendAuditEvent(tx, {
@@ -236,6 +295,7 @@ async function insertVersion(
       templateVersionId: template.id,
       templateSha256: template.sha256,
       paperSize: input.paperSize,
+      temperatureLogAssessmentIds: attached,
       renderStatus: 'queued',
       jobId,
     },

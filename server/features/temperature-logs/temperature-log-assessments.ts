@@ -26,7 +26,13 @@ import type { AuditContext } from '../../platform/audit/audit-context.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database, Executor } from '../../platform/db/client.ts';
-import { temperatureLogAssessments, users } from '../../platform/db/schema/index.ts';
+import {
+  reports,
+  reportVersions,
+  reportVersionTemperatureLogs,
+  temperatureLogAssessments,
+  users,
+} from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { detectFormat, type ReceivedFile, readSheetsInWorker, sha256Hex } from '../intake/index.ts';
 import { renderSvg } from '../reports/index.ts';
@@ -214,4 +220,52 @@ export async function findTemperatureLogAssessment(
     );
   if (!row) throw new HttpError(404, 'There is no temperature-log assessment with this number.');
   return { ...row.assessment, createdByName: row.createdByName };
+}
+
+/** The report versions an assessment is attached to, newest first. */
+export async function reportsOfAssessment(db: Executor, organisationId: number, assessmentId: number) {
+  return db
+    .select({
+      reportId: reports.id,
+      reportNumber: reports.reportNumber,
+      title: reports.title,
+      versionNumber: reportVersions.versionNumber,
+    })
+    .from(reportVersionTemperatureLogs)
+    .innerJoin(reportVersions, eq(reportVersions.id, reportVersionTemperatureLogs.reportVersionId))
+    .innerJoin(reports, eq(reports.id, reportVersions.reportId))
+    .where(
+      and(
+        eq(reportVersionTemperatureLogs.assessmentId, assessmentId),
+        eq(reports.organisationId, organisationId),
+      ),
+    )
+    .orderBy(desc(reportVersions.id));
+}
+
+/** Reports an assessment can be attached to (the organisation's, newest first). */
+export async function attachableReports(db: Executor, organisationId: number) {
+  return db
+    .select({ id: reports.id, reportNumber: reports.reportNumber, title: reports.title })
+    .from(reports)
+    .where(eq(reports.organisationId, organisationId))
+    .orderBy(desc(reports.id))
+    .limit(200);
+}
+
+/** The assessments attached to a report's latest version, in their order. */
+export async function latestAttachments(db: Executor, reportId: number): Promise<number[]> {
+  const [latest] = await db
+    .select({ id: reportVersions.id })
+    .from(reportVersions)
+    .where(eq(reportVersions.reportId, reportId))
+    .orderBy(desc(reportVersions.versionNumber))
+    .limit(1);
+  if (!latest) return [];
+  const rows = await db
+    .select({ id: reportVersionTemperatureLogs.assessmentId })
+    .from(reportVersionTemperatureLogs)
+    .where(eq(reportVersionTemperatureLogs.reportVersionId, latest.id))
+    .orderBy(reportVersionTemperatureLogs.position);
+  return rows.map((row) => row.id);
 }

@@ -1,4 +1,5 @@
 import { type ErrorRequestHandler, type Request, type RequestHandler, Router } from 'express';
+import { z } from 'zod';
 import { recordIdSchema } from '../../../shared/api/studies.ts';
 import {
   readTemperatureLogForm,
@@ -11,11 +12,15 @@ import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { receiveOneFile } from '../intake/index.ts';
+import { createReportVersion, openRenderQueue } from '../reports/index.ts';
 import { listStudies } from '../studies/index.ts';
 import {
+  attachableReports,
   createTemperatureLogAssessment,
   findTemperatureLogAssessment,
+  latestAttachments,
   listTemperatureLogAssessments,
+  reportsOfAssessment,
   type StoredTemperatureLogResult,
   StudyImpactRefused,
   TemperatureLogRefused,
@@ -23,6 +28,14 @@ import {
 import { assessmentView, FORM_DEFAULTS, formView, impactView } from './temperature-log-view.ts';
 
 const READERS = ['analyst', 'reviewer', 'admin'] as const;
+
+/** POST /temperature-logs/:id/attach: the report whose next version prints the assessment. */
+const attachRequestSchema = z.object({
+  reportId: z.coerce
+    .number({ error: 'Choose a report from the list.' })
+    .int()
+    .positive('Choose a report from the list.'),
+});
 
 function postedValues(req: Request): Partial<Record<TemperatureLogField, string>> {
   const body = (req.body ?? {}) as Record<string, unknown>;
@@ -145,6 +158,9 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
     const id = recordIdSchema.parse(req.params.id);
     const record = await findTemperatureLogAssessment(services.db, req.user!.organisationId, id);
     const document = record.result as StoredTemperatureLogResult;
+    const attachedTo = await reportsOfAssessment(services.db, req.user!.organisationId, id);
+    const canAttach = req.user!.roles.includes('analyst');
+    const reportChoices = canAttach ? await attachableReports(services.db, req.user!.organisationId) : [];
     renderPage(req, res, 'temperature-log', {
       title: record.title,
       saved: req.query.saved === '1',
@@ -161,7 +177,28 @@ export function temperatureLogRoutes(services: AppServices, protect: RequestHand
       figureSvg: record.figureSvg,
       ...assessmentView(document),
       impact: impactView(document.impact ?? null),
+      attachedTo,
+      canAttach,
+      reportChoices,
     });
+  });
+
+  // A plain form (not multipart): the body is already read, so the CSRF check runs at once.
+  const queue = openRenderQueue({ config: services.renderConfig, pool: services.pool, supervise: false });
+  router.post('/temperature-logs/:id/attach', requireRole('analyst'), protect, async (req, res) => {
+    const id = recordIdSchema.parse(req.params.id);
+    await findTemperatureLogAssessment(services.db, req.user!.organisationId, id);
+    const { reportId } = attachRequestSchema.parse(req.body ?? {});
+    const attached = await latestAttachments(services.db, reportId);
+    const created = await createReportVersion(
+      services.db,
+      queue,
+      req.user!,
+      reportId,
+      { temperatureLogIds: attached.includes(id) ? attached : [...attached, id] },
+      auditContext(req),
+    );
+    res.redirect(303, `/app/reports/${created.reportId}?version=${created.versionNumber}`);
   });
 
   router.get('/temperature-logs/:id/original', requireRole(...READERS), async (req, res) => {

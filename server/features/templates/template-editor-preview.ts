@@ -96,6 +96,8 @@ async function runSample(db: Executor, user: SessionUser, runId: number): Promis
   const person = { id: user.id, fullName: user.fullName };
   try {
     const { context, figures } = reportInput({
+      // The preview shows the analysis part; attached temperature logs print with real versions.
+      temperatureLogs: [],
       organisation: { id: organisation.id, name: organisation.name, timeZone: organisation.timeZone },
       report: {
         id: 0,

@@ -1,8 +1,9 @@
 import { analysisFigures } from '../../../../shared/figures/analysis-figures.ts';
 import { FigureRenderError } from '../figures/render-svg.ts';
 import { BrowserPool } from '../pdf/browser-pool.ts';
-import { renderReportPdf, reportFigures } from '../render/render-report.ts';
+import { type RenderReportInput, renderReportPdf, reportFigures } from '../render/render-report.ts';
 import { buildReportContext, type ReportContext } from '../render/report-context.ts';
+import { reportTemperatureLogs } from '../render/report-temperature-logs.ts';
 import { TemplateError } from '../render/template-engine.ts';
 import {
   type RenderedReport,
@@ -63,7 +64,7 @@ export function createRenderPipeline(options: { browsers?: number } = {}): Repor
 /** The context and figures of one report version, from its records. */
 export function reportInput(request: RenderRequest): {
   context: ReportContext;
-  figures: ReturnType<typeof analysisFigures>;
+  figures: RenderReportInput['figures'];
 } {
   const { run } = request;
   const limits = {
@@ -71,8 +72,10 @@ export function reportInput(request: RenderRequest): {
     ...(run.study.upperLimit === null ? {} : { upper: run.study.upperLimit }),
   };
   try {
-    const figures = reportFigures(analysisFigures(run.result, run.series, limits));
+    const logs = reportTemperatureLogs(request.temperatureLogs ?? []);
+    const figures = [...reportFigures(analysisFigures(run.result, run.series, limits)), ...logs.figures];
     const context = buildReportContext({
+      temperatureLogs: logs.entries,
       organisation: { name: request.organisation.name, timeZone: request.organisation.timeZone },
       study: run.study,
       analysisRun: {

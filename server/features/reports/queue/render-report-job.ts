@@ -6,10 +6,13 @@ import {
   reports,
   reportTemplateVersions,
   reportVersions,
+  reportVersionTemperatureLogs,
+  temperatureLogAssessments,
   users,
 } from '../../../platform/db/schema/index.ts';
 import { type ReportStorage, sha256Hex } from '../../../platform/storage/report-storage.ts';
 import { getAnalysisRun } from '../../analysis/index.ts';
+import type { AttachedTemperatureLog } from '../render/report-temperature-logs.ts';
 import { versionSource } from '../report-templates.ts';
 import { RenderFailure, type RenderRequest, type ReportRenderer } from './report-renderer.ts';
 
@@ -248,7 +251,28 @@ export async function loadRenderRequest(tx: Executor, versionId: number): Promis
       },
     );
   }
+  const attached = await tx
+    .select({ assessment: temperatureLogAssessments, createdByName: users.fullName })
+    .from(reportVersionTemperatureLogs)
+    .innerJoin(
+      temperatureLogAssessments,
+      eq(temperatureLogAssessments.id, reportVersionTemperatureLogs.assessmentId),
+    )
+    .innerJoin(users, eq(users.id, temperatureLogAssessments.createdBy))
+    .where(eq(reportVersionTemperatureLogs.reportVersionId, versionId))
+    .orderBy(reportVersionTemperatureLogs.position);
   return {
+    temperatureLogs: attached.map(({ assessment, createdByName }) => ({
+      id: assessment.id,
+      title: assessment.title,
+      fileName: assessment.fileName,
+      sha256: assessment.sha256,
+      createdAt: assessment.createdAt,
+      createdByName,
+      engineVersion: assessment.engineVersion,
+      result: assessment.result as AttachedTemperatureLog['result'],
+      figureSvg: assessment.figureSvg,
+    })),
     organisation: {
       id: row.organisation.id,
       name: row.organisation.name,

@@ -1,5 +1,6 @@
 import type { PaperSize } from '../../../../shared/api/reports.ts';
 import type { AnalysisRunRecord } from '../../analysis/index.ts';
+import type { AttachedTemperatureLog } from '../render/report-temperature-logs.ts';
 import type { ReportTemplateSource } from '../render/template-engine.ts';
 
 /**
@@ -26,6 +27,8 @@ export interface RenderRequest {
   };
   run: AnalysisRunRecord;
   template: { versionId: number; versionNumber: number; sha256: string; source: ReportTemplateSource };
+  /** Temperature-log assessments attached to the version, in their order. */
+  temperatureLogs: AttachedTemperatureLog[];
 }
 
 export interface RenderedReport {

@@ -33,7 +33,11 @@ export interface RenderReportInput {
   template: ReportTemplateSource;
   /** Built by `buildReportContext` with the same `figures` (their ids, titles and numbers). */
   context: ReportContext;
-  figures: readonly Pick<FigureSpec, 'id' | 'title' | 'description' | 'spec'>[];
+  /** Figures drawn here from their spec, or drawn before and stored (`svg`), in reading order. */
+  figures: readonly (
+    | Pick<FigureSpec, 'id' | 'title' | 'description' | 'spec'>
+    | { id: string; title: string; description: string; svg: string }
+  )[];
   paper: PdfPaper;
 }
 
@@ -61,11 +65,17 @@ export async function renderFigureMarkup(
   let number = 0;
   for (const figure of figures) {
     number += 1;
-    const svg = await renderSvg(figure.spec as unknown as TopLevelSpec, {
-      idPrefix: `figure-${number}`,
-      title: figure.title,
-      description: figure.description,
-    });
+    const idPrefix = `figure-${number}`;
+    // A stored figure keeps its drawing; only its ids are renamed, so that two figures in one
+    // document never share an id (renderSvg prefixed them when it drew the figure).
+    const svg =
+      'svg' in figure
+        ? figure.svg.replace(/(id="|url\(#|href="#)[A-Za-z][A-Za-z0-9_]*-/g, `$1${idPrefix}-`)
+        : await renderSvg(figure.spec as unknown as TopLevelSpec, {
+            idPrefix,
+            title: figure.title,
+            description: figure.description,
+          });
     markup.set(figure.id, { number, title: figure.title, description: figure.description, svg });
   }
   return markup;

@@ -131,6 +131,11 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
     description: "Each series' data and fitted curves.",
   },
   {
+    path: 'temperatureLogs[]',
+    description:
+      'Temperature-log assessments attached to this version (excursion assessments), in order; empty when none. Each: number, id, title, fileName, sha256, assessedAt, assessedBy, engineVersion, figureId (print with {{figure figureId}}: the figure as drawn when the log was assessed), summary, excursions and gaps (tables: {{table summary}}), impact (a table, or null when no study priced the log), impactNotes[], method.',
+  },
+  {
     path: 'dataTables[]',
     description: 'Measured data per series with exclusions and reasons; print each with {{table this}}.',
   },

@@ -11,6 +11,7 @@ import {
   sharedStatementTable,
 } from './report-context-tables.ts';
 import { reportFigurePart } from './report-figure-parts.ts';
+import type { ReportTemperatureLog } from './report-temperature-logs.ts';
 import { isoDay, significant } from './template-format.ts';
 import type { ReportTable } from './template-helpers.ts';
 
@@ -69,6 +70,8 @@ export interface ReportContextInput {
   /** The analysis screen's figures (same specs); their SVG is rendered separately. */
   figures: readonly Pick<AnalysisFigure, 'id' | 'title' | 'description'>[];
   report: { number: string; version: number; author: string; createdAt: Date; title?: string };
+  /** Temperature-log assessments attached to the version (`report-temperature-logs.ts`). */
+  temperatureLogs?: readonly ReportTemperatureLog[];
   /** IANA time zone for dates; the organisation's when omitted. */
   timeZone?: string;
 }
@@ -350,6 +353,7 @@ export function buildReportContext(input: ReportContextInput) {
       paragraphs: statement.text.split(/\n{2,}/).filter((paragraph) => paragraph.trim() !== ''),
       references: statement.references,
     },
+    temperatureLogs: [...(input.temperatureLogs ?? [])],
     caution: REPORT_CAUTION,
     signatures: {
       placeholder: SIGNATURES_PLACEHOLDER,

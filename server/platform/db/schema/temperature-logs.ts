@@ -1,6 +1,16 @@
-import { customType, doublePrecision, integer, jsonb, pgTable, serial, text } from 'drizzle-orm/pg-core';
+import {
+  customType,
+  doublePrecision,
+  integer,
+  jsonb,
+  pgTable,
+  serial,
+  text,
+  unique,
+} from 'drizzle-orm/pg-core';
 import { createdAt } from './columns.ts';
 import { organisations } from './organisations.ts';
+import { reportVersions } from './reports.ts';
 import { users } from './users.ts';
 
 const bytea = customType<{ data: Buffer; driverData: Buffer }>({ dataType: () => 'bytea' });
@@ -46,3 +56,24 @@ export const temperatureLogAssessments = pgTable('temperature_log_assessments', 
     .references(() => users.id),
   createdAt: createdAt(),
 });
+
+/**
+ * A temperature-log assessment attached to a report version: printed in that version as an
+ * excursion assessment, so it goes through the same review and signature as the rest of the
+ * report. Write-once like the version it belongs to; a later version lists its own attachments.
+ */
+export const reportVersionTemperatureLogs = pgTable(
+  'report_version_temperature_logs',
+  {
+    id: serial('id').primaryKey(),
+    reportVersionId: integer('report_version_id')
+      .notNull()
+      .references(() => reportVersions.id),
+    assessmentId: integer('assessment_id')
+      .notNull()
+      .references(() => temperatureLogAssessments.id),
+    /** Order of the assessments in the report, from 1. */
+    position: integer('position').notNull(),
+  },
+  (table) => [unique('report_version_temperature_logs_once').on(table.reportVersionId, table.assessmentId)],
+);
