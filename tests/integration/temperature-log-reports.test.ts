@@ -107,6 +107,15 @@ describe('temperature-log assessments in reports', () => {
       '';
     expect(printed.replace(/(id="|url\(#|href="#)figure-\d+-/g, '$1')).toBe(stored);
 
+    // Numbered in reading order: after temperature dependence, before Appendix A's series figures.
+    const numberOf = (id: RegExp) =>
+      [...html.matchAll(/<figure class="report-figure" id="figure-([^"]+)">[\s\S]*?Figure (\d+)\./g)]
+        .filter((match) => id.test(match[1] ?? ''))
+        .map((match) => Number(match[2]));
+    const [logNumber] = numberOf(/^temperature-log-/);
+    expect(numberOf(/^arrhenius$/)[0]).toBeLessThan(logNumber!);
+    expect(Math.min(...numberOf(/^series-/))).toBeGreaterThan(logNumber!);
+
     // Version 1 stays as it was, without the assessment.
     const [first] = await world.database.db
       .select()

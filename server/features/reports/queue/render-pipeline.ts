@@ -3,6 +3,7 @@ import { FigureRenderError } from '../figures/render-svg.ts';
 import { BrowserPool } from '../pdf/browser-pool.ts';
 import { type RenderReportInput, renderReportPdf, reportFigures } from '../render/render-report.ts';
 import { buildReportContext, type ReportContext } from '../render/report-context.ts';
+import { reportFigurePart } from '../render/report-figure-parts.ts';
 import { reportTemperatureLogs } from '../render/report-temperature-logs.ts';
 import { TemplateError } from '../render/template-engine.ts';
 import {
@@ -73,7 +74,15 @@ export function reportInput(request: RenderRequest): {
   };
   try {
     const logs = reportTemperatureLogs(request.temperatureLogs ?? []);
-    const figures = [...reportFigures(analysisFigures(run.result, run.series, limits)), ...logs.figures];
+    // Numbered in reading order: the excursion section comes after temperature dependence and
+    // before Appendix A's per-series figures.
+    const analysis = reportFigures(analysisFigures(run.result, run.series, limits));
+    const inAppendix = analysis.filter((figure) => reportFigurePart(figure.id) === 'series');
+    const figures = [
+      ...analysis.filter((figure) => reportFigurePart(figure.id) !== 'series'),
+      ...logs.figures,
+      ...inAppendix,
+    ];
     const context = buildReportContext({
       temperatureLogs: logs.entries,
       organisation: { name: request.organisation.name, timeZone: request.organisation.timeZone },
