@@ -1,4 +1,6 @@
 import './styles.css';
 import { mountIslands } from './islands/mount-islands.tsx';
+import { focusFieldsFromErrorSummaries } from './lib/error-summary-links.ts';
 
 mountIslands(document);
+focusFieldsFromErrorSummaries(document);

@@ -4,17 +4,24 @@ import { ErrorBoundary } from '../components/error-boundary.tsx';
 import { ActivityList } from '../features/activity/components/activity-list.tsx';
 import { ReportDetail } from '../features/reports/components/report-detail.tsx';
 import { ReportHistory } from '../features/reports/components/report-history.tsx';
+import { useDocumentTitle } from '../lib/document-title.ts';
 
 /**
  * The routes of the section; each is shown in its own error boundary, so a page that fails names
  * itself in the fallback while the navigation keeps working. Later features add their routes here.
  */
-const ROUTES: { path: string; what: string; page: ReactNode }[] = [
-  { path: '/', what: 'Your activity', page: <ActivityPage /> },
-  { path: '/activity', what: 'Your activity', page: <ActivityPage /> },
-  { path: '/reports', what: 'The reports', page: <ReportHistory /> },
-  { path: '/reports/:reportId', what: 'The report', page: <ReportDetail /> },
-  { path: '*', what: 'This page', page: <p>There is no page here. Choose one on the left.</p> },
+const ROUTES: { path: string; what: string; title: string | null; page: ReactNode }[] = [
+  { path: '/', what: 'Your activity', title: 'My activity', page: <ActivityPage /> },
+  { path: '/activity', what: 'Your activity', title: 'My activity', page: <ActivityPage /> },
+  { path: '/reports', what: 'The reports', title: 'Reports', page: <ReportHistory /> },
+  // The report page names itself after the report it shows.
+  { path: '/reports/:reportId', what: 'The report', title: null, page: <ReportDetail /> },
+  {
+    path: '*',
+    what: 'This page',
+    title: 'No such page',
+    page: <p>There is no page here. Choose one on the left.</p>,
+  },
 ];
 
 /** The client section under /app (React Router). */
@@ -38,8 +45,16 @@ export default function ClientApp() {
         </nav>
         <div className="flex-1">
           <Routes>
-            {ROUTES.map(({ path, what, page }) => (
-              <Route key={path} path={path} element={<RouteBoundary what={what}>{page}</RouteBoundary>} />
+            {ROUTES.map(({ path, what, title, page }) => (
+              <Route
+                key={path}
+                path={path}
+                element={
+                  <RouteBoundary what={what} title={title}>
+                    {page}
+                  </RouteBoundary>
+                }
+              />
             ))}
           </Routes>
         </div>
@@ -48,9 +63,21 @@ export default function ClientApp() {
   );
 }
 
-/** Starts the boundary afresh on every address, so opening another report clears a failure. */
-function RouteBoundary({ what, children }: { what: string; children: ReactNode }) {
+/**
+ * Starts the boundary afresh on every address, so opening another report clears a failure, and
+ * titles the page (each /app page names itself: "Reports · Rateledger").
+ */
+function RouteBoundary({
+  what,
+  title,
+  children,
+}: {
+  what: string;
+  title: string | null;
+  children: ReactNode;
+}) {
   const { pathname } = useLocation();
+  useDocumentTitle(title);
   return (
     <ErrorBoundary key={pathname} what={what}>
       {children}

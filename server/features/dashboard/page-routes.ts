@@ -18,7 +18,8 @@ export function pageRoutes(services: AppServices): Router {
 
   // The client section: React Router takes over below /app.
   router.get(['/app', '/app/{*rest}'], signedIn(), (req, res) => {
-    renderPage(req, res, 'client-app', { title: 'Rateledger' });
+    // Each page of the section sets its own title once it has loaded (src/app/client-app.tsx).
+    renderPage(req, res, 'client-app', { title: 'Reports and activity' });
   });
 
   return router;

@@ -14,6 +14,7 @@ import { renderPage } from '../../platform/web/render-page.ts';
 import { versionPdf } from '../reports/index.ts';
 import { typedChecklistTicks } from './checklist-confirmation.ts';
 import { signReportVersion } from './e-signature.ts';
+import { signFormErrorSummary } from './form-error-summary.ts';
 import { returnForRework } from './return-for-rework.ts';
 import type { ReviewActionContext, ReviewTarget } from './review-action.ts';
 import { reviewPageModel } from './review-page-model.ts';
@@ -111,6 +112,7 @@ export function reviewRoutes(services: AppServices): Router {
         {
           formError: { [form]: known ? known.message : 'Some fields are not valid.' },
           errors: { [form]: errors },
+          errorSummary: { [form]: form === 'sign' ? signFormErrorSummary(errors) : [] },
           typed: {
             [form]: {
               note: body.note,

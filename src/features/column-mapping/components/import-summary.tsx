@@ -1,11 +1,34 @@
+import { useEffect, useRef, useState } from 'react';
 import type { ImportResponse } from '../../../../shared/api/uploads.ts';
 import { RunAnalysisButton } from '../../studies/components/run-analysis-button.tsx';
 
-/** What was stored: one line per series, the dataset hash, and the button to analyse it. */
+/** Long enough for the empty live region to be in the accessibility tree before it is filled. */
+const ANNOUNCE_DELAY_MS = 100;
+
+/**
+ * What was stored: one line per series, the dataset hash, and the button to analyse it.
+ *
+ * It replaces the workbench the person was working in, so focus would fall to <body>: it moves
+ * to the summary's heading instead (WCAG 2.4.3 Focus Order), and a polite live region says what
+ * happened (4.1.3 Status Messages). The region is in the page empty first and filled a moment
+ * later, because screen readers announce changes to a live region, not a region that arrives full.
+ */
 export function ImportSummary({ result, studyId }: { result: ImportResponse; studyId: string }) {
+  const heading = useRef<HTMLHeadingElement>(null);
+  const [announcement, setAnnouncement] = useState('');
+  const message = `Dataset #${result.datasetId} stored: ${result.pointCount} points in ${result.series.length} series. Next: run the analysis.`;
+  useEffect(() => {
+    heading.current?.focus();
+    const timer = window.setTimeout(() => setAnnouncement(message), ANNOUNCE_DELAY_MS);
+    return () => window.clearTimeout(timer);
+  }, [message]);
+
   return (
     <section aria-labelledby="import-summary" className="rounded-md border border-ledger/40 bg-white p-5">
-      <h2 id="import-summary" className="font-serif text-xl">
+      <p role="status" aria-live="polite" className="sr-only">
+        {announcement}
+      </p>
+      <h2 id="import-summary" ref={heading} tabIndex={-1} className="font-serif text-xl">
         Dataset #{result.datasetId} stored
       </h2>
       <p className="mt-1 text-sm text-ink-muted">

@@ -13,7 +13,7 @@ const TIME_UNIT_LABELS: Record<string, string> = {
 };
 
 const inputClass = (error?: string) =>
-  `mt-1 block w-full rounded-sm border px-2 py-1.5 text-sm focus:border-ledger focus:outline-none ${error ? 'border-alert' : 'border-rule'}`;
+  `mt-1 block w-full rounded-sm border px-2 py-1.5 text-sm focus:border-ledger ${error ? 'border-alert' : 'border-rule'}`;
 
 function Field({
   id,

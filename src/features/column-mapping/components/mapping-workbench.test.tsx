@@ -1,4 +1,4 @@
-import { fireEvent, screen, within } from '@testing-library/react';
+import { fireEvent, screen, waitFor, within } from '@testing-library/react';
 import { describe, expect, it } from 'vitest';
 import {
   importRequestSchema,
@@ -136,6 +136,28 @@ describe('the mapping workbench', () => {
       seriesColumn: 'Batch',
       temperatureColumn: 'Temperature (°C)',
     });
+  });
+
+  it('after the import, focus moves to the summary heading and a live region announces what was stored (issue 17 §1)', async () => {
+    mockApi([
+      previewRoute,
+      { method: 'POST', path: '/api/uploads/41/import', respond: () => json(201, imported) },
+    ]);
+    renderWorkbench();
+    await screen.findByText(/The whole sheet reads cleanly/, {}, AFTER_CHECK);
+    const button = screen.getByRole('button', { name: 'Import as dataset' });
+    button.focus();
+    fireEvent.click(button);
+
+    const heading = await screen.findByRole('heading', { name: 'Dataset #93 stored' });
+    expect(document.activeElement).toBe(heading);
+    expect(heading.getAttribute('tabindex')).toBe('-1');
+    const live = screen
+      .getAllByRole('status')
+      .find((region) => region.closest('section[aria-labelledby="import-summary"]'));
+    expect(live?.getAttribute('aria-live')).toBe('polite');
+    // Empty when it enters the page, filled a moment later: that change is what is announced.
+    await waitFor(() => expect(live?.textContent).toMatch(/^Dataset #93 stored: \d+ points in 2 series\./));
   });
 
   it('shows the field error beside the field when a required column is unchosen', async () => {

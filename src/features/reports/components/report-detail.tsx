@@ -1,4 +1,5 @@
 import { Link, useParams } from 'react-router';
+import { useDocumentTitle } from '../../../lib/document-title.ts';
 import { useMe } from '../../session/api/get-me.ts';
 import { useCreateReportVersion } from '../api/create-report-version.ts';
 import { useReport } from '../api/get-report.ts';
@@ -16,6 +17,7 @@ export function ReportDetail() {
   // Only analysts may render; the server enforces it, the button just does not offer it to others.
   const me = useMe().data;
   const canRender = me?.roles.includes('analyst') ?? false;
+  useDocumentTitle(report.data ? `${report.data.reportNumber} ${report.data.title}` : 'Report');
 
   if (!Number.isInteger(reportId) || reportId <= 0) return <p role="alert">There is no such report.</p>;
   if (report.isPending) return <p className="text-ink-muted">Loading the report…</p>;

@@ -40,7 +40,9 @@ export function CodeEditor({ part, text, problems, generation, label, onChange, 
         EditorView.lineWrapping,
         languageFor(forPart),
         problemExtensions,
-        EditorView.contentAttributes.of({ 'aria-label': label, 'data-part': forPart }),
+        // tabindex 0 names the editable content as the focusable part of the scroll region (it is in
+        // the tab order already, as a contenteditable): keyboard users reach and scroll the code.
+        EditorView.contentAttributes.of({ 'aria-label': label, 'data-part': forPart, tabindex: '0' }),
         EditorView.updateListener.of((update) => {
           if (update.docChanged) change.current(forPart, update.state.doc.toString());
         }),

@@ -1,5 +1,11 @@
 import { useId, useState } from 'react';
 import type { TemplateEditorResponse } from '../../../../shared/api/templates.ts';
+import { tabFromKey } from '../../../lib/tablist-keys.ts';
+
+const TABS = [
+  { key: 'variables', label: 'Variables' },
+  { key: 'helpers', label: 'Helpers' },
+] as const;
 
 interface ReferencePanelProps {
   variables: TemplateEditorResponse['variables'];
@@ -14,6 +20,7 @@ export function ReferencePanel({ variables, helpers, examples, onInsert }: Refer
   const [filter, setFilter] = useState('');
   const [tab, setTab] = useState<'variables' | 'helpers'>('variables');
   const searchId = useId();
+  const panelId = useId();
   const needle = filter.trim().toLowerCase();
   const shownVariables = variables.filter(
     (variable) => !needle || `${variable.path} ${variable.description}`.toLowerCase().includes(needle),
@@ -30,24 +37,25 @@ export function ReferencePanel({ variables, helpers, examples, onInsert }: Refer
       className="flex h-full flex-col rounded-sm border border-rule bg-white"
     >
       <div role="tablist" aria-label="Reference" className="flex border-b border-rule">
-        <button
-          type="button"
-          role="tab"
-          aria-selected={tab === 'variables'}
-          className={tabClass(tab === 'variables')}
-          onClick={() => setTab('variables')}
-        >
-          Variables ({variables.length})
-        </button>
-        <button
-          type="button"
-          role="tab"
-          aria-selected={tab === 'helpers'}
-          className={tabClass(tab === 'helpers')}
-          onClick={() => setTab('helpers')}
-        >
-          Helpers ({helpers.length})
-        </button>
+        {TABS.map(({ key, label }, index) => (
+          <button
+            key={key}
+            id={`${panelId}-${key}-tab`}
+            type="button"
+            role="tab"
+            aria-selected={tab === key}
+            aria-controls={`${panelId}-panel`}
+            tabIndex={tab === key ? 0 : -1}
+            className={tabClass(tab === key)}
+            onClick={() => setTab(key)}
+            onKeyDown={(event) => {
+              const next = tabFromKey(event, index, TABS.length);
+              if (next !== null) setTab(TABS[next]!.key);
+            }}
+          >
+            {label} ({key === 'variables' ? variables.length : helpers.length})
+          </button>
+        ))}
       </div>
       <label htmlFor={searchId} className="sr-only">
         Find a variable or helper
@@ -60,40 +68,59 @@ export function ReferencePanel({ variables, helpers, examples, onInsert }: Refer
         placeholder="Find…"
         className="m-2 rounded-sm border border-rule px-2 py-1 text-sm"
       />
-      <p className="px-3 text-xs text-ink-muted">Click an entry to insert it at the cursor.</p>
-      <ul className="mt-1 flex-1 overflow-y-auto px-2 pb-2" role="tabpanel" aria-label={tab}>
-        {tab === 'variables'
-          ? shownVariables.map((variable) => (
-              <li key={variable.path}>
-                <button
-                  type="button"
-                  onClick={() => onInsert(variable.insert)}
-                  className="w-full rounded-sm px-2 py-1.5 text-left hover:bg-paper focus:bg-paper"
-                  aria-label={`Insert ${variable.path}`}
+      <p className="px-3 text-xs text-ink-muted">Choose an entry to insert it at the cursor.</p>
+      {/* The panel scrolls by itself, so it takes focus (tabIndex 0) for keyboard scrolling. */}
+      <div
+        id={`${panelId}-panel`}
+        role="tabpanel"
+        aria-labelledby={`${panelId}-${tab}-tab`}
+        // biome-ignore lint/a11y/noNoninteractiveTabindex: a scrolling region must be reachable by keyboard (WCAG 2.1.1)
+        tabIndex={0}
+        className="mt-1 flex-1 overflow-y-auto px-2 pb-2"
+      >
+        <ul>
+          {tab === 'variables'
+            ? shownVariables.map((variable, index) => (
+                <li
+                  key={variable.path}
+                  className="rounded-sm px-2 py-1.5 hover:bg-paper focus-within:bg-paper"
                 >
-                  <code className="text-xs font-semibold text-ledger">{variable.path}</code>
-                  <span className="block text-xs">{variable.description}</span>
-                  <span className="block text-xs text-ink-muted">
-                    e.g. {examples[variable.path] ?? variable.insert}
+                  <button
+                    type="button"
+                    onClick={() => onInsert(variable.insert)}
+                    className="w-full text-left"
+                    aria-describedby={`${panelId}-variable-${index}`}
+                  >
+                    <span className="sr-only">Insert</span>{' '}
+                    <code className="text-xs font-semibold text-ledger">{variable.path}</code>
+                  </button>
+                  <span id={`${panelId}-variable-${index}`} className="block text-xs">
+                    {variable.description}
+                    <span className="block text-ink-muted">
+                      e.g. {examples[variable.path] ?? variable.insert}
+                    </span>
                   </span>
-                </button>
-              </li>
-            ))
-          : shownHelpers.map((helper) => (
-              <li key={helper.name}>
-                <button
-                  type="button"
-                  onClick={() => onInsert(helper.usage)}
-                  className="w-full rounded-sm px-2 py-1.5 text-left hover:bg-paper focus:bg-paper"
-                  aria-label={`Insert helper ${helper.name}`}
-                >
-                  <code className="text-xs font-semibold text-ledger">{helper.name}</code>
-                  <span className="block text-xs">{helper.description}</span>
-                  <code className="block text-xs text-ink-muted">{helper.usage}</code>
-                </button>
-              </li>
-            ))}
-      </ul>
+                </li>
+              ))
+            : shownHelpers.map((helper, index) => (
+                <li key={helper.name} className="rounded-sm px-2 py-1.5 hover:bg-paper focus-within:bg-paper">
+                  <button
+                    type="button"
+                    onClick={() => onInsert(helper.usage)}
+                    className="w-full text-left"
+                    aria-describedby={`${panelId}-helper-${index}`}
+                  >
+                    <span className="sr-only">Insert helper</span>{' '}
+                    <code className="text-xs font-semibold text-ledger">{helper.name}</code>
+                  </button>
+                  <span id={`${panelId}-helper-${index}`} className="block text-xs">
+                    {helper.description}
+                    <code className="block text-ink-muted">{helper.usage}</code>
+                  </span>
+                </li>
+              ))}
+        </ul>
+      </div>
     </aside>
   );
 }

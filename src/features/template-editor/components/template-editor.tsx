@@ -1,6 +1,7 @@
 import { useQueryClient } from '@tanstack/react-query';
 import { useEffect, useMemo, useRef, useState } from 'react';
 import { partLabel, type TemplateSourceInput } from '../../../../shared/api/templates.ts';
+import { tabFromKey } from '../../../lib/tablist-keys.ts';
 import { useTemplateEditor } from '../api/get-template-editor.ts';
 import { useTemplateVersion } from '../api/get-template-version.ts';
 import { useTemplatePreview } from '../api/preview-template.ts';
@@ -176,35 +177,42 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
 
         <section aria-label="Template source" className="flex min-w-0 flex-col gap-3">
           <div>
-            <div role="tablist" aria-label="Template parts" className="flex flex-wrap items-end gap-1">
-              {parts.map((key) => (
-                <button
-                  key={key}
-                  type="button"
-                  role="tab"
-                  aria-selected={key === part}
-                  onClick={() => setPart(key)}
-                  className={`rounded-t-sm border border-b-0 px-3 py-1.5 text-sm ${
-                    key === part
-                      ? 'border-rule bg-white font-semibold'
-                      : 'border-transparent text-ink-muted hover:text-ink'
-                  }`}
-                >
-                  {partLabel(key).replace('Partial: ', '')}
-                  {changed.has(key) && (
-                    <span title="changed" className="ml-1 text-ledger">
-                      <span aria-hidden="true">●</span>
-                      <span className="sr-only"> (changed)</span>
-                    </span>
-                  )}
-                  {problems.some((problem) => problem.part === key) && (
-                    <span className="ml-1 text-alert">
-                      <span aria-hidden="true">!</span>
-                      <span className="sr-only"> (has problems)</span>
-                    </span>
-                  )}
-                </button>
-              ))}
+            <div className="flex flex-wrap items-end gap-1">
+              <div role="tablist" aria-label="Template parts" className="flex flex-wrap items-end gap-1">
+                {parts.map((key, index) => (
+                  <button
+                    key={key}
+                    type="button"
+                    role="tab"
+                    aria-selected={key === part}
+                    tabIndex={key === part ? 0 : -1}
+                    onClick={() => setPart(key)}
+                    onKeyDown={(event) => {
+                      const next = tabFromKey(event, index, parts.length);
+                      if (next !== null) setPart(parts[next]!);
+                    }}
+                    className={`rounded-t-sm border border-b-0 px-3 py-1.5 text-sm ${
+                      key === part
+                        ? 'border-rule bg-white font-semibold'
+                        : 'border-transparent text-ink-muted hover:text-ink'
+                    }`}
+                  >
+                    {partLabel(key).replace('Partial: ', '')}
+                    {changed.has(key) && (
+                      <span title="changed" className="ml-1 text-ledger">
+                        <span aria-hidden="true">●</span>
+                        <span className="sr-only"> (changed)</span>
+                      </span>
+                    )}
+                    {problems.some((problem) => problem.part === key) && (
+                      <span className="ml-1 text-alert">
+                        <span aria-hidden="true">!</span>
+                        <span className="sr-only"> (has problems)</span>
+                      </span>
+                    )}
+                  </button>
+                ))}
+              </div>
               <NewPartialForm
                 existing={Object.keys(draft.partials)}
                 onAdd={(name) => {
