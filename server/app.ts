@@ -1,4 +1,3 @@
-import connectPgSimple from 'connect-pg-simple';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
@@ -20,6 +19,7 @@ import { publicVerificationRoutes, verificationRoutes } from './features/verific
 import type { AppOptions, AppServices } from './platform/app-services.ts';
 import { createCsrf } from './platform/auth/csrf.ts';
 import { createAuthenticator } from './platform/auth/passport-setup.ts';
+import { createSessionStore } from './platform/auth/session-store.ts';
 import { parseRenderConfig } from './platform/config/render-config.ts';
 import type { TrustProxy } from './platform/config/trust-proxy.ts';
 import type { DatabaseHandle } from './platform/db/client.ts';
@@ -49,6 +49,11 @@ export interface CreateAppOptions extends Partial<AppOptions> {
   trustProxy?: TrustProxy;
   /** The minimum duration of a refused sign-in (default `REFUSAL_FLOOR_MS`). */
   refusalFloorMs?: number;
+  /**
+   * One statement per signed-in request (`session-store.ts`; default true). False restores
+   * connect-pg-simple's three (session, user, expiry rewrite): the anchor of the bench.
+   */
+  sessionFastPath?: boolean;
 }
 
 /**
@@ -56,7 +61,7 @@ export interface CreateAppOptions extends Partial<AppOptions> {
  * everything else are in PostgreSQL, so several instances can serve behind a load balancer.
  */
 export function createApp(database: DatabaseHandle, options: CreateAppOptions): Express {
-  const { trustProxy = false, refusalFloorMs, ...appOptions } = options;
+  const { trustProxy = false, refusalFloorMs, sessionFastPath = true, ...appOptions } = options;
   const settings: AppOptions = { ...DEFAULT_OPTIONS, ...appOptions };
   const renderConfig = parseRenderConfig();
   const services: AppServices = {
@@ -111,10 +116,9 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
 
   // Before the session, so that even a page answering a failed session load carries its token.
   app.use(csrf.tokens);
-  const PgStore = connectPgSimple(session);
   app.use(
     session({
-      store: new PgStore({ pool: database.pool, tableName: 'session', createTableIfMissing: false }),
+      store: createSessionStore(session, database.pool, { fastPath: sessionFastPath }),
       name: settings.cookieName,
       secret: settings.sessionSecret,
       resave: false,

@@ -1,20 +1,17 @@
 import { setTimeout as sleep } from 'node:timers/promises';
+import type { Request } from 'express';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import type { Database } from '../db/client.ts';
 import { attemptSignIn, loadSessionUser } from './accounts.ts';
 import { knownBrowserCookie } from './known-browser.ts';
 import type { SessionUser } from './roles.ts';
+import { loadedSessionUser, type SessionReference } from './session-store.ts';
 
 declare global {
   namespace Express {
     interface User extends SessionUser {}
   }
-}
-
-interface SessionReference {
-  userId: number;
-  organisationId: number;
 }
 
 /** The name of the e-mail and password strategy (`authenticator.authenticate(PASSWORD_STRATEGY, …)`). */
@@ -48,7 +45,8 @@ export interface AuthenticatorSettings {
  * locks, the uniform answer and the audit events of every attempt; 21 CFR 11.300(d), 11.10(e)).
  * A successful sign-in renews the known-browser cookie. The session keeps only {userId,
  * organisationId} and the user is reloaded with their roles on every request, so a deactivation
- * or role change takes effect at once.
+ * or role change takes effect at once: by the session store, in the statement that reads the
+ * session row (`session-store.ts`), or here when the store did not.
  */
 export function createAuthenticator(db: Database, settings: AuthenticatorSettings): Authenticator {
   const authenticator = new passport.Passport();
@@ -85,7 +83,11 @@ export function createAuthenticator(db: Database, settings: AuthenticatorSetting
     const reference: SessionReference = { userId: user.id, organisationId: user.organisationId };
     done(null, reference);
   });
-  authenticator.deserializeUser((reference: SessionReference, done) => {
+  // passport calls a three-argument deserializer with the request first.
+  type Done = (error: unknown, user?: Express.User | false) => void;
+  authenticator.deserializeUser((req: Request, reference: SessionReference, done: Done) => {
+    const loaded = loadedSessionUser(req, reference);
+    if (loaded !== undefined) return done(null, loaded ?? false);
     loadSessionUser(db, reference.userId, reference.organisationId).then(
       (user) => done(null, user ?? false),
       (error) => done(error),
