@@ -62,21 +62,33 @@ export function createRenderPipeline(options: { browsers?: number } = {}): Repor
   };
 }
 
+/** The report figures of the version's run, in reading order, as specs. */
+export function runReportFigures(request: Pick<RenderRequest, 'run'>) {
+  const { run } = request;
+  const limits = {
+    ...(run.study.lowerLimit === null ? {} : { lower: run.study.lowerLimit }),
+    ...(run.study.upperLimit === null ? {} : { upper: run.study.upperLimit }),
+  };
+  return reportFigures(analysisFigures(run.result, run.series, limits));
+}
+
 /** The context and figures of one report version, from its records. */
 export function reportInput(request: RenderRequest): {
   context: ReportContext;
   figures: RenderReportInput['figures'];
 } {
   const { run } = request;
-  const limits = {
-    ...(run.study.lowerLimit === null ? {} : { lower: run.study.lowerLimit }),
-    ...(run.study.upperLimit === null ? {} : { upper: run.study.upperLimit }),
-  };
   try {
     const logs = reportTemperatureLogs(request.temperatureLogs ?? []);
     // Numbered in reading order: the excursion section comes after temperature dependence and
     // before Appendix A's per-series figures.
-    const analysis = reportFigures(analysisFigures(run.result, run.series, limits));
+    const stored = request.runFigures;
+    const analysis = runReportFigures(request).map((figure) => {
+      const svg = stored?.get(figure.id);
+      return svg === undefined
+        ? figure
+        : { id: figure.id, title: figure.title, description: figure.description, svg };
+    });
     const inAppendix = analysis.filter((figure) => reportFigurePart(figure.id) === 'series');
     const figures = [
       ...analysis.filter((figure) => reportFigurePart(figure.id) !== 'series'),

@@ -13,7 +13,9 @@ import {
 import { type ReportStorage, sha256Hex } from '../../../platform/storage/report-storage.ts';
 import { getAnalysisRun } from '../../analysis/index.ts';
 import type { AttachedTemperatureLog } from '../render/report-temperature-logs.ts';
+import { runFigureSvgs } from '../render/run-figures.ts';
 import { versionSource } from '../report-templates.ts';
+import { runReportFigures } from './render-pipeline.ts';
 import { RenderFailure, type RenderRequest, type ReportRenderer } from './report-renderer.ts';
 
 /**
@@ -261,7 +263,21 @@ export async function loadRenderRequest(tx: Executor, versionId: number): Promis
     .innerJoin(users, eq(users.id, temperatureLogAssessments.createdBy))
     .where(eq(reportVersionTemperatureLogs.reportVersionId, versionId))
     .orderBy(reportVersionTemperatureLogs.position);
+  // The run's figures, drawn once for its first report and kept beside it (runs are write-once).
+  let runFigures: Map<string, string>;
+  try {
+    runFigures = await runFigureSvgs(tx, run.id, runReportFigures({ run }));
+  } catch (error) {
+    throw new RenderFailure(
+      `A figure of analysis ${run.id} could not be drawn: ${(error as Error).message}`,
+      true,
+      {
+        cause: error,
+      },
+    );
+  }
   return {
+    runFigures,
     temperatureLogs: attached.map(({ assessment, createdByName }) => ({
       id: assessment.id,
       title: assessment.title,

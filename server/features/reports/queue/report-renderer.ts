@@ -29,6 +29,11 @@ export interface RenderRequest {
   template: { versionId: number; versionNumber: number; sha256: string; source: ReportTemplateSource };
   /** Temperature-log assessments attached to the version, in their order. */
   temperatureLogs: AttachedTemperatureLog[];
+  /**
+   * The run's report figures as drawn once and stored (`run-figures.ts`), by figure id; a figure
+   * missing here (a preview without a database record) is drawn from its spec at print time.
+   */
+  runFigures?: ReadonlyMap<string, string>;
 }
 
 export interface RenderedReport {

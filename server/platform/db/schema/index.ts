@@ -1,3 +1,4 @@
+export * from './analysis-run-figures.ts';
 export * from './analysis-runs.ts';
 export * from './audit-chain-checks.ts';
 export * from './audit-events.ts';
