@@ -17,11 +17,13 @@ import {
   type TemperatureLogMapping,
   temperatureLogMappingSchema,
 } from '../intake/temperature-log-from-grid.ts';
+import type { ExcursionImpact } from '../kinetics/temperature/excursion-impact.ts';
+import type { TemperatureLogDocument } from '../kinetics/temperature/temperature-log-document.ts';
 import {
   type TemperatureLogSettings,
   temperatureLogSettingsSchema,
 } from '../kinetics/temperature/temperature-log-settings.ts';
-import { TIME_UNITS } from '../kinetics/units.ts';
+import { TIME_UNITS, type TimeUnit } from '../kinetics/units.ts';
 
 export const TEMPERATURE_LOG_FIELDS = [
   'title',
@@ -142,3 +144,25 @@ export function readTemperatureLogForm(fields: Record<string, unknown>): Tempera
     ...(latestValue === undefined ? {} : { latestValue }),
   };
 }
+
+/** What a temperature log cost a product, priced in a study's Arrhenius fit (stored with the assessment). */
+export interface StudyImpact extends ExcursionImpact {
+  source: {
+    studyId: number;
+    studyTitle: string;
+    product: string;
+    attribute: string;
+    unit: string;
+    analysisRunId: number;
+    engineVersion: string;
+    activationEnergyKJPerMol: number;
+    fittedRangeC: [number, number];
+  };
+  latestValue: number | null;
+  limit: number | null;
+  /** Time unit of the log (durations above are in it). */
+  timeUnit: TimeUnit;
+}
+
+/** What is stored as an assessment's result: the log's document and, with a study, what the log cost it. */
+export type StoredTemperatureLogResult = TemperatureLogDocument & { impact: StudyImpact | null };

@@ -8,10 +8,8 @@
  * assessment can be traced to the fit it relied on; the run itself is write-once.
  */
 import { and, desc, eq, notInArray } from 'drizzle-orm';
-import {
-  type ExcursionImpact,
-  excursionImpact,
-} from '../../../shared/kinetics/temperature/excursion-impact.ts';
+import type { StudyImpact } from '../../../shared/api/temperature-logs.ts';
+import { excursionImpact } from '../../../shared/kinetics/temperature/excursion-impact.ts';
 import type {
   TemperatureLogAssessment,
   TemperatureReading,
@@ -21,23 +19,7 @@ import type { Executor } from '../../platform/db/client.ts';
 import { analysisRuns, retirements } from '../../platform/db/schema/index.ts';
 import { getAnalysisRun } from '../analysis/index.ts';
 
-export interface StudyImpact extends ExcursionImpact {
-  source: {
-    studyId: number;
-    studyTitle: string;
-    product: string;
-    attribute: string;
-    unit: string;
-    analysisRunId: number;
-    engineVersion: string;
-    activationEnergyKJPerMol: number;
-    fittedRangeC: [number, number];
-  };
-  latestValue: number | null;
-  limit: number | null;
-  /** Time unit of the log (durations above are in it). */
-  timeUnit: TimeUnit;
-}
+export type { StudyImpact };
 
 /** A refusal that belongs to one field of the form. */
 export class StudyImpactRefused extends Error {

@@ -8,15 +8,13 @@
  * before anything is written, with every problem named where it is (`TemperatureLogRefused`).
  */
 import { and, desc, eq } from 'drizzle-orm';
+import type { StoredTemperatureLogResult } from '../../../shared/api/temperature-logs.ts';
 import { drawnReadings, temperatureLogPlotSpec } from '../../../shared/figures/temperature-log-plot.ts';
 import type { TemperatureLogMapping } from '../../../shared/intake/temperature-log-from-grid.ts';
 import { temperatureLogFromGrid } from '../../../shared/intake/temperature-log-from-grid.ts';
 import { KineticsError } from '../../../shared/kinetics/numeric/kinetics-error.ts';
 import { assessTemperatureLog } from '../../../shared/kinetics/temperature/temperature-log.ts';
-import {
-  type TemperatureLogDocument,
-  temperatureLogDocument,
-} from '../../../shared/kinetics/temperature/temperature-log-document.ts';
+import { temperatureLogDocument } from '../../../shared/kinetics/temperature/temperature-log-document.ts';
 import {
   type TemperatureLogSettings,
   temperatureLogOptions,
@@ -36,7 +34,7 @@ import {
 import { HttpError } from '../../platform/http/http-error.ts';
 import { detectFormat, type ReceivedFile, readSheetsInWorker, sha256Hex } from '../intake/index.ts';
 import { renderSvg } from '../reports/index.ts';
-import { type StudyImpact, StudyImpactRefused, studyImpact } from './study-impact.ts';
+import { StudyImpactRefused, studyImpact } from './study-impact.ts';
 
 export type TemperatureLogAssessmentRecord = typeof temperatureLogAssessments.$inferSelect;
 
@@ -59,8 +57,7 @@ export interface NewTemperatureLogAssessment {
   latestValue?: number;
 }
 
-/** What is stored as the result: the log's document and, with a study, what the log cost it. */
-export type StoredTemperatureLogResult = TemperatureLogDocument & { impact: StudyImpact | null };
+export type { StoredTemperatureLogResult };
 
 function rangeOf(settings: TemperatureLogSettings) {
   return settings.rangeMinC === undefined && settings.rangeMaxC === undefined

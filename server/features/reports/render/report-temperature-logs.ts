@@ -7,10 +7,10 @@
  * Template authors read `temperatureLogs[]` (documented in report-context-variables.ts) and print
  * each figure with `{{figure figureId}}`.
  */
+
+import type { StoredTemperatureLogResult } from '../../../../shared/api/temperature-logs.ts';
 import { formatSignificant } from '../../../../shared/figures/significant-figures.ts';
 import type { Estimate } from '../../../../shared/kinetics/temperature/excursion-impact.ts';
-import type { TemperatureLogDocument } from '../../../../shared/kinetics/temperature/temperature-log-document.ts';
-import type { StudyImpact } from '../../temperature-logs/study-impact.ts';
 import type { ReportTable } from './template-helpers.ts';
 
 /** One attached assessment as the render job reads it from its write-once records. */
@@ -22,7 +22,7 @@ export interface AttachedTemperatureLog {
   createdAt: Date;
   createdByName: string;
   engineVersion: string;
-  result: TemperatureLogDocument & { impact: StudyImpact | null };
+  result: StoredTemperatureLogResult;
   figureSvg: string;
 }
 
