@@ -1,3 +1,4 @@
+import type { ConditionShelfLife } from '../kinetics/analyse-dataset.ts';
 import type { Series } from '../kinetics/types.ts';
 import { arrheniusPlotSpec } from './arrhenius-plot.ts';
 import { fittedCurvesSpec } from './fitted-curves.ts';
@@ -16,6 +17,11 @@ export interface FigureSpec {
   /** 'series-N' (N = index in the analysis) or 'dataset': the screen loads one group at a time. */
   group: string;
   spec: Record<string, unknown>;
+}
+
+/** The id of a condition's Q1E figure: "q1e-25" at 25 °C, "q1e-all" without a temperature. */
+export function q1eFigureId(condition: Pick<ConditionShelfLife, 'temperatureC'>): string {
+  return `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`;
 }
 
 /**
@@ -94,7 +100,7 @@ export function analysisFigures(
     const spec = q1ePlotSpec(condition, seriesList, limits, analysis.series);
     if (!spec) continue;
     figures.push({
-      id: `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`,
+      id: q1eFigureId(condition),
       title: `Q1E shelf life${condition.temperatureC === null ? '' : ` at ${condition.temperatureC} °C`}`,
       description: String(spec.description),
       seriesId: null,

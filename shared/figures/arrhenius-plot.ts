@@ -1,6 +1,13 @@
 import type { DatasetAnalysis } from '../kinetics/analyse-dataset.ts';
 import { lineValueAt } from '../kinetics/temperature/inverse-temperature-line.ts';
-import { FIGURE_CONFIG, PALETTE, SERIES_COLOURS, TOOLTIP_FORMAT, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import {
+  FIGURE_CONFIG,
+  PALETTE,
+  SERIES_COLOURS,
+  SERIES_SHAPES,
+  TOOLTIP_FORMAT,
+  VEGA_LITE_SCHEMA,
+} from './figure-config.ts';
 import { MODEL_NAMES } from './results-table.ts';
 
 /**
@@ -53,6 +60,7 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
       },
     ];
   });
+  const batches = [...new Set(seriesPoints.map((point) => point.batch))];
   const pooled = arrhenius.rateConstants.map((point) => ({
     x: inverse(point.temperatureC),
     lnK: point.lnK,
@@ -87,7 +95,19 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
       encoding: {
         x: { field: 'x', type: 'quantitative' },
         y: { field: 'lnK', type: 'quantitative' },
-        color: { field: 'batch', type: 'nominal', title: 'Batch', scale: { range: SERIES_COLOURS } },
+        color: {
+          field: 'batch',
+          type: 'nominal',
+          title: 'Batch',
+          scale: { domain: batches, range: SERIES_COLOURS },
+        },
+        // Issue 17 §4: a shape per batch as well as a colour (hollow, unlike the filled pooled diamonds).
+        shape: {
+          field: 'batch',
+          type: 'nominal',
+          title: 'Batch',
+          scale: { domain: batches, range: SERIES_SHAPES },
+        },
         tooltip: [
           { field: 'series', type: 'nominal' },
           { field: 'temperature', type: 'nominal' },

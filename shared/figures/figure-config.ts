@@ -16,7 +16,10 @@ export const PALETTE = {
   paper: '#f6f4ee',
 } as const;
 
-/** One colour per rate law, distinguishable in grey print as well (different lightness). */
+/**
+ * One colour per rate law, each at least 3:1 against white (WCAG 2.1 SC 1.4.11, checked in
+ * `figure-colours.test.ts`). Colour is never the only cue: each law has its own dash too.
+ */
 export const MODEL_COLOURS: Record<string, string> = {
   '0': '#b0672a',
   '1': '#1d4b45',
@@ -24,17 +27,61 @@ export const MODEL_COLOURS: Record<string, string> = {
   n: '#8c5a9e',
 };
 
-/** Colours for batches and temperatures in multi-series plots (colour-blind safe, Okabe–Ito order). */
+/** One dash pattern per rate law (issue 17 §4), so the laws differ without colour. */
+export const MODEL_DASHES: Record<string, number[]> = {
+  '0': [8, 4],
+  '1': [1, 0],
+  '2': [2, 3],
+  n: [8, 3, 2, 3],
+};
+
+/**
+ * Colours for batches and temperatures in multi-series plots: Okabe–Ito order (colour-blind
+ * safe), with its orange and sky blue darkened (#e69f00 → #b07800, #56b4e9 → #3a8ac8) so that
+ * every colour is at least 3:1 against white (WCAG 2.1 SC 1.4.11; `figure-colours.test.ts`).
+ */
 export const SERIES_COLOURS = [
   '#0072b2',
   '#d55e00',
   '#009e73',
   '#cc79a7',
-  '#e69f00',
-  '#56b4e9',
+  '#b07800',
+  '#3a8ac8',
   '#5a6169',
   '#000000',
 ];
+
+/** One point shape per batch, in the order of `SERIES_COLOURS` (issue 17 §4: never colour alone). */
+export const SERIES_SHAPES = [
+  'circle',
+  'triangle-up',
+  'square',
+  'triangle-down',
+  'cross',
+  'diamond',
+  'triangle-right',
+  'triangle-left',
+];
+
+/** One line dash per batch or line, in the order of `SERIES_COLOURS`. */
+export const SERIES_DASHES = [
+  [1, 0],
+  [8, 4],
+  [2, 3],
+  [8, 3, 2, 3],
+  [12, 3],
+  [4, 4],
+  [12, 3, 2, 3, 2, 3],
+  [1, 4],
+];
+
+/** The entry of a list for the `index`-th batch, repeating the list when there are more batches. */
+export function cycled<T>(list: readonly T[], index: number): T {
+  return list[index % list.length]!;
+}
+
+/** The point shape of a possible outlier (a filled triangle in the alert colour). */
+export const OUTLIER_SHAPE = 'triangle-up';
 
 export const FIGURE_FONT = 'Source Sans 3';
 

@@ -4,6 +4,7 @@ import type { Series } from '../kinetics/types.ts';
 import {
   FIGURE_CONFIG,
   MODEL_COLOURS,
+  MODEL_DASHES,
   PALETTE,
   TOOLTIP_FORMAT,
   timeGrid,
@@ -48,11 +49,14 @@ import type { ConfidenceBand } from './stored-result.ts';
 
 export const CURVE_POINTS = 41;
 
-/** Line width and dash of each kind of law: the named one bold, plausible ones solid, the rest dashed. */
-const EMPHASIS: Record<LawEmphasis, { width: number; dash: number[] }> = {
-  named: { width: 2.75, dash: [1, 0] },
-  plausible: { width: 2, dash: [1, 0] },
-  other: { width: 1.25, dash: [5, 3] },
+/**
+ * Line width of each kind of law: the named one boldest, plausible ones medium, the rest thin.
+ * The dash belongs to the law itself (`MODEL_DASHES`, issue 17 §4), so laws differ without colour.
+ */
+const EMPHASIS: Record<LawEmphasis, { width: number }> = {
+  named: { width: 3 },
+  plausible: { width: 2.25 },
+  other: { width: 1 },
 };
 
 export function fittedCurvesSpec(
@@ -77,7 +81,9 @@ export function fittedCurvesSpec(
   // The band belongs to the law the table names. A run stores the lowest-AICc law's band when no
   // order is named; it is not drawn, since shading one law would single it out as the answer.
   // One column without a named order: the labels then carry the weights and are long.
-  const lawLegend = named ? { columns: 4 } : { columns: 1, labelLimit: 360 };
+  // Stroke symbols √900 = 30 px long, so the legend shows each law's dash.
+  const lineSymbols = { symbolType: 'stroke', symbolSize: 900 };
+  const lawLegend = named ? { columns: 2, ...lineSymbols } : { columns: 1, labelLimit: 360, ...lineSymbols };
   const namedBand = named && band && String(band.order) === named.model ? band : undefined;
   const sample = plotSample(series.observations, (observation) => observation.excluded !== undefined);
   const points = sample.points.map((observation) => ({
@@ -126,7 +132,7 @@ export function fittedCurvesSpec(
           scale: { domain: lawLabelsDrawn, range: lawColours },
           legend: lawLegend,
         },
-        // Width and dash by law too, so the legend's symbols show which lines are solid.
+        // Width and dash by law too, so the legend's symbols show each law's dash and weight.
         strokeWidth: {
           field: 'law',
           type: 'nominal',
@@ -139,7 +145,10 @@ export function fittedCurvesSpec(
           field: 'law',
           type: 'nominal',
           title: 'Rate law',
-          scale: { domain: lawLabelsDrawn, range: legend.map((entry) => EMPHASIS[entry.emphasis].dash) },
+          scale: {
+            domain: lawLabelsDrawn,
+            range: legend.map((entry) => MODEL_DASHES[entry.model] ?? [1, 0]),
+          },
           legend: lawLegend,
         },
       },
@@ -216,8 +225,8 @@ function curvesNote(
   const ranked = analysis.models.some((model) => model.applicable && model.aicc !== null);
   return ranked
     ? [
-        `No order named. Solid: the plausible laws (Akaike weight ≥ ${PLAUSIBLE_WEIGHT} or ΔAICc ≤ ${PLAUSIBLE_DELTA_AICC});`,
-        'dashed: the others. No confidence band, since no law is chosen.',
+        `No order named. Thick lines: the plausible laws (Akaike weight ≥ ${PLAUSIBLE_WEIGHT} or ΔAICc ≤ ${PLAUSIBLE_DELTA_AICC});`,
+        'thin: the others. Each law has its own dash. No confidence band, since no law is chosen.',
       ]
     : [
         'No order named: too few points to rank the laws by AICc. No confidence band, since no law is chosen.',

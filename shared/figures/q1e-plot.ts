@@ -1,9 +1,12 @@
 import type { ConditionShelfLife, SeriesResult } from '../kinetics/analyse-dataset.ts';
 import type { Series } from '../kinetics/types.ts';
 import {
+  cycled,
   FIGURE_CONFIG,
   PALETTE,
   SERIES_COLOURS,
+  SERIES_DASHES,
+  SERIES_SHAPES,
   TOOLTIP_FORMAT,
   timeTitle,
   VEGA_LITE_SCHEMA,
@@ -50,6 +53,9 @@ function scaleNote(condition: ConditionShelfLife, results: readonly SeriesResult
   return `Scale: ${scale.words} (ICH Q1E default: no order named for every batch)`;
 }
 
+/** A legend of line symbols long enough to show each dash (a stroke symbol is √size pixels long). */
+const LINE_LEGEND = { symbolType: 'stroke', symbolSize: 900, symbolStrokeWidth: 2 };
+
 export function q1ePlotSpec(
   condition: ConditionShelfLife,
   seriesList: readonly Series[],
@@ -83,6 +89,7 @@ export function q1ePlotSpec(
               time: point.time,
               value: point.mean,
               group: line.label,
+              line: line.label,
               curve: `${line.label}: mean`,
               kind: 'mean',
             },
@@ -93,6 +100,7 @@ export function q1ePlotSpec(
               time: point.time,
               value: point.lowerCL,
               group: line.label,
+              line: line.label,
               curve: `${line.label}: lower confidence limit`,
               kind: 'limit',
             },
@@ -104,6 +112,7 @@ export function q1ePlotSpec(
               time: point.time,
               value: point.upperCL,
               group: line.label,
+              line: line.label,
               curve: `${line.label}: upper confidence limit`,
               kind: 'limit',
             },
@@ -119,10 +128,10 @@ export function q1ePlotSpec(
   const groups = [
     ...new Set([...result.lines.map((line) => line.label), ...members.map((series) => series.id)]),
   ];
-  const colourScale = {
-    domain: groups,
-    range: groups.map((_, index) => SERIES_COLOURS[index % SERIES_COLOURS.length]!),
-  };
+  // Issue 17 §4: each batch or line has its own colour, point shape and dash, so it reads in grey.
+  const colourScale = { domain: groups, range: groups.map((_, index) => cycled(SERIES_COLOURS, index)) };
+  const shapeScale = { domain: groups, range: groups.map((_, index) => cycled(SERIES_SHAPES, index)) };
+  const dashScale = { domain: groups, range: groups.map((_, index) => cycled(SERIES_DASHES, index)) };
   const layers: Record<string, unknown>[] = [
     {
       data: { values: curves },
@@ -132,8 +141,16 @@ export function q1ePlotSpec(
         y: { field: 'value', type: 'quantitative', title: `Value (${valueUnit})`, scale: { zero: false } },
         detail: { field: 'curve', type: 'nominal' },
         color: { field: 'group', type: 'nominal', title: 'Batch / line', scale: colourScale },
-        strokeDash: { condition: { test: "datum.kind === 'limit'", value: [6, 4] }, value: [1, 0] },
-        strokeWidth: { condition: { test: "datum.kind === 'mean'", value: 2.25 }, value: 1.5 },
+        // Its own field, so the dashes get a legend of their own (merged with the shapes they would not show).
+        strokeDash: {
+          field: 'line',
+          type: 'nominal',
+          title: 'Line',
+          scale: dashScale,
+          legend: LINE_LEGEND,
+        },
+        // The dash tells the batch; the width tells the mean line (thick) from its confidence limit (thin).
+        strokeWidth: { condition: { test: "datum.kind === 'mean'", value: 2.5 }, value: 1 },
         tooltip: [
           { field: 'curve', type: 'nominal' },
           { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
@@ -143,11 +160,12 @@ export function q1ePlotSpec(
     },
     {
       data: { values: observations },
-      mark: { type: 'point', filled: true, size: 40 },
+      mark: { type: 'point', filled: true, size: 50 },
       encoding: {
         x: { field: 'time', type: 'quantitative' },
         y: { field: 'value', type: 'quantitative' },
         color: { field: 'group', type: 'nominal', title: 'Batch / line', scale: colourScale },
+        shape: { field: 'group', type: 'nominal', title: 'Batch / line', scale: shapeScale },
         tooltip: [
           { field: 'group', type: 'nominal', title: 'series' },
           { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
@@ -207,7 +225,7 @@ export function q1ePlotSpec(
       text: `Q1E shelf life${where}`,
       subtitle: [
         `${scaleNote(condition, results)}; ${result.model === 'single-batch' ? 'single batch' : `model: ${result.model}`}.`,
-        `Dashed: ${result.method.sidedness} ${percent} % confidence limit; red: acceptance criterion${sampleNote({ shown, total })}.`,
+        `Thick: mean line; thin: ${result.method.sidedness} ${percent} % confidence limit; red line: acceptance criterion${sampleNote({ shown, total })}.`,
       ],
     },
     layer: layers,

@@ -1,12 +1,20 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import type { Series } from '../kinetics/types.ts';
-import { FIGURE_CONFIG, PALETTE, TOOLTIP_FORMAT, timeTitle, VEGA_LITE_SCHEMA } from './figure-config.ts';
+import {
+  FIGURE_CONFIG,
+  OUTLIER_SHAPE,
+  PALETTE,
+  TOOLTIP_FORMAT,
+  timeTitle,
+  VEGA_LITE_SCHEMA,
+} from './figure-config.ts';
 import { namedLaw } from './law-standing.ts';
 import { plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 
 /**
- * Residuals of the diagnosed fit against time, as a Vega-Lite spec, with possible outliers in red.
+ * Residuals of the diagnosed fit against time, as a Vega-Lite spec, with possible outliers as red
+ * triangles (a shape of their own, so they stand out without colour; issue 17 §4).
  * The diagnosed law is the one the results table names; when it names none, the engine diagnoses
  * the lowest-AICc integer law, and the subtitle says so rather than calling it chosen.
  *
@@ -58,7 +66,7 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
         `${law.charAt(0).toUpperCase()}${law.slice(1)}.`,
         diagnostics.outlierThreshold === null
           ? `No outlier test: too few points${sampleNote(sample)}.`
-          : `Red: |externally studentised residual| > ${diagnostics.outlierThreshold.toPrecision(3)} (Bonferroni-corrected t)${sampleNote(sample)}.`,
+          : `Red triangles: |externally studentised residual| > ${diagnostics.outlierThreshold.toPrecision(3)} (Bonferroni-corrected t)${sampleNote(sample)}.`,
       ],
     },
     layer: [
@@ -69,7 +77,7 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
       },
       {
         data: { values: points },
-        mark: { type: 'point', filled: true, size: 44 },
+        mark: { type: 'point', filled: true },
         encoding: {
           x: { field: 'time', type: 'quantitative', title: timeTitle(series.timeUnit) },
           y: { field: 'residual', type: 'quantitative', title: `Residual (${scale})` },
@@ -79,6 +87,14 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
             title: null,
             scale: { domain: ['within threshold', 'possible outlier'], range: [PALETTE.ink, PALETTE.alert] },
           },
+          shape: {
+            field: 'flag',
+            type: 'nominal',
+            title: null,
+            scale: { domain: ['within threshold', 'possible outlier'], range: ['circle', OUTLIER_SHAPE] },
+          },
+          size: { condition: { test: "datum.flag === 'possible outlier'", value: 110 }, value: 56 },
+
           tooltip: [
             { field: 'time', type: 'quantitative', format: TOOLTIP_FORMAT },
             { field: 'residual', type: 'quantitative', format: TOOLTIP_FORMAT },

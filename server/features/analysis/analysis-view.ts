@@ -1,5 +1,6 @@
 import { MIN_EXCLUSION_REASON_LENGTH } from '../../../shared/api/analyses.ts';
 import { analysisFigures } from '../../../shared/figures/analysis-figures.ts';
+import { figureDataTables } from '../../../shared/figures/figure-data-tables.ts';
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../../shared/figures/results-table.ts';
 import {
   formatInterval,
@@ -101,10 +102,18 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     numberCell(byKey.get([section, seriesId ?? '*', model ?? '-', quantity].join('|')));
   const figures = runFigures(run);
   const figureIds = new Set(figures.map((figure) => figure.id));
+  // Issue 17 §4: each figure's "data" table, from the same stored result as the figure.
+  const tables = figureDataTables(run.result, run.series, figures);
   const figure = (id: string) => {
     const found = figures.find((candidate) => candidate.id === id);
     return found
-      ? { id: found.id, title: found.title, description: found.description, group: found.group }
+      ? {
+          id: found.id,
+          title: found.title,
+          description: found.description,
+          group: found.group,
+          table: tables[id] ?? null,
+        }
       : null;
   };
   const study = run.study;
