@@ -41,9 +41,34 @@ function figure(value: DerivedFigure | null | undefined) {
   };
 }
 
-function seriesShelfLife(result: SeriesResult, conditions: ConditionShelfLife[] | null) {
-  if (conditions === null) return undefined;
-  const condition = conditions.find((candidate) => candidate.seriesIds.includes(result.id));
+/**
+ * Where each series stands in the Q1E result: its condition and, within it, its line, each the
+ * first one naming the series (as a search in order would find). Built once per document, so the
+ * lookup per series is constant and the document stays linear in the number of series.
+ */
+interface ShelfLifePlace {
+  condition: ConditionShelfLife;
+  line: NonNullable<ConditionShelfLife['result']>['lines'][number] | undefined;
+}
+
+function shelfLifePlaces(conditions: ConditionShelfLife[]): Map<string, ShelfLifePlace> {
+  const places = new Map<string, ShelfLifePlace>();
+  for (const condition of conditions) {
+    const lines = new Map<string, ShelfLifePlace['line']>();
+    for (const line of condition.result?.lines ?? []) {
+      for (const batch of line.batches) if (!lines.has(batch)) lines.set(batch, line);
+    }
+    for (const id of condition.seriesIds) {
+      if (!places.has(id)) places.set(id, { condition, line: lines.get(id) });
+    }
+  }
+  return places;
+}
+
+function seriesShelfLife(result: SeriesResult, places: Map<string, ShelfLifePlace> | null) {
+  if (places === null) return undefined;
+  const place = places.get(result.id);
+  const condition = place?.condition;
   if (!condition?.result) {
     return {
       estimate: null,
@@ -53,7 +78,7 @@ function seriesShelfLife(result: SeriesResult, conditions: ConditionShelfLife[] 
       reason: condition?.notApplicableReason ?? 'not evaluated',
     };
   }
-  const line = condition.result.lines.find((candidate) => candidate.batches.includes(result.id));
+  const line = place?.line;
   return {
     estimate: line?.shelfLife ?? null,
     status: line?.status ?? null,
@@ -63,7 +88,7 @@ function seriesShelfLife(result: SeriesResult, conditions: ConditionShelfLife[] 
   };
 }
 
-function seriesEntry(result: SeriesResult, conditions: ConditionShelfLife[] | null) {
+function seriesEntry(result: SeriesResult, places: Map<string, ShelfLifePlace> | null) {
   const analysis = result.analysis;
   const base = { id: result.id, batch: result.batch, temperatureC: result.temperatureC };
   if (!analysis) {
@@ -75,7 +100,7 @@ function seriesEntry(result: SeriesResult, conditions: ConditionShelfLife[] | nu
       error: result.error,
     };
   }
-  const shelfLife = seriesShelfLife(result, conditions);
+  const shelfLife = seriesShelfLife(result, places);
   return {
     ...base,
     n: analysis.n,
@@ -263,7 +288,13 @@ function shelfLifeEntries(conditions: ConditionShelfLife[] | null) {
   }));
 }
 
-export function fitDocument(analysis: DatasetAnalysis, context: FitDocumentContext) {
+/** The series entries in data-set order, each built only when asked for. */
+function* seriesEntries(analysis: DatasetAnalysis) {
+  const places = analysis.shelfLife === null ? null : shelfLifePlaces(analysis.shelfLife);
+  for (const result of analysis.series) yield seriesEntry(result, places);
+}
+
+function documentWith<Series>(analysis: DatasetAnalysis, context: FitDocumentContext, series: Series) {
   return {
     engineVersion: analysis.engineVersion,
     file: context.file,
@@ -271,13 +302,26 @@ export function fitDocument(analysis: DatasetAnalysis, context: FitDocumentConte
     timeUnit: context.timeUnit,
     valueUnit: context.valueUnit,
     confidenceLevel: analysis.confidenceLevel,
-    series: analysis.series.map((result) => seriesEntry(result, analysis.shelfLife)),
+    series,
     arrhenius: arrheniusEntry(analysis, context.temperatureColumnGiven),
     shelfLife: shelfLifeEntries(analysis.shelfLife),
     q1eDeclaration: analysis.q1eDeclaration,
     warnings: [...context.intakeWarnings, ...analysis.warnings.map((warning) => warning.message)],
     methodStatement: analysis.methodStatement,
   };
+}
+
+export function fitDocument(analysis: DatasetAnalysis, context: FitDocumentContext) {
+  return documentWith(analysis, context, [...seriesEntries(analysis)]);
+}
+
+/**
+ * The same document with its series still to come: `series` yields one entry at a time, so
+ * `--json` prints a large data set without holding the whole document and its text at once
+ * (`fit-json-output.ts`).
+ */
+export function fitDocumentStreamed(analysis: DatasetAnalysis, context: FitDocumentContext) {
+  return documentWith(analysis, context, seriesEntries(analysis));
 }
 
 export type FitDocument = ReturnType<typeof fitDocument>;

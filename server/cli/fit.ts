@@ -25,7 +25,8 @@ import { analyseDataset } from '../../shared/kinetics/analyse-dataset.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
 import { FileReadError } from '../features/intake/readers/file-read-error.ts';
 import { FIT_USAGE, type FitOptions, parseFitArguments } from './fit-arguments.ts';
-import { fitDocument } from './fit-document.ts';
+import { fitDocument, fitDocumentStreamed } from './fit-document.ts';
+import { jsonChunks } from './fit-json-output.ts';
 import { fitReport } from './fit-report.ts';
 import { loadSheets } from './load-sheets.ts';
 
@@ -35,6 +36,31 @@ const EXIT_BAD_INPUT = 2;
 function fail(messages: string[], code = EXIT_BAD_INPUT): never {
   for (const message of messages) process.stderr.write(`fit: ${message}\n`);
   process.exit(code);
+}
+
+/**
+ * Writes to standard output and resolves once the text is handed to the system: `process.exit`
+ * right after a large write to a pipe would otherwise cut the document short.
+ */
+function writeOut(text: string): Promise<void> {
+  return new Promise((resolve, reject) =>
+    process.stdout.write(text, (error) => (error ? reject(error) : resolve())),
+  );
+}
+
+/** The JSON document and a line break, written in pieces of about `JSON_PIECE` characters. */
+const JSON_PIECE = 1 << 20;
+
+async function writeJson(document: Record<string, unknown>): Promise<void> {
+  let piece = '';
+  for (const chunk of jsonChunks(document)) {
+    piece += chunk;
+    if (piece.length >= JSON_PIECE) {
+      await writeOut(piece);
+      piece = '';
+    }
+  }
+  await writeOut(`${piece}\n`);
 }
 
 function headerOf(sheet: SheetGrid, headerRow: number, column: string): string {
@@ -94,15 +120,16 @@ async function main(options: FitOptions): Promise<number> {
     ...(options.storageTemperature === undefined ? {} : { storageTemperatureC: options.storageTemperature }),
     q1e: options.q1e,
   });
-  const document = fitDocument(analysis, {
+  const context = {
     file: path.basename(options.file),
     sheet: mapping.data.sheet ?? sheets[0]?.name ?? '',
     timeUnit: mapping.data.timeUnit,
     valueUnit: mapping.data.valueUnit,
     temperatureColumnGiven: options.temperature !== undefined,
     intakeWarnings: intake.warnings.map((warning) => warning.text),
-  });
-  process.stdout.write(options.json ? `${JSON.stringify(document, null, 2)}\n` : fitReport(document));
+  };
+  if (options.json) await writeJson(fitDocumentStreamed(analysis, context));
+  else await writeOut(fitReport(fitDocument(analysis, context)));
   const analysed = analysis.series.filter((result) => result.analysis !== null).length;
   if (analysed === 0) {
     process.stderr.write('fit: no series could be analysed; see the reasons above.\n');

@@ -4,6 +4,9 @@
  * the wrong extension still opens. A CSV's one sheet is named after the file (without extension),
  * as spreadsheet programs do when they open it.
  *
+ * The workbook reader (and the ZIP, XML and zlib code under it) is loaded only when the file is a
+ * workbook, so reading a CSV does not pay for it at start-up.
+ *
  * Throws `FileReadError` (from the readers) or the file system's error (missing file).
  *
  * Example: `await loadSheets('tests/fixtures/veltrazine-stability.csv')` gives one grid named
@@ -13,7 +16,6 @@ import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { readCsv } from '../features/intake/readers/read-csv.ts';
-import { readWorkbook } from '../features/intake/readers/read-workbook.ts';
 
 const CONTAINER_SIGNATURES = [
   [0x50, 0x4b, 0x03, 0x04],
@@ -26,7 +28,9 @@ export async function loadSheets(file: string): Promise<SheetGrid[]> {
   const isContainer = CONTAINER_SIGNATURES.some((signature) =>
     signature.every((byte, index) => bytes[index] === byte),
   );
-  if (isContainer || extension === '.xlsx' || extension === '.xlsm' || extension === '.xls')
+  if (isContainer || extension === '.xlsx' || extension === '.xlsm' || extension === '.xls') {
+    const { readWorkbook } = await import('../features/intake/readers/read-workbook.ts');
     return readWorkbook(bytes);
+  }
   return readCsv(bytes, path.basename(file, path.extname(file)));
 }
