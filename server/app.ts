@@ -19,6 +19,7 @@ import { publicVerificationRoutes, verificationRoutes } from './features/verific
 import type { AppOptions, AppServices } from './platform/app-services.ts';
 import { createCsrf } from './platform/auth/csrf.ts';
 import { createAuthenticator } from './platform/auth/passport-setup.ts';
+import { sessionExtendRoutes, sessionTimeoutLocals } from './platform/auth/session-extend-routes.ts';
 import { createSessionStore } from './platform/auth/session-store.ts';
 import { parseRenderConfig } from './platform/config/render-config.ts';
 import type { TrustProxy } from './platform/config/trust-proxy.ts';
@@ -86,6 +87,7 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   app.set('view engine', 'hbs');
   app.set('views', views);
   app.locals.assets = readClientAssets();
+  app.locals.sessionTimeout = sessionTimeoutLocals(settings.idleMinutes);
 
   app.use(
     helmet({
@@ -146,6 +148,7 @@ export function createApp(database: DatabaseHandle, options: CreateAppOptions): 
   app.use(csrf.protect);
 
   app.use(authRoutes(services));
+  app.use(sessionExtendRoutes(services));
   app.use(pageRoutes(services));
   app.use(accountRoutes(services));
   app.use(userAdminRoutes(services));

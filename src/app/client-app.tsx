@@ -28,8 +28,12 @@ const ROUTES: { path: string; what: string; title: string | null; page: ReactNod
 export default function ClientApp() {
   return (
     <BrowserRouter basename="/app">
-      <div className="flex gap-8">
-        <nav aria-label="Section" className="w-48 shrink-0 text-sm">
+      {/* The side menu sits above the page when narrow (reflow at 320 px and at 200 % text). */}
+      <div className="flex flex-col gap-4 md:flex-row md:gap-8">
+        <nav
+          aria-label="Section"
+          className="flex flex-wrap gap-x-5 gap-y-1 text-sm md:block md:w-48 md:shrink-0"
+        >
           <NavLink
             to="/activity"
             className={({ isActive }) => (isActive ? 'font-semibold text-ledger' : 'text-ink')}
@@ -38,12 +42,14 @@ export default function ClientApp() {
           </NavLink>
           <NavLink
             to="/reports"
-            className={({ isActive }) => `mt-1 block ${isActive ? 'font-semibold text-ledger' : 'text-ink'}`}
+            className={({ isActive }) =>
+              `md:mt-1 md:block ${isActive ? 'font-semibold text-ledger' : 'text-ink'}`
+            }
           >
             Reports
           </NavLink>
         </nav>
-        <div className="flex-1">
+        <div className="min-w-0 flex-1">
           <Routes>
             {ROUTES.map(({ path, what, title, page }) => (
               <Route

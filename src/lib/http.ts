@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { noteSessionUse } from './session-activity.ts';
 
 /**
  * The client's one way to call the API: every fetcher in `features/<feature>/api` goes through
@@ -80,6 +81,9 @@ export async function fetchJson<Schema extends z.ZodType>(
     credentials: 'same-origin',
     ...(payload === undefined ? {} : { body: payload }),
   });
+  // The request rolled the session (unless it had ended, or the server failed): the sign-out
+  // warning counts anew.
+  if (response.status !== 401 && response.status < 500) noteSessionUse();
   if (!response.ok) {
     const refusal = errorBodySchema.safeParse(await response.json().catch(() => null));
     if (!refusal.success) throw new ApiError(response.status, `The server answered ${response.status}.`);

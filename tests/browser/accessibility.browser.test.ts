@@ -124,8 +124,20 @@ interface Violation {
   targets: string[];
 }
 
-/** Runs axe-core on the page as it stands and returns its violations, labelled with `label`. */
+/**
+ * Runs axe-core on the page as it stands, and the checks below, and returns their violations,
+ * labelled with `label`.
+ */
 async function audit(page: Page, label: string): Promise<Violation[]> {
+  return [
+    ...(await axeViolations(page, label)),
+    ...(await keyboardChecks(page, label)),
+    ...(await reflowChecks(page, label)),
+  ];
+}
+
+/** axe-core's violations of the WCAG 2.0/2.1 A and AA rules on the page as it stands. */
+async function axeViolations(page: Page, label: string): Promise<Violation[]> {
   if (!(await page.evaluate(() => 'axe' in window))) await page.evaluate(AXE_SOURCE);
   const found = await page.evaluate(async (tags: string[]) => {
     const axe = (window as unknown as { axe: { run: (...args: unknown[]) => Promise<AxeResults> } }).axe;
@@ -143,10 +155,131 @@ async function audit(page: Page, label: string): Promise<Violation[]> {
       targets: violation.nodes.map((node) => node.target.map(String).join(' ')),
     }));
   }, WCAG_TAGS);
-  return [
-    ...found.map((violation) => ({ page: label, ...violation })),
-    ...(await keyboardChecks(page, label)),
+  return found.map((violation) => ({ page: label, ...violation }));
+}
+
+/** The pages whose narrow and enlarged views are saved as screenshots, for a person to look at. */
+const SCREENSHOT_PAGES =
+  /^(analyst \/studies\/\d+|analyst \/analyses\/\d+|analyst \/app\/reports\/\d+|analyst \/uploads\/\d+\/map( \(imported\))?|reviewer \/audit|admin \/admin\/people|admin \/admin\/templates\/\d+\/edit|admin \/admin\/outbox|analyst \/temperature-logs)$/;
+
+/**
+ * Reflow (WCAG 1.4.10) and resize text (1.4.4), as issue 17 tests them: at a 320 CSS px wide
+ * viewport, and at 640 px with the root font size at 200 % (what 200 % text at 1280 px lays out
+ * like, since every size is in rem), the page must not scroll sideways —
+ * `documentElement.scrollWidth` at most `clientWidth` (+1 for rounding). A wide table may
+ * scroll inside its own focusable region; that does not widen the page. The offending elements
+ * named are those that stick out of the viewport while their parent does not (the first 8).
+ * Closed `<details>` are opened for the measurement. The page is put back as it was (viewport,
+ * font size, details) afterwards.
+ */
+async function reflowChecks(page: Page, label: string): Promise<Violation[]> {
+  const viewport = page.viewport() ?? { width: 1280, height: 900 };
+  const problems: Violation[] = [];
+  const layouts = [
+    {
+      rule: 'reflow-320px',
+      shot: 'reflow-320px',
+      width: 320,
+      fontSize: '',
+      help: 'No sideways scrolling at 320 CSS px',
+    },
+    {
+      rule: 'resize-text-200%',
+      shot: 'text-200pc-640px',
+      width: 640,
+      fontSize: '200%',
+      help: 'No sideways scrolling with 200 % text (640 px, root font size 200 %)',
+    },
   ];
+  for (const layout of layouts) {
+    await page.setViewport({ ...viewport, width: layout.width });
+    const overflow = await page.evaluate(async (fontSize: string) => {
+      document.documentElement.style.fontSize = fontSize;
+      // What a closed <details> holds is measured too (the analysis page's series).
+      for (const details of document.querySelectorAll('details:not([open])')) {
+        details.setAttribute('data-reflow-opened', '');
+        (details as HTMLDetailsElement).open = true;
+      }
+      // Two frames and a moment for islands that lay out on resize (the figures).
+      await new Promise((resolve) => requestAnimationFrame(() => requestAnimationFrame(resolve)));
+      await new Promise((resolve) => setTimeout(resolve, 150));
+      const root = document.documentElement;
+      const limit = root.clientWidth + 1;
+      const name = (element: Element) => {
+        const id = element.id ? `#${element.id}` : '';
+        const classes = [...element.classList]
+          .slice(0, 3)
+          .map((name) => `.${name}`)
+          .join('');
+        const text = (element.textContent ?? '').trim().replace(/\s+/g, ' ').slice(0, 40);
+        return `${element.tagName.toLowerCase()}${id}${classes} (right ${Math.round(element.getBoundingClientRect().right)} px) "${text}"`;
+      };
+      const sticksOut = (element: Element) => element.getBoundingClientRect().right > limit;
+      // Inside a region that scrolls (or clips) sideways of its own: the page does not widen.
+      // An absolutely placed element (an sr-only text) is clipped only from its containing
+      // block (the nearest positioned ancestor) upwards; a fixed one by none.
+      const scrollsWithin = (element: Element) => {
+        const position = getComputedStyle(element).position;
+        if (position === 'fixed') return false;
+        let up = element.parentElement;
+        if (position === 'absolute')
+          while (up && up !== document.body && getComputedStyle(up).position === 'static')
+            up = up.parentElement;
+        for (; up && up !== document.body; up = up.parentElement)
+          if (getComputedStyle(up).overflowX !== 'visible') return true;
+        return false;
+      };
+      const culprits: string[] = [];
+      if (root.scrollWidth > limit)
+        for (const element of document.body.querySelectorAll('*')) {
+          if (element.getClientRects().length === 0 || !sticksOut(element) || scrollsWithin(element))
+            continue;
+          const parent = element.parentElement;
+          if (parent && parent !== document.body && sticksOut(parent)) continue;
+          culprits.push(name(element));
+          if (culprits.length === 8) break;
+        }
+      // Text running out of a box that itself fits (an unbroken string): named by its element.
+      if (root.scrollWidth > limit && culprits.length === 0) {
+        const texts = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
+        const range = document.createRange();
+        for (let text = texts.nextNode(); text && culprits.length < 8; text = texts.nextNode()) {
+          const parent = text.parentElement;
+          if (!parent || !text.textContent?.trim()) continue;
+          if (getComputedStyle(parent).overflowX !== 'visible' || scrollsWithin(parent)) continue;
+          range.selectNodeContents(text);
+          if (range.getBoundingClientRect().right > limit) culprits.push(`text in ${name(parent)}`);
+        }
+      }
+      return { scrollWidth: root.scrollWidth, clientWidth: root.clientWidth, culprits };
+    }, layout.fontSize);
+    if (SCREENSHOT_PAGES.test(label)) {
+      // The top of the page, at most 5000 px of it (a long page is too large to capture whole).
+      const height = await page.evaluate(() => Math.min(document.documentElement.scrollHeight, 5_000));
+      await page.screenshot({
+        path: path.join(SCREENSHOT_DIR, `${layout.shot}-${label.replace(/[^A-Za-z0-9]+/g, '-')}.png`),
+        clip: { x: 0, y: 0, width: layout.width, height },
+        captureBeyondViewport: true,
+      });
+    }
+    await page.evaluate(() => {
+      document.documentElement.style.fontSize = '';
+      for (const details of document.querySelectorAll<HTMLDetailsElement>('details[data-reflow-opened]')) {
+        details.open = false;
+        details.removeAttribute('data-reflow-opened');
+      }
+    });
+    if (overflow.scrollWidth > overflow.clientWidth + 1)
+      problems.push({
+        page: label,
+        rule: layout.rule,
+        impact: 'serious',
+        help: `${layout.help}: scrollWidth ${overflow.scrollWidth} > clientWidth ${overflow.clientWidth}`,
+        targets: overflow.culprits,
+      });
+  }
+  await page.setViewport(viewport);
+  return problems;
 }
 
 /**
@@ -285,13 +418,37 @@ describe('WCAG 2.1 A and AA rules of axe-core on every page, as the role that us
       `<!doctype html><html lang="en"><head><title>Rateledger · Rateledger</title></head><body>
         <a href="/">Home</a><main id="main"><h1>Planted</h1>
         <ul role="tabpanel"><li>an item outside a list</li></ul>
-        <label for="field">Field</label><input id="field" type="text"></main></body></html>`,
+        <label for="field">Field</label><input id="field" type="text">
+        <p id="wide" style="width: 700px">A paragraph 700 px wide</p></main></body></html>`,
     );
     const found = await audit(page, 'planted');
     expect(found.map((violation) => violation.rule).sort()).toEqual(
-      ['focus-indicator', 'listitem', 'page-title', 'skip-link'].sort(),
+      ['focus-indicator', 'listitem', 'page-title', 'reflow-320px', 'resize-text-200%', 'skip-link'].sort(),
     );
+    expect(found.find((violation) => violation.rule === 'reflow-320px')?.targets).toEqual([
+      'p#wide (right 708 px) "A paragraph 700 px wide"',
+    ]);
     expect(found.find((violation) => violation.rule === 'listitem')?.targets).toEqual(['li']);
+    // An unbroken hash in a box that fits is named by its text; the same table in its own
+    // scrolling region is not a problem.
+    await page.setContent(
+      `<!doctype html><html lang="en"><head><title>Planted · Rateledger</title></head><body><main>
+        <p id="hash" style="width: 200px">${'0123456789abcdef'.repeat(4)}</p>
+        <div class="scroller" style="overflow-x: auto"><table><tr><td style="width: 900px">wide</td></tr></table></div>
+        </main></body></html>`,
+    );
+    const hash = await reflowChecks(page, 'planted hash');
+    expect(hash.map((violation) => [violation.rule, violation.targets])).toEqual([
+      ['reflow-320px', [`text in p#hash (right 208 px) "${'0123456789abcdef'.repeat(4).slice(0, 40)}"`]],
+      ['resize-text-200%', [`text in p#hash (right 208 px) "${'0123456789abcdef'.repeat(4).slice(0, 40)}"`]],
+    ]);
+    await page.setContent(
+      `<!doctype html><html lang="en"><head><title>Planted · Rateledger</title></head><body><main>
+        <p id="hash" style="width: 200px; word-break: break-all">${'0123456789abcdef'.repeat(4)}</p>
+        <div class="scroller" style="overflow-x: auto"><table><tr><td style="width: 900px">wide</td></tr></table></div>
+        </main></body></html>`,
+    );
+    expect(await reflowChecks(page, 'planted, fixed')).toEqual([]);
     await context.close();
   });
 
@@ -482,6 +639,65 @@ describe('WCAG 2.1 A and AA rules of axe-core on every page, as the role that us
     await context.close();
     expectNoViolations(all);
   }, 300_000);
+});
+
+describe('the warning before the idle sign-out (WCAG 2.2.1)', () => {
+  it('opens before the sign-out, passes the audit, and "Stay signed in" extends the session without losing the form', async () => {
+    const { context, page } = await signedInPage('analyst');
+    // The page's clock can be moved forward (the server's is left alone): Date.now() plus an
+    // offset, set before any script of the page runs.
+    await page.evaluateOnNewDocument(() => {
+      const realNow = Date.now.bind(Date);
+      let offset = 0;
+      Date.now = () => realNow() + offset;
+      (window as unknown as { skipClock: (ms: number) => void }).skipClock = (ms) => {
+        offset += ms;
+      };
+    });
+    await visit(page, '/studies/new');
+    await page.focus('#study-product');
+    await page.keyboard.type('Half-typed product name');
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe('study-product');
+    const timing = await page.$eval('#session-timeout', (dialog) => ({
+      signOutInMs: Number((dialog as HTMLElement).dataset.signOutInMs),
+      warnBeforeMs: Number((dialog as HTMLElement).dataset.warnBeforeMs),
+    }));
+    expect(timing).toEqual({ signOutInMs: 29 * 60_000, warnBeforeMs: 2 * 60_000 });
+    expect(await page.$eval('#session-timeout', (dialog) => (dialog as HTMLDialogElement).open)).toBe(false);
+
+    await page.evaluate(
+      (ms: number) => (window as unknown as { skipClock: (ms: number) => void }).skipClock(ms),
+      timing.signOutInMs - timing.warnBeforeMs + 1_000,
+    );
+    await page.waitForFunction(() => document.querySelector<HTMLDialogElement>('#session-timeout')?.open, {
+      timeout: 5_000,
+    });
+    const ui = locate(page);
+    await ui
+      .getByRole('dialog', { name: /You will be signed out in (2 minutes|1 minute|\d+ seconds)/ })
+      .waitFor();
+    expect(await page.evaluate(() => document.activeElement?.textContent)).toBe('Stay signed in');
+    await page.screenshot({ path: path.join(SCREENSHOT_DIR, 'accessibility-session-warning.png') });
+    // axe and reflow; not the field-focus checks, which cannot focus the fields a modal dialog
+    // makes inert.
+    const label = 'analyst /studies/new (sign-out warning)';
+    expectNoViolations([...(await axeViolations(page, label)), ...(await reflowChecks(page, label))]);
+
+    // Enter on the focused button: the session is extended, the dialog closes, focus and the
+    // typed text are back.
+    const [answer] = await Promise.all([
+      page.waitForResponse((response) => response.url().endsWith('/api/session/extend')),
+      page.keyboard.press('Enter'),
+    ]);
+    expect(answer.status()).toBe(200);
+    expect(await answer.json()).toEqual({ signOutInMs: 30 * 60_000 });
+    await page.waitForFunction(() => !document.querySelector<HTMLDialogElement>('#session-timeout')?.open);
+    expect(await page.evaluate(() => document.activeElement?.id)).toBe('study-product');
+    expect(await page.$eval('#study-product', (input) => (input as HTMLInputElement).value)).toBe(
+      'Half-typed product name',
+    );
+    await context.close();
+  });
 });
 
 /** Chooses the option of a labelled select whose text contains `text` (the header of a column). */

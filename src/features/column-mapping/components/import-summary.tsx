@@ -1,5 +1,6 @@
 import { useEffect, useRef, useState } from 'react';
 import type { ImportResponse } from '../../../../shared/api/uploads.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 import { RunAnalysisButton } from '../../studies/components/run-analysis-button.tsx';
 
 /** Long enough for the empty live region to be in the accessibility tree before it is filled. */
@@ -33,37 +34,39 @@ export function ImportSummary({ result, studyId }: { result: ImportResponse; stu
       </h2>
       <p className="mt-1 text-sm text-ink-muted">
         {result.pointCount} points in {result.series.length} series · SHA-256{' '}
-        <span className="font-mono text-xs">{result.sha256}</span>
+        <span className="break-all font-mono text-xs">{result.sha256}</span>
         {result.savedMappingId !== null && ' · mapping saved for the next file of this layout'}
       </p>
-      <table className="mt-4 w-full border-collapse text-sm">
-        <thead>
-          <tr className="border-b border-rule text-left">
-            <th className="py-1 pr-4">Series</th>
-            <th className="py-1 pr-4">Batch</th>
-            <th className="py-1 pr-4 text-right">Temperature</th>
-            <th className="py-1 pr-4 text-right">Points</th>
-            <th className="py-1 pr-4 text-right">Times</th>
-            <th className="py-1">Span</th>
-          </tr>
-        </thead>
-        <tbody>
-          {result.series.map((series) => (
-            <tr key={series.id} className="border-b border-rule/60">
-              <td className="py-1 pr-4 font-semibold">{series.id}</td>
-              <td className="py-1 pr-4">{series.batch ?? '—'}</td>
-              <td className="py-1 pr-4 text-right">
-                {series.temperatureC === undefined ? '—' : `${series.temperatureC} °C`}
-              </td>
-              <td className="py-1 pr-4 text-right tabular-nums">{series.points}</td>
-              <td className="py-1 pr-4 text-right tabular-nums">{series.distinctTimes}</td>
-              <td className="py-1 tabular-nums">
-                {series.firstTime}–{series.lastTime} {series.timeUnit}
-              </td>
+      <TableRegion label="Series imported" className="mt-4">
+        <table className="w-full border-collapse text-sm">
+          <thead>
+            <tr className="border-b border-rule text-left">
+              <th className="py-1 pr-4">Series</th>
+              <th className="py-1 pr-4">Batch</th>
+              <th className="py-1 pr-4 text-right">Temperature</th>
+              <th className="py-1 pr-4 text-right">Points</th>
+              <th className="py-1 pr-4 text-right">Times</th>
+              <th className="py-1">Span</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {result.series.map((series) => (
+              <tr key={series.id} className="border-b border-rule/60">
+                <td className="py-1 pr-4 font-semibold">{series.id}</td>
+                <td className="py-1 pr-4">{series.batch ?? '—'}</td>
+                <td className="py-1 pr-4 text-right">
+                  {series.temperatureC === undefined ? '—' : `${series.temperatureC} °C`}
+                </td>
+                <td className="py-1 pr-4 text-right tabular-nums">{series.points}</td>
+                <td className="py-1 pr-4 text-right tabular-nums">{series.distinctTimes}</td>
+                <td className="py-1 tabular-nums">
+                  {series.firstTime}–{series.lastTime} {series.timeUnit}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </TableRegion>
       {result.warnings.length > 0 && (
         <ul className="mt-3 space-y-1 text-sm text-ink-muted">
           {result.warnings.map((warning) => (

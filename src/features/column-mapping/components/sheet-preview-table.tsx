@@ -1,5 +1,6 @@
 import type { SheetPreview } from '../../../../shared/api/uploads.ts';
 import { columnLetter } from '../../../../shared/intake/cell-reference.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 
 export interface ColumnRoles {
   [columnIndex: number]: string;
@@ -29,7 +30,10 @@ export function SheetPreviewTable({
 }) {
   const letters = Array.from({ length: sheet.columnCount }, (_, index) => columnLetter(index));
   return (
-    <div className="overflow-x-auto rounded-md border border-rule bg-white">
+    <TableRegion
+      label={`First rows of sheet ${sheet.name}`}
+      className="rounded-md border border-rule bg-white"
+    >
       <table className="w-full border-collapse text-sm" aria-label={`First rows of sheet ${sheet.name}`}>
         <thead>
           <tr className="bg-paper text-xs text-ink-muted">
@@ -108,6 +112,6 @@ export function SheetPreviewTable({
         {sheet.merges.length > 0 &&
           ` Merged cells: ${sheet.merges.join(', ')} (read as one value in their first cell).`}
       </p>
-    </div>
+    </TableRegion>
   );
 }

@@ -1,4 +1,5 @@
 import { Link, useParams } from 'react-router';
+import { TableRegion } from '../../../components/table-region.tsx';
 import { useDocumentTitle } from '../../../lib/document-title.ts';
 import { useMe } from '../../session/api/get-me.ts';
 import { useCreateReportVersion } from '../api/create-report-version.ts';
@@ -80,114 +81,116 @@ export function ReportDetail() {
         </p>
       )}
 
-      <table className="mt-2 w-full rounded-md border border-rule bg-white text-sm">
-        <thead>
-          <tr className="border-b border-rule text-left">
-            <th className="px-2 py-1">Version</th>
-            <th className="px-2 py-1">Render</th>
-            <th className="px-2 py-1">Review</th>
-            <th className="px-2 py-1">Paper</th>
-            <th className="px-2 py-1">Pages</th>
-            <th className="px-2 py-1">Requested</th>
-            <th className="px-2 py-1">Finished</th>
-            <th className="px-2 py-1">Output</th>
-          </tr>
-        </thead>
-        <tbody>
-          {[...data.versions].reverse().map((version) => (
-            <tr
-              key={version.versionNumber}
-              className="border-b border-rule/50 align-top"
-              data-version={version.versionNumber}
-            >
-              <td className="px-2 py-1.5 tabular-nums">
-                v{version.versionNumber}
-                <div className="text-xs text-ink-muted">
-                  analysis {version.analysisRunId} · template v{version.templateVersionNumber}
-                </div>
-              </td>
-              <td className="px-2 py-1.5">
-                <RenderStatusBadge status={version.renderStatus} />
-                {version.renderAttempts > 1 && (
-                  <div className="text-xs text-ink-muted">{version.renderAttempts} attempts</div>
-                )}
-                {version.failureReason && (
-                  <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>
-                )}
-              </td>
-              <td className="px-2 py-1.5">
-                <ReviewStandingBadge standing={version.reviewState} supersededBy={version.supersededBy} />
-              </td>
-              <td className="px-2 py-1.5">{PAPER_NAMES[version.paperSize]}</td>
-              <td className="px-2 py-1.5 tabular-nums">
-                {version.pageCount ?? '—'}
-                {version.pdfByteSize !== null && (
-                  <div className="text-xs text-ink-muted">{byteSize(version.pdfByteSize)}</div>
-                )}
-              </td>
-              <td className="px-2 py-1.5 tabular-nums">
-                {utcTime(version.createdAt)}
-                <div className="text-xs text-ink-muted">{version.requestedBy.fullName}</div>
-              </td>
-              <td className="px-2 py-1.5 tabular-nums">{utcTime(version.finishedAt)}</td>
-              <td className="px-2 py-1.5">
-                {version.pdfUrl && version.htmlUrl ? (
-                  <div className="flex flex-col gap-0.5">
-                    {version.signedPdfSha256 ? (
-                      <>
-                        <a className="font-semibold text-ledger underline" href={version.pdfUrl} download>
-                          Download signed PDF
-                        </a>
-                        {version.renditionUrl && (
-                          <a className="text-ledger underline" href={version.renditionUrl} download>
-                            Unsigned rendition (PDF, not the signed record)
-                          </a>
-                        )}
-                      </>
-                    ) : (
-                      <a className="text-ledger underline" href={version.pdfUrl} download>
-                        Download PDF (unsigned)
-                      </a>
-                    )}
-                    <a
-                      className="font-semibold text-ledger underline"
-                      href={`/review/reports/${data.id}/versions/${version.versionNumber}`}
-                    >
-                      Review and signing →
-                    </a>
-                    <a
-                      className="text-ledger underline"
-                      href={version.htmlUrl}
-                      target="_blank"
-                      rel="noopener noreferrer"
-                    >
-                      Preview (HTML)
-                    </a>
-                    {version.pdfSha256 && (
-                      <span
-                        className="font-mono text-[10px] text-ink-muted"
-                        title="SHA-256 of the stored PDF"
-                      >
-                        SHA-256 {version.pdfSha256.slice(0, 16)}…
-                      </span>
-                    )}
-                    {version.signedPdfSha256 && (
-                      <span
-                        className="font-mono text-[10px] text-ink-muted"
-                        title="SHA-256 of the signed PDF"
-                      >
-                        signed SHA-256 {version.signedPdfSha256.slice(0, 16)}…
-                      </span>
-                    )}
-                  </div>
-                ) : (
-                  '—'
-                )}
-              </td>
+      <TableRegion label="Each version of this report" className="mt-2">
+        <table className="w-full rounded-md border border-rule bg-white text-sm">
+          <thead>
+            <tr className="border-b border-rule text-left">
+              <th className="px-2 py-1">Version</th>
+              <th className="px-2 py-1">Render</th>
+              <th className="px-2 py-1">Review</th>
+              <th className="px-2 py-1">Paper</th>
+              <th className="px-2 py-1">Pages</th>
+              <th className="px-2 py-1">Requested</th>
+              <th className="px-2 py-1">Finished</th>
+              <th className="px-2 py-1">Output</th>
             </tr>
-          ))}
-        </tbody>
-      </table>
+          </thead>
+          <tbody>
+            {[...data.versions].reverse().map((version) => (
+              <tr
+                key={version.versionNumber}
+                className="border-b border-rule/50 align-top"
+                data-version={version.versionNumber}
+              >
+                <td className="px-2 py-1.5 tabular-nums">
+                  v{version.versionNumber}
+                  <div className="text-xs text-ink-muted">
+                    analysis {version.analysisRunId} · template v{version.templateVersionNumber}
+                  </div>
+                </td>
+                <td className="px-2 py-1.5">
+                  <RenderStatusBadge status={version.renderStatus} />
+                  {version.renderAttempts > 1 && (
+                    <div className="text-xs text-ink-muted">{version.renderAttempts} attempts</div>
+                  )}
+                  {version.failureReason && (
+                    <p className="mt-1 max-w-md text-xs text-alert">{version.failureReason}</p>
+                  )}
+                </td>
+                <td className="px-2 py-1.5">
+                  <ReviewStandingBadge standing={version.reviewState} supersededBy={version.supersededBy} />
+                </td>
+                <td className="px-2 py-1.5">{PAPER_NAMES[version.paperSize]}</td>
+                <td className="px-2 py-1.5 tabular-nums">
+                  {version.pageCount ?? '—'}
+                  {version.pdfByteSize !== null && (
+                    <div className="text-xs text-ink-muted">{byteSize(version.pdfByteSize)}</div>
+                  )}
+                </td>
+                <td className="px-2 py-1.5 tabular-nums">
+                  {utcTime(version.createdAt)}
+                  <div className="text-xs text-ink-muted">{version.requestedBy.fullName}</div>
+                </td>
+                <td className="px-2 py-1.5 tabular-nums">{utcTime(version.finishedAt)}</td>
+                <td className="px-2 py-1.5">
+                  {version.pdfUrl && version.htmlUrl ? (
+                    <div className="flex flex-col gap-0.5">
+                      {version.signedPdfSha256 ? (
+                        <>
+                          <a className="font-semibold text-ledger underline" href={version.pdfUrl} download>
+                            Download signed PDF
+                          </a>
+                          {version.renditionUrl && (
+                            <a className="text-ledger underline" href={version.renditionUrl} download>
+                              Unsigned rendition (PDF, not the signed record)
+                            </a>
+                          )}
+                        </>
+                      ) : (
+                        <a className="text-ledger underline" href={version.pdfUrl} download>
+                          Download PDF (unsigned)
+                        </a>
+                      )}
+                      <a
+                        className="font-semibold text-ledger underline"
+                        href={`/review/reports/${data.id}/versions/${version.versionNumber}`}
+                      >
+                        Review and signing →
+                      </a>
+                      <a
+                        className="text-ledger underline"
+                        href={version.htmlUrl}
+                        target="_blank"
+                        rel="noopener noreferrer"
+                      >
+                        Preview (HTML)
+                      </a>
+                      {version.pdfSha256 && (
+                        <span
+                          className="font-mono text-[10px] text-ink-muted"
+                          title="SHA-256 of the stored PDF"
+                        >
+                          SHA-256 {version.pdfSha256.slice(0, 16)}…
+                        </span>
+                      )}
+                      {version.signedPdfSha256 && (
+                        <span
+                          className="font-mono text-[10px] text-ink-muted"
+                          title="SHA-256 of the signed PDF"
+                        >
+                          signed SHA-256 {version.signedPdfSha256.slice(0, 16)}…
+                        </span>
+                      )}
+                    </div>
+                  ) : (
+                    '—'
+                  )}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </TableRegion>
       <p className="mt-4 text-xs text-ink-muted">
         The estimates in a report support, and do not replace, the judgement of qualified people, applicable
         guidance and your laboratory's approved procedures.

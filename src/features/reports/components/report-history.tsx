@@ -5,6 +5,7 @@ import {
   type ReportListQuery,
   reportListQuerySchema,
 } from '../../../../shared/api/reports.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 import { useReportFilterOptions } from '../api/get-report-filter-options.ts';
 import { useReportList } from '../api/list-reports.ts';
 import { RenderStatusBadge, ReviewStandingBadge, utcTime } from './render-status.tsx';
@@ -49,10 +50,10 @@ export function ReportHistory() {
         aria-label="Filter reports"
         onSubmit={(event) => event.preventDefault()}
       >
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>Status</span>
           <select
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.status ?? ''}
             onChange={(event) => setFilter('status', event.target.value)}
           >
@@ -64,10 +65,10 @@ export function ReportHistory() {
             ))}
           </select>
         </label>
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>Review</span>
           <select
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.review ?? ''}
             onChange={(event) => setFilter('review', event.target.value)}
           >
@@ -79,10 +80,10 @@ export function ReportHistory() {
             ))}
           </select>
         </label>
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>Study</span>
           <select
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.studyId ?? ''}
             onChange={(event) => setFilter('studyId', event.target.value)}
           >
@@ -94,10 +95,10 @@ export function ReportHistory() {
             ))}
           </select>
         </label>
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>Author</span>
           <select
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.authorId ?? ''}
             onChange={(event) => setFilter('authorId', event.target.value)}
           >
@@ -109,20 +110,20 @@ export function ReportHistory() {
             ))}
           </select>
         </label>
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>Created from</span>
           <input
             type="date"
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.from ?? ''}
             onChange={(event) => setFilter('from', event.target.value)}
           />
         </label>
-        <label className="flex flex-col">
+        <label className="flex min-w-0 max-w-full flex-col">
           <span>to</span>
           <input
             type="date"
-            className="rounded-sm border border-rule bg-white px-2 py-1"
+            className="max-w-full rounded-sm border border-rule bg-white px-2 py-1"
             value={query.to ?? ''}
             onChange={(event) => setFilter('to', event.target.value)}
           />
@@ -164,56 +165,58 @@ export function ReportHistory() {
           </p>
         )}
         {list.data && list.data.items.length > 0 && (
-          <table className="w-full text-sm">
-            <thead>
-              <tr className="border-b border-rule text-left">
-                <th className="py-1 pr-3">Report</th>
-                <th className="py-1 pr-3">Title and study</th>
-                <th className="py-1 pr-3">Author</th>
-                <th className="py-1 pr-3">Created</th>
-                <th className="py-1 pr-3">Latest version</th>
-                <th className="py-1">PDF</th>
-              </tr>
-            </thead>
-            <tbody>
-              {list.data.items.map((report) => (
-                <tr key={report.id} className="border-b border-rule/50 align-top">
-                  <td className="py-1.5 pr-3 font-semibold tabular-nums">
-                    <Link className="text-ledger underline" to={`/reports/${report.id}`}>
-                      {report.reportNumber}
-                    </Link>
-                    {report.retired && (
-                      <span className="ml-1 rounded-sm bg-alert/10 px-1 text-xs font-normal text-alert">
-                        retired
-                      </span>
-                    )}
-                  </td>
-                  <td className="py-1.5 pr-3">
-                    {report.title}
-                    <div className="text-xs text-ink-muted">{report.study.title}</div>
-                  </td>
-                  <td className="py-1.5 pr-3">{report.author.fullName}</td>
-                  <td className="py-1.5 pr-3 tabular-nums">{utcTime(report.createdAt)}</td>
-                  <td className="py-1.5 pr-3">
-                    v{report.latest.versionNumber} <RenderStatusBadge status={report.latest.renderStatus} />{' '}
-                    <ReviewStandingBadge standing={report.latest.reviewState} />
-                    {report.versionCount > 1 && (
-                      <span className="ml-1 text-xs text-ink-muted">({report.versionCount} versions)</span>
-                    )}
-                  </td>
-                  <td className="py-1.5">
-                    {report.latest.pdfUrl ? (
-                      <a className="text-ledger underline" href={report.latest.pdfUrl} download>
-                        {report.latest.reviewState === 'signed' ? 'Download signed PDF' : 'Download'}
-                      </a>
-                    ) : (
-                      '—'
-                    )}
-                  </td>
+          <TableRegion label="Reports">
+            <table className="w-full text-sm">
+              <thead>
+                <tr className="border-b border-rule text-left">
+                  <th className="py-1 pr-3">Report</th>
+                  <th className="py-1 pr-3">Title and study</th>
+                  <th className="py-1 pr-3">Author</th>
+                  <th className="py-1 pr-3">Created</th>
+                  <th className="py-1 pr-3">Latest version</th>
+                  <th className="py-1">PDF</th>
                 </tr>
-              ))}
-            </tbody>
-          </table>
+              </thead>
+              <tbody>
+                {list.data.items.map((report) => (
+                  <tr key={report.id} className="border-b border-rule/50 align-top">
+                    <td className="py-1.5 pr-3 font-semibold tabular-nums">
+                      <Link className="text-ledger underline" to={`/reports/${report.id}`}>
+                        {report.reportNumber}
+                      </Link>
+                      {report.retired && (
+                        <span className="ml-1 rounded-sm bg-alert/10 px-1 text-xs font-normal text-alert">
+                          retired
+                        </span>
+                      )}
+                    </td>
+                    <td className="py-1.5 pr-3">
+                      {report.title}
+                      <div className="text-xs text-ink-muted">{report.study.title}</div>
+                    </td>
+                    <td className="py-1.5 pr-3">{report.author.fullName}</td>
+                    <td className="py-1.5 pr-3 tabular-nums">{utcTime(report.createdAt)}</td>
+                    <td className="py-1.5 pr-3">
+                      v{report.latest.versionNumber} <RenderStatusBadge status={report.latest.renderStatus} />{' '}
+                      <ReviewStandingBadge standing={report.latest.reviewState} />
+                      {report.versionCount > 1 && (
+                        <span className="ml-1 text-xs text-ink-muted">({report.versionCount} versions)</span>
+                      )}
+                    </td>
+                    <td className="py-1.5">
+                      {report.latest.pdfUrl ? (
+                        <a className="text-ledger underline" href={report.latest.pdfUrl} download>
+                          {report.latest.reviewState === 'signed' ? 'Download signed PDF' : 'Download'}
+                        </a>
+                      ) : (
+                        '—'
+                      )}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </TableRegion>
         )}
         {list.data && list.data.total > 0 && (
           <nav aria-label="Pages" className="mt-3 flex items-center gap-3 text-sm">

@@ -1,5 +1,6 @@
 import { type FormEvent, useState } from 'react';
 import { type PdfVerification, VERIFY_UPLOAD_LIMIT_BYTES } from '../../../../shared/api/review.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 import { useVerifyPdf } from '../api/verify-pdf.ts';
 
 const LIMIT_MB = VERIFY_UPLOAD_LIMIT_BYTES / (1024 * 1024);
@@ -96,26 +97,28 @@ export default function VerifyUpload() {
             </dd>
           </dl>
           {result.record && result.record.signatures.length > 0 && (
-            <table className="mt-3 w-full text-ink">
-              <thead>
-                <tr className="border-b border-rule text-left">
-                  <th className="py-1 pr-3">Signed by</th>
-                  <th className="py-1 pr-3">Meaning</th>
-                  <th className="py-1 pr-3">Date and time</th>
-                  <th className="py-1">Comment</th>
-                </tr>
-              </thead>
-              <tbody>
-                {result.record.signatures.map((signature) => (
-                  <tr key={signature.signedAt + signature.signerName} className="border-b border-rule/50">
-                    <td className="py-1 pr-3 font-semibold">{signature.signerName}</td>
-                    <td className="py-1 pr-3">{signature.meaning}</td>
-                    <td className="py-1 pr-3 tabular-nums">{signature.signedAtText}</td>
-                    <td className="py-1">{signature.comment ?? ''}</td>
+            <TableRegion label="Signatures of the PDF" className="mt-3">
+              <table className="w-full text-ink">
+                <thead>
+                  <tr className="border-b border-rule text-left">
+                    <th className="py-1 pr-3">Signed by</th>
+                    <th className="py-1 pr-3">Meaning</th>
+                    <th className="py-1 pr-3">Date and time</th>
+                    <th className="py-1">Comment</th>
                   </tr>
-                ))}
-              </tbody>
-            </table>
+                </thead>
+                <tbody>
+                  {result.record.signatures.map((signature) => (
+                    <tr key={signature.signedAt + signature.signerName} className="border-b border-rule/50">
+                      <td className="py-1 pr-3 font-semibold">{signature.signerName}</td>
+                      <td className="py-1 pr-3">{signature.meaning}</td>
+                      <td className="py-1 pr-3 tabular-nums">{signature.signedAtText}</td>
+                      <td className="py-1">{signature.comment ?? ''}</td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </TableRegion>
           )}
         </section>
       )}

@@ -165,8 +165,9 @@ export function TemplateEditor({ templateId }: { templateId: number }) {
 
   return (
     <div className="relative left-1/2 w-[96vw] max-w-[1680px] -translate-x-1/2">
-      <div className="grid gap-4 xl:grid-cols-[270px_minmax(0,1fr)_minmax(0,1fr)]">
-        <div className="h-[680px]">
+      {/* One column below xl, never wider than the screen (reflow at 320 px and at 200 % text). */}
+      <div className="grid grid-cols-[minmax(0,1fr)] gap-4 xl:grid-cols-[270px_minmax(0,1fr)_minmax(0,1fr)]">
+        <div className="h-[680px] min-w-0">
           <ReferencePanel
             variables={editor.data.variables}
             helpers={editor.data.helpers}

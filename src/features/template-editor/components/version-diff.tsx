@@ -1,4 +1,5 @@
 import type { DiffPart, TemplateDiffResponse } from '../../../../shared/api/templates.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 
 const LINE_CLASS = {
   added: 'bg-ledger-light text-ink',
@@ -17,32 +18,34 @@ function PartDiff({ part }: { part: DiffPart }) {
           {part.added} −{part.removed}
         </span>
       </h4>
-      <table className="mt-1 w-full border-collapse font-mono text-xs">
-        <tbody>
-          {part.hunks.map((hunk) => [
-            <tr key={`${hunk.oldStart}-${hunk.newStart}`} className="bg-paper text-ink-muted">
-              <td colSpan={4} className="px-2 py-0.5">
-                @@ line {hunk.oldStart} → line {hunk.newStart}
-              </td>
-            </tr>,
-            ...hunk.lines.map((line, index) => (
-              <tr
-                // biome-ignore lint/suspicious/noArrayIndexKey: diff lines have no identity beyond their place
-                key={`${hunk.oldStart}-${hunk.newStart}-${index}`}
-                className={LINE_CLASS[line.kind]}
-                data-kind={line.kind}
-              >
-                <td className="w-10 select-none px-1 text-right text-ink-muted">{line.oldNumber ?? ''}</td>
-                <td className="w-10 select-none px-1 text-right text-ink-muted">{line.newNumber ?? ''}</td>
-                <td className="w-4 select-none text-center" aria-label={line.kind}>
-                  {SIGN[line.kind]}
+      <TableRegion label={`Lines changed in ${part.label}`} className="mt-1">
+        <table className="w-full border-collapse font-mono text-xs">
+          <tbody>
+            {part.hunks.map((hunk) => [
+              <tr key={`${hunk.oldStart}-${hunk.newStart}`} className="bg-paper text-ink-muted">
+                <td colSpan={4} className="px-2 py-0.5">
+                  @@ line {hunk.oldStart} → line {hunk.newStart}
                 </td>
-                <td className="whitespace-pre-wrap break-all px-1">{line.text}</td>
-              </tr>
-            )),
-          ])}
-        </tbody>
-      </table>
+              </tr>,
+              ...hunk.lines.map((line, index) => (
+                <tr
+                  // biome-ignore lint/suspicious/noArrayIndexKey: diff lines have no identity beyond their place
+                  key={`${hunk.oldStart}-${hunk.newStart}-${index}`}
+                  className={LINE_CLASS[line.kind]}
+                  data-kind={line.kind}
+                >
+                  <td className="w-10 select-none px-1 text-right text-ink-muted">{line.oldNumber ?? ''}</td>
+                  <td className="w-10 select-none px-1 text-right text-ink-muted">{line.newNumber ?? ''}</td>
+                  <td className="w-4 select-none text-center" aria-label={line.kind}>
+                    {SIGN[line.kind]}
+                  </td>
+                  <td className="whitespace-pre-wrap break-all px-1">{line.text}</td>
+                </tr>
+              )),
+            ])}
+          </tbody>
+        </table>
+      </TableRegion>
     </section>
   );
 }

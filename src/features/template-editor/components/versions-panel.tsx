@@ -1,5 +1,6 @@
 import { type ReactNode, useState } from 'react';
 import type { TemplateSummary } from '../../../../shared/api/templates.ts';
+import { TableRegion } from '../../../components/table-region.tsx';
 import { useTemplateDiff } from '../api/get-template-diff.ts';
 import { VersionDiff } from './version-diff.tsx';
 
@@ -45,80 +46,82 @@ export function VersionsPanel({
         reason, recorded in the audit trail. Report versions rendered before keep the template version they
         were printed with.
       </p>
-      <table className="mt-3 w-full border-collapse text-sm">
-        <thead>
-          <tr className="border-b border-rule text-left">
-            <th scope="col" className="px-2 py-1">
-              Version
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Note
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Created
-            </th>
-            <th scope="col" className="px-2 py-1">
-              SHA-256
-            </th>
-            <th scope="col" className="px-2 py-1">
-              Actions
-            </th>
-          </tr>
-        </thead>
-        <tbody>
-          {versions.map((version) => {
-            const rollback = published !== null && version.versionNumber < published;
-            const action = rollback
-              ? `Roll back to version ${version.versionNumber}`
-              : `Publish version ${version.versionNumber}`;
-            return (
-              <tr
-                key={version.id}
-                className="border-b border-rule/60 align-top"
-                data-version={version.versionNumber}
-              >
-                <td className="px-2 py-1.5 font-semibold">
-                  {version.versionNumber}
-                  {version.published && (
-                    <span className="ml-2 rounded-sm bg-ledger px-1.5 py-0.5 text-xs font-semibold uppercase tracking-wider text-white">
-                      Published
-                    </span>
-                  )}
-                  {version.id === baseVersionId && (
-                    <span className="ml-2 text-xs text-ink-muted">(in the editor)</span>
-                  )}
-                </td>
-                <td className="px-2 py-1.5">{version.note}</td>
-                <td className="px-2 py-1.5 text-ink-muted">
-                  {version.createdBy}
-                  <br />
-                  {when(version.createdAt)}
-                </td>
-                <td className="px-2 py-1.5 font-mono text-xs" title={version.sha256}>
-                  {version.sha256.slice(0, 12)}…
-                </td>
-                <td className="px-2 py-1.5">
-                  <div className="flex flex-wrap gap-2">
-                    <button type="button" className="underline" onClick={() => onOpen(version.id)}>
-                      Open in editor
-                    </button>
-                    {!version.published && (
-                      <button
-                        type="button"
-                        disabled={publishing}
-                        className="rounded-sm border border-ledger px-2 py-0.5 font-semibold text-ledger disabled:opacity-60"
-                        onClick={() => onPublish(version.id)}
-                      >
-                        {action}
-                      </button>
+      <TableRegion label="Each saved version of the template" className="mt-3">
+        <table className="w-full border-collapse text-sm">
+          <thead>
+            <tr className="border-b border-rule text-left">
+              <th scope="col" className="px-2 py-1">
+                Version
+              </th>
+              <th scope="col" className="px-2 py-1">
+                Note
+              </th>
+              <th scope="col" className="px-2 py-1">
+                Created
+              </th>
+              <th scope="col" className="px-2 py-1">
+                SHA-256
+              </th>
+              <th scope="col" className="px-2 py-1">
+                Actions
+              </th>
+            </tr>
+          </thead>
+          <tbody>
+            {versions.map((version) => {
+              const rollback = published !== null && version.versionNumber < published;
+              const action = rollback
+                ? `Roll back to version ${version.versionNumber}`
+                : `Publish version ${version.versionNumber}`;
+              return (
+                <tr
+                  key={version.id}
+                  className="border-b border-rule/60 align-top"
+                  data-version={version.versionNumber}
+                >
+                  <td className="px-2 py-1.5 font-semibold">
+                    {version.versionNumber}
+                    {version.published && (
+                      <span className="ml-2 rounded-sm bg-ledger px-1.5 py-0.5 text-xs font-semibold uppercase tracking-wider text-white">
+                        Published
+                      </span>
                     )}
-                  </div>
-                </td>
-              </tr>
-            );
-          })}
-        </tbody>
-      </table>
+                    {version.id === baseVersionId && (
+                      <span className="ml-2 text-xs text-ink-muted">(in the editor)</span>
+                    )}
+                  </td>
+                  <td className="px-2 py-1.5">{version.note}</td>
+                  <td className="px-2 py-1.5 text-ink-muted">
+                    {version.createdBy}
+                    <br />
+                    {when(version.createdAt)}
+                  </td>
+                  <td className="px-2 py-1.5 font-mono text-xs" title={version.sha256}>
+                    {version.sha256.slice(0, 12)}…
+                  </td>
+                  <td className="px-2 py-1.5">
+                    <div className="flex flex-wrap gap-2">
+                      <button type="button" className="underline" onClick={() => onOpen(version.id)}>
+                        Open in editor
+                      </button>
+                      {!version.published && (
+                        <button
+                          type="button"
+                          disabled={publishing}
+                          className="rounded-sm border border-ledger px-2 py-0.5 font-semibold text-ledger disabled:opacity-60"
+                          onClick={() => onPublish(version.id)}
+                        >
+                          {action}
+                        </button>
+                      )}
+                    </div>
+                  </td>
+                </tr>
+              );
+            })}
+          </tbody>
+        </table>
+      </TableRegion>
       {confirmForm && <div className="mt-3">{confirmForm}</div>}
 
       {versions.length > 1 && (
