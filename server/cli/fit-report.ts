@@ -11,6 +11,7 @@
  * Example: `formatNumber(0.000123456)` is '1.235e-4'; `formatNumber(null)` is '—'.
  */
 
+import { inTimeUnit } from '../../shared/figures/time-unit-words.ts';
 import type { ModelAveragedFigure } from '../../shared/kinetics/model-averaging.ts';
 import type { PlausibleLawFigures } from '../../shared/kinetics/series-analysis.ts';
 import type { FitDocument } from './fit-document.ts';
@@ -137,7 +138,10 @@ function seriesBlock(entry: SeriesEntry, confidence: string, timeUnit: string): 
   if ('plausible' in entry && entry.plausible) lines.push(...plausibleBlock(entry.plausible, timeUnit));
   if (entry.shelfLife) {
     const { estimate, model, line } = entry.shelfLife;
-    const basis = model === null ? entry.shelfLife.reason : `model ${model}, line ${line ?? '—'}`;
+    const basis =
+      model === null
+        ? inTimeUnit(entry.shelfLife.reason ?? '', timeUnit)
+        : `model ${model}, line ${line ?? '—'}`;
     lines.push(
       `  ICH Q1E statistical estimate of its line: ${estimate === null ? 'not reached' : `${formatNumber(estimate)} ${timeUnit}`} (${basis}; the proposal is per condition, below)`,
     );
@@ -220,7 +224,8 @@ export function fitReport(document: FitDocument): string {
     lines.push(
       `  ${condition.seriesIds.join(', ')}; scale ${condition.transform}; model ${condition.model ?? '—'}`,
     );
-    lines.push(`  ${condition.notApplicableReason ?? condition.reason ?? ''}`);
+    // The engine's sentence says "time units"; the report knows the study's unit and says it.
+    lines.push(`  ${inTimeUnit(condition.notApplicableReason ?? condition.reason ?? '', document.timeUnit)}`);
     const limit = condition.extrapolationLimit;
     if (condition.role === 'long-term') {
       lines.push(
