@@ -1,4 +1,4 @@
-import { z } from 'zod';
+import { sessionExtendResponseSchema } from '../../shared/api/session.ts';
 import { ApiError, fetchJson } from './http.ts';
 import { onSessionUse } from './session-activity.ts';
 
@@ -16,8 +16,6 @@ import { onSessionUse } from './session-activity.ts';
  * form stays as it was. Escape dismisses the warning until the sign-out. At the sign-out time the
  * dialog says the session has ended and how to go on without losing what was typed.
  */
-
-const extendResponseSchema = z.object({ signOutInMs: z.number().int().positive() });
 
 /** Where tabs of the same browser tell each other of their last request (ms since the epoch). */
 export const LAST_USE_KEY = 'rateledger.session.last-use';
@@ -137,7 +135,7 @@ export function watchSessionTimeout(root: Document): () => void {
     extend.disabled = true;
     error.hidden = true;
     try {
-      const answer = await fetchJson('/api/session/extend', extendResponseSchema, { method: 'POST' });
+      const answer = await fetchJson('/api/session/extend', sessionExtendResponseSchema, { method: 'POST' });
       // fetchJson has reported the request (and closed the warning); count from the server's answer.
       lastUse = Math.max(lastUse, Date.now() + answer.signOutInMs - signOutInMs);
       share();

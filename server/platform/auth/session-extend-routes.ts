@@ -1,4 +1,5 @@
 import { Router } from 'express';
+import type { SessionExtendResponse } from '../../../shared/api/session.ts';
 import type { AppServices } from '../app-services.ts';
 import { signedIn } from './route-policy.ts';
 import { touchSlackMs } from './session-store.ts';
@@ -38,7 +39,8 @@ export function sessionExtendRoutes(services: AppServices): Router {
     req.session.touch();
     req.session.save((error) => {
       if (error) return next(error);
-      res.set('cache-control', 'no-store').json({ signOutInMs: idleMs });
+      const body: SessionExtendResponse = { signOutInMs: idleMs };
+      res.set('cache-control', 'no-store').json(body);
     });
   });
   return router;
