@@ -10,7 +10,6 @@
  * `{ ok: true, options: { file: 'data.csv', time: 'Month', value: 'Assay', json: false, ... } }`.
  */
 import { parseArgs } from 'node:util';
-import { parseNumberCell } from '../../shared/intake/parse-number-cell.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
 import {
   DECLARED_ANSWERS,
@@ -27,6 +26,7 @@ import {
   type TimeUnit,
   tryParseTemperatureUnit,
 } from '../../shared/kinetics/units.ts';
+import { numberOption, withNegativeNumbersAttached } from './cli-options.ts';
 
 export interface FitOptions {
   file: string;
@@ -103,33 +103,6 @@ as an assumption in the output):
   --json                   print one JSON document instead of tables
   --help                   show this text`;
 
-/** A negative number written as an option's value ("-5", "-0,5", "-1e-3"), not an option. */
-const NEGATIVE_NUMBER = /^-\s*(?:\d|[.,]\d)/;
-
-/**
- * `parseArgs` reads "--lower-limit -5" as an option "-5" and refuses it; a limit or temperature
- * may well be negative, so such a value is attached to its option ("--lower-limit=-5") first.
- */
-function withNegativeNumbersAttached(argv: readonly string[]): string[] {
-  const args: string[] = [];
-  for (let index = 0; index < argv.length; index++) {
-    const arg = argv[index]!;
-    const next = argv[index + 1];
-    if (/^--[^=]+$/.test(arg) && next !== undefined && NEGATIVE_NUMBER.test(next)) {
-      args.push(`${arg}=${next}`);
-      index++;
-    } else args.push(arg);
-  }
-  return args;
-}
-
-function number(name: string, text: string | undefined): number | undefined {
-  if (text === undefined) return undefined;
-  const parsed = parseNumberCell(text);
-  if (!parsed.ok) throw new KineticsError('invalid-input', `--${name}: "${text}" is not a number.`);
-  return parsed.value;
-}
-
 export function parseFitArguments(argv: readonly string[]): FitArguments {
   try {
     const { values, positionals } = parseArgs({
@@ -188,10 +161,10 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
     if (errorModel !== 'auto' && errorModel !== 'constant' && errorModel !== 'proportional') {
       return { ok: false, message: '--error-model must be auto, constant or proportional.' };
     }
-    const confidence = number('confidence', values.confidence) ?? 0.95;
+    const confidence = numberOption('confidence', values.confidence) ?? 0.95;
     if (!(confidence > 0 && confidence < 1))
       return { ok: false, message: '--confidence must lie between 0 and 1, e.g. 0.95.' };
-    const headerRow = number('header-row', values['header-row']) ?? 1;
+    const headerRow = numberOption('header-row', values['header-row']) ?? 1;
     if (!Number.isInteger(headerRow) || headerRow < 0)
       return { ok: false, message: '--header-row must be 0 or a row number.' };
     const choice = <T extends string>(name: string, allowed: readonly T[]): T => {
@@ -210,8 +183,8 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
       littleChange: choice('little-change', DECLARED_ANSWERS),
       supportingData: choice('supporting-data', DECLARED_ANSWERS),
     };
-    const accelerated = number('accelerated-temperature', values['accelerated-temperature']);
-    const intermediate = number('intermediate-temperature', values['intermediate-temperature']);
+    const accelerated = numberOption('accelerated-temperature', values['accelerated-temperature']);
+    const intermediate = numberOption('intermediate-temperature', values['intermediate-temperature']);
     if (accelerated !== undefined) q1e.acceleratedTemperatureC = accelerated;
     if (intermediate !== undefined) q1e.intermediateTemperatureC = intermediate;
     const options: FitOptions = {
@@ -231,9 +204,9 @@ export function parseFitArguments(argv: readonly string[]): FitArguments {
     if (values['time-unit'] !== undefined) options.timeUnit = parseTimeUnit(values['time-unit']);
     if (values['value-unit'] !== undefined) options.valueUnit = values['value-unit'];
     if (values.sheet !== undefined) options.sheet = values.sheet;
-    const lowerLimit = number('lower-limit', values['lower-limit']);
-    const upperLimit = number('upper-limit', values['upper-limit']);
-    const storageTemperature = number('storage-temperature', values['storage-temperature']);
+    const lowerLimit = numberOption('lower-limit', values['lower-limit']);
+    const upperLimit = numberOption('upper-limit', values['upper-limit']);
+    const storageTemperature = numberOption('storage-temperature', values['storage-temperature']);
     if (lowerLimit !== undefined) options.lowerLimit = lowerLimit;
     if (upperLimit !== undefined) options.upperLimit = upperLimit;
     if (lowerLimit !== undefined && upperLimit !== undefined && !(lowerLimit < upperLimit)) {

@@ -23,12 +23,11 @@ import {
 } from '../../shared/intake/unit-from-header.ts';
 import { analyseDataset } from '../../shared/kinetics/analyse-dataset.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
-import { FileReadError } from '../features/intake/readers/file-read-error.ts';
 import { FIT_USAGE, type FitOptions, parseFitArguments } from './fit-arguments.ts';
 import { fitDocument, fitDocumentStreamed } from './fit-document.ts';
 import { jsonChunks } from './fit-json-output.ts';
 import { fitReport } from './fit-report.ts';
-import { loadSheets } from './load-sheets.ts';
+import { loadSheetsOrFail } from './load-sheets.ts';
 
 const EXIT_NOTHING_COMPUTED = 1;
 const EXIT_BAD_INPUT = 2;
@@ -68,18 +67,8 @@ function headerOf(sheet: SheetGrid, headerRow: number, column: string): string {
   return resolved.ok ? (headerTexts(sheet, headerRow)[resolved.index] ?? '') : '';
 }
 
-async function readSheets(file: string): Promise<SheetGrid[]> {
-  try {
-    return await loadSheets(file);
-  } catch (error) {
-    if (error instanceof FileReadError) fail([`${file}: ${error.message}`]);
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT') fail([`${file}: no such file.`]);
-    throw error;
-  }
-}
-
 async function main(options: FitOptions): Promise<number> {
-  const sheets = await readSheets(options.file);
+  const sheets = await loadSheetsOrFail(options.file, fail);
   const sheet =
     options.sheet === undefined ? sheets[0] : sheets.find((candidate) => candidate.name === options.sheet);
   const timeHeader = sheet ? headerOf(sheet, options.headerRow, options.time) : '';

@@ -15,6 +15,7 @@
 import { readFile } from 'node:fs/promises';
 import path from 'node:path';
 import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
+import { FileReadError } from '../features/intake/readers/file-read-error.ts';
 import { readCsv } from '../features/intake/readers/read-csv.ts';
 
 const CONTAINER_SIGNATURES = [
@@ -33,4 +34,21 @@ export async function loadSheets(file: string): Promise<SheetGrid[]> {
     return readWorkbook(bytes);
   }
   return readCsv(bytes, path.basename(file, path.extname(file)));
+}
+
+/**
+ * The file's sheets for a command, or its `fail` called with the one line to print: the reader's
+ * refusal or "no such file". Anything else is thrown on.
+ */
+export async function loadSheetsOrFail(
+  file: string,
+  fail: (messages: string[]) => never,
+): Promise<SheetGrid[]> {
+  try {
+    return await loadSheets(file);
+  } catch (error) {
+    if (error instanceof FileReadError) fail([`${file}: ${error.message}`]);
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') fail([`${file}: no such file.`]);
+    throw error;
+  }
 }

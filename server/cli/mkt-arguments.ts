@@ -6,7 +6,6 @@
  * gives `{ ok: true, options: { file: 'log.csv', mapping: {...}, settings: {...}, json: false } }`.
  */
 import { parseArgs } from 'node:util';
-import { parseNumberCell } from '../../shared/intake/parse-number-cell.ts';
 import {
   type TemperatureLogMapping,
   temperatureLogMappingSchema,
@@ -16,6 +15,7 @@ import {
   temperatureLogSettingsSchema,
 } from '../../shared/kinetics/temperature/temperature-log-settings.ts';
 import { tryParseTemperatureUnit, tryParseTimeUnit } from '../../shared/kinetics/units.ts';
+import { numberOption, withNegativeNumbersAttached } from './cli-options.ts';
 
 export interface MktOptions {
   file: string;
@@ -57,31 +57,6 @@ Optional:
 
 Statistical and kinetic estimates support, and do not replace, qualified judgement, applicable
 guidance and the laboratory's own approved procedures.`;
-
-/** A negative number written as an option's value ("-5"), not an option (as in `fit`). */
-const NEGATIVE_NUMBER = /^-\s*(?:\d|[.,]\d)/;
-
-function withNegativeNumbersAttached(argv: readonly string[]): string[] {
-  const args: string[] = [];
-  for (let index = 0; index < argv.length; index++) {
-    const arg = argv[index] as string;
-    const next = argv[index + 1];
-    if (/^--[^=]+$/.test(arg) && next !== undefined && NEGATIVE_NUMBER.test(next)) {
-      args.push(`${arg}=${next}`);
-      index++;
-    } else args.push(arg);
-  }
-  return args;
-}
-
-class OptionError extends Error {}
-
-function number(name: string, text: string | undefined): number | undefined {
-  if (text === undefined) return undefined;
-  const parsed = parseNumberCell(text);
-  if (!parsed.ok) throw new OptionError(`--${name}: "${text}" is not a number.`);
-  return parsed.value;
-}
 
 const SETTING_OPTION: Record<string, string> = {
   activationEnergyKJPerMol: '--activation-energy',
@@ -140,7 +115,7 @@ export function parseMktArguments(argv: readonly string[]): MktArguments {
     if (temperatureUnit === null) {
       return { ok: false, message: `--temperature-unit: "${temperatureUnitText}" is not C or K.` };
     }
-    const headerRow = number('header-row', values['header-row']) ?? 1;
+    const headerRow = numberOption('header-row', values['header-row']) ?? 1;
     if (!Number.isInteger(headerRow) || headerRow < 0) {
       return { ok: false, message: '--header-row must be 0 or a row number.' };
     }
@@ -154,9 +129,9 @@ export function parseMktArguments(argv: readonly string[]): MktArguments {
       temperatureUnit,
     });
     const settings = temperatureLogSettingsSchema.safeParse({
-      activationEnergyKJPerMol: number('activation-energy', values['activation-energy']),
-      rangeMinC: number('range-min', values['range-min']),
-      rangeMaxC: number('range-max', values['range-max']),
+      activationEnergyKJPerMol: numberOption('activation-energy', values['activation-energy']),
+      rangeMinC: numberOption('range-min', values['range-min']),
+      rangeMaxC: numberOption('range-max', values['range-max']),
       window: values.window,
       windowStep: values['window-step'],
       maxInterval: values['max-interval'],

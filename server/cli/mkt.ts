@@ -8,15 +8,13 @@
  * every problem on standard error, each naming its cell.
  */
 import path from 'node:path';
-import type { SheetGrid } from '../../shared/intake/sheet-grid.ts';
 import { temperatureLogFromGrid } from '../../shared/intake/temperature-log-from-grid.ts';
 import { KineticsError } from '../../shared/kinetics/numeric/kinetics-error.ts';
 import { assessTemperatureLog } from '../../shared/kinetics/temperature/temperature-log.ts';
 import { temperatureLogDocument } from '../../shared/kinetics/temperature/temperature-log-document.ts';
 import { temperatureLogOptions } from '../../shared/kinetics/temperature/temperature-log-settings.ts';
 import { temperatureLogText } from '../../shared/kinetics/temperature/temperature-log-text.ts';
-import { FileReadError } from '../features/intake/readers/file-read-error.ts';
-import { loadSheets } from './load-sheets.ts';
+import { loadSheetsOrFail } from './load-sheets.ts';
 import { MKT_USAGE, type MktOptions, parseMktArguments } from './mkt-arguments.ts';
 
 const EXIT_BAD_INPUT = 2;
@@ -26,18 +24,8 @@ function fail(messages: string[], code = EXIT_BAD_INPUT): never {
   process.exit(code);
 }
 
-async function readSheets(file: string): Promise<SheetGrid[]> {
-  try {
-    return await loadSheets(file);
-  } catch (error) {
-    if (error instanceof FileReadError) fail([`${file}: ${error.message}`]);
-    if ((error as NodeJS.ErrnoException).code === 'ENOENT') fail([`${file}: no such file.`]);
-    throw error;
-  }
-}
-
 async function main(options: MktOptions): Promise<number> {
-  const sheets = await readSheets(options.file);
+  const sheets = await loadSheetsOrFail(options.file, fail);
   const intake = temperatureLogFromGrid(sheets, options.mapping);
   if (!intake.ok) fail(intake.problems.map((problem) => problem.text));
   const assessment = assessTemperatureLog(

@@ -82,13 +82,7 @@ export function reportInput(request: RenderRequest): {
     const logs = reportTemperatureLogs(request.temperatureLogs ?? []);
     // Numbered in reading order: the excursion section comes after temperature dependence and
     // before Appendix A's per-series figures.
-    const stored = request.runFigures;
-    const analysis = runReportFigures(request).map((figure) => {
-      const svg = stored?.get(figure.id);
-      return svg === undefined
-        ? figure
-        : { id: figure.id, title: figure.title, description: figure.description, svg };
-    });
+    const analysis: RenderReportInput['figures'] = request.runFigures ?? runReportFigures(request);
     const inAppendix = analysis.filter((figure) => reportFigurePart(figure.id) === 'series');
     const figures = [
       ...analysis.filter((figure) => reportFigurePart(figure.id) !== 'series'),

@@ -264,9 +264,11 @@ export async function loadRenderRequest(tx: Executor, versionId: number): Promis
     .where(eq(reportVersionTemperatureLogs.reportVersionId, versionId))
     .orderBy(reportVersionTemperatureLogs.position);
   // The run's figures, drawn once for its first report and kept beside it (runs are write-once).
-  let runFigures: Map<string, string>;
+  let runFigures: RenderRequest['runFigures'];
   try {
-    runFigures = await runFigureSvgs(tx, run.id, runReportFigures({ run }));
+    const specs = runReportFigures({ run });
+    const svgs = await runFigureSvgs(tx, run.id, specs);
+    runFigures = specs.map(({ id, title, description }) => ({ id, title, description, svg: svgs.get(id)! }));
   } catch (error) {
     throw new RenderFailure(
       `A figure of analysis ${run.id} could not be drawn: ${(error as Error).message}`,

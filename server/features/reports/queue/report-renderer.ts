@@ -30,10 +30,10 @@ export interface RenderRequest {
   /** Temperature-log assessments attached to the version, in their order. */
   temperatureLogs: AttachedTemperatureLog[];
   /**
-   * The run's report figures as drawn once and stored (`run-figures.ts`), by figure id; a figure
-   * missing here (a preview without a database record) is drawn from its spec at print time.
+   * The run's report figures in reading order, as drawn once and stored (`run-figures.ts`); left
+   * out (a preview without a database record), the figures are drawn from their specs when printed.
    */
-  runFigures?: ReadonlyMap<string, string>;
+  runFigures?: readonly { id: string; title: string; description: string; svg: string }[];
 }
 
 export interface RenderedReport {
