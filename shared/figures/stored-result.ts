@@ -1,5 +1,7 @@
 import type { DatasetAnalysis, DatasetOptions } from '../kinetics/analyse-dataset.ts';
 import { analyseSeries } from '../kinetics/analyse-series.ts';
+import type { StudyAttribute } from '../kinetics/stability/study-attributes.ts';
+import type { MassBalance, StudyShelfLife } from '../kinetics/stability/study-shelf-life-types.ts';
 import type { IntegerOrder, Series } from '../kinetics/types.ts';
 
 /**
@@ -8,6 +10,23 @@ import type { IntegerOrder, Series } from '../kinetics/types.ts';
  * the export and the report draw. Both come from the engine; nothing here is estimated anew.
  */
 export interface StoredAnalysisResult {
+  /** The study's first attribute (the only one in a study of one attribute). */
+  analysis: DatasetAnalysis;
+  confidenceBands: ConfidenceBand[];
+  /**
+   * A study of several attributes: each attribute after the first, in the study's order, analysed
+   * alone with its own criterion and direction (ICH Q1E Appendix A). Absent for one attribute.
+   */
+  otherAttributes?: AttributeAnalysisResult[];
+  /** A study of several attributes: the earliest shelf life across them and the limiting attribute. */
+  studyShelfLife?: StudyShelfLife;
+  /** Present when the study marks an assay and at least one degradation product; else absent. */
+  massBalance?: MassBalance;
+}
+
+/** One attribute's analysis within a multi-attribute run. */
+export interface AttributeAnalysisResult {
+  attribute: StudyAttribute;
   analysis: DatasetAnalysis;
   confidenceBands: ConfidenceBand[];
 }

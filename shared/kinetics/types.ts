@@ -13,6 +13,13 @@ export interface Observation {
   excluded?: { reason: string };
   /** Where the point came from (1-based source row, cell reference), for error messages and audit. */
   source?: { row?: number; cell?: string };
+  /**
+   * Set when the cell reported a result below a reporting or quantitation limit ("<LOQ",
+   * "< 0.05"): the cell's text as written, and the limit it states when it states one. `value` is
+   * then that limit, or 0 when none is stated, and is never fitted as read: the study's rule for
+   * censored values decides (`stability/study-attributes.ts`, applied before the engine runs).
+   */
+  censored?: { text: string; limit?: number };
 }
 
 /** A degradation series: one batch at one condition. */
@@ -27,6 +34,11 @@ export interface Series {
   temperatureC?: number;
   /** Batch (lot) identifier, when known. */
   batch?: string;
+  /**
+   * The study attribute the series measures ("Assay", "Impurity B"), when the upload names one;
+   * absent for a dataset of one attribute, whose series all measure the study's first attribute.
+   */
+  attribute?: string;
 }
 
 /** Integer reaction orders the engine names; `null` means the data cannot tell them apart. */

@@ -4,12 +4,22 @@ import {
   DECLARED_CHANGES,
   STORAGE_CATEGORIES,
 } from '../../../../shared/kinetics/stability/q1e-declaration.ts';
+import {
+  CENSORED_RULES,
+  MASS_BALANCE_ROLES,
+  type StudyAttribute,
+} from '../../../../shared/kinetics/stability/study-attributes.ts';
 import { createdAt, updatedAt } from './columns.ts';
 import { organisations } from './organisations.ts';
 import { users } from './users.ts';
 
 /** Which way the attribute moves on storage; decides the one- or two-sided Q1E limit. */
 export const attributeDirectionEnum = pgEnum('attribute_direction', ['decreasing', 'increasing', 'either']);
+
+/** How results below a reporting limit enter the fit (shared/kinetics/stability/study-attributes.ts). */
+export const censoredRuleEnum = pgEnum('censored_rule', CENSORED_RULES);
+/** An attribute's part in the mass-balance check. */
+export const massBalanceRoleEnum = pgEnum('mass_balance_role', MASS_BALANCE_ROLES);
 
 /** Label storage of the product for the ICH Q1E extrapolation limit; 'unknown' until stated. */
 export const storageCategoryEnum = pgEnum('storage_category', STORAGE_CATEGORIES);
@@ -19,7 +29,7 @@ export const declaredChangeEnum = pgEnum('declared_change', DECLARED_CHANGES);
 export const declaredAnswerEnum = pgEnum('declared_answer', DECLARED_ANSWERS);
 
 /**
- * A stability study: one product, one measured attribute with its acceptance criterion, the
+ * A stability study: one product, the attributes measured with their acceptance criteria, the
  * storage condition and the batches on test. Changes are audit events with before/after values.
  */
 export const studies = pgTable('studies', {
@@ -60,6 +70,17 @@ export const studies = pgTable('studies', {
    */
   workingOrder: integer('working_order'),
   workingOrderReason: text('working_order_reason').notNull().default(''),
+  /** How the first attribute's results below a limit ("<LOQ") enter the fit, and its stated value. */
+  censoredRule: censoredRuleEnum('censored_rule').notNull().default('exclude'),
+  censoredValue: doublePrecision('censored_value'),
+  /** The first attribute's part in the mass-balance check; null for none. */
+  massBalanceRole: massBalanceRoleEnum('mass_balance_role'),
+  /**
+   * Every attribute after the first, in the study's order, each with its own unit, direction,
+   * acceptance criterion, working order and censored-value rule. Empty for a study of one
+   * attribute (every study recorded before attributes were listed).
+   */
+  additionalAttributes: jsonb('additional_attributes').$type<StudyAttribute[]>().notNull().default([]),
   /** Batch (lot) identifiers on test. */
   batches: jsonb('batches').$type<string[]>().notNull().default([]),
   notes: text('notes').notNull().default(''),
