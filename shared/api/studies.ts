@@ -19,6 +19,17 @@
  * conservative answer. A declared intermediate or accelerated temperature must lie above the
  * long-term one, and the accelerated above the intermediate. A working order (0, 1, 2, blank for
  * none) needs its reason.
+ *
+ * A study lists its attributes (issue 15 §1). The first is the form's own fields (`attribute`,
+ * `unit`, `direction`, the limits, the working order, `censoredRule`, `censoredValue`,
+ * `massBalanceRole`); every further attribute is a numbered group of the same fields,
+ * `attributes[2][name]`, `attributes[2][unit]`… (the number is the attribute's place in the
+ * study; the form posts flat names, `express.urlencoded({ extended: false })`). A group left
+ * blank is ignored. Each group is checked with the first attribute's rules, names are unique
+ * within the study (case and surrounding spaces ignored), at most one attribute is the assay of
+ * the mass balance, and a study lists at most MAX_ATTRIBUTES. The groups arrive as
+ * `additionalAttributes` (StudyAttribute[], shared/kinetics/stability/study-attributes.ts); a
+ * caller that already holds that list (JSON) may pass it under that name instead.
  */
 import { z } from 'zod';
 import {
@@ -26,35 +37,30 @@ import {
   DECLARED_CHANGES,
   STORAGE_CATEGORIES,
 } from '../kinetics/stability/q1e-declaration.ts';
+import type { StudyAttribute } from '../kinetics/stability/study-attributes.ts';
+import {
+  attributeGroupOrBlank,
+  attributeRules,
+  censoredSchema,
+  checkAttributeList,
+  collectGroups,
+  directionField,
+  formFieldOf,
+  limitsSchema,
+  massBalanceRoleField,
+  optionalNumber,
+  text,
+  workingOrderField,
+} from './study-attribute-fields.ts';
 
-export const STUDY_DIRECTIONS = ['decreasing', 'increasing', 'either'] as const;
+export {
+  ATTRIBUTE_GROUP_FIELDS,
+  attributeFieldName,
+  MAX_ATTRIBUTES,
+  STUDY_DIRECTIONS,
+} from './study-attribute-fields.ts';
+
 export const MAX_BATCHES = 100;
-
-function optionalNumber(label: string, minimum: number, maximum: number) {
-  return z.preprocess(
-    (raw) => {
-      if (raw === undefined || raw === null) return null;
-      if (typeof raw === 'number') return raw;
-      const text = String(raw).trim();
-      if (text === '') return null;
-      return /^[+-]?(\d+([.,]\d*)?|[.,]\d+)([eE][+-]?\d+)?$/.test(text)
-        ? Number(text.replace(',', '.'))
-        : Number.NaN;
-    },
-    z
-      .number({ error: `${label} must be a number, e.g. 95 or 95.5.` })
-      .min(minimum, `${label} must be at least ${minimum}.`)
-      .max(maximum, `${label} must be at most ${maximum}.`)
-      .nullable(),
-  );
-}
-
-const text = (label: string, max: number) =>
-  z
-    .string({ error: `${label} is required.` })
-    .trim()
-    .min(1, `${label} is required.`)
-    .max(max, `${label} can be at most ${max} characters.`);
 
 const batchList = z.preprocess(
   (raw) => {
@@ -66,41 +72,19 @@ const batchList = z.preprocess(
     .max(MAX_BATCHES, `At most ${MAX_BATCHES} batches.`),
 );
 
-const limitsSchema = z.object({
-  lowerLimit: optionalNumber('Lower limit', -1e12, 1e12),
-  upperLimit: optionalNumber('Upper limit', -1e12, 1e12),
-});
-
 const temperaturesSchema = z.object({
   storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
   intermediateTemperatureC: optionalNumber('Intermediate temperature', -273.15, 200),
   acceleratedTemperatureC: optionalNumber('Accelerated temperature', -273.15, 200),
 });
 
-/**
- * The study's working order (issue 12 §3): blank for none, else 0, 1 or 2. The analysis uses it
- * only where the data do not name an order, and says so ("working order from the study").
- */
-const workingOrderField = z.preprocess(
-  (raw) =>
-    raw === undefined || raw === null || String(raw).trim() === '' ? null : Number(String(raw).trim()),
-  z
-    .union([z.literal(0), z.literal(1), z.literal(2)], { error: 'Choose none, zero, first or second order.' })
-    .nullable(),
-);
-
-/** Run the criterion checks whenever both limits read as numbers, even if other fields failed. */
-const whenLimitsRead = {
-  when: (payload: { value: unknown }) => limitsSchema.safeParse(payload.value).success,
-};
-
-export const studyFormSchema = z
-  .object({
+const studyObjectSchema = attributeRules(
+  z.object({
     title: text('Title', 200),
     product: text('Product', 200),
     attribute: text('Attribute', 120),
     unit: text('Unit', 60),
-    direction: z.enum(STUDY_DIRECTIONS, { error: 'Choose decreasing, increasing or either.' }),
+    direction: directionField,
     ...limitsSchema.shape,
     storageTemperatureC: optionalNumber('Storage temperature', -273.15, 200),
     storageHumidityPercent: optionalNumber('Relative humidity', 0, 100),
@@ -120,26 +104,14 @@ export const studyFormSchema = z
     declarationBasis: z.string().trim().max(2000, 'The basis can be at most 2000 characters.').default(''),
     workingOrder: workingOrderField,
     workingOrderReason: z.string().trim().max(1000, 'The reason can be at most 1000 characters.').default(''),
+    ...censoredSchema.shape,
+    massBalanceRole: massBalanceRoleField,
+    additionalAttributes: z.array(attributeGroupOrBlank).default([]),
     batches: batchList,
     notes: z.string().trim().max(4000, 'Notes can be at most 4000 characters.').default(''),
-  })
-  .refine((study) => study.lowerLimit !== null || study.upperLimit !== null, {
-    path: ['lowerLimit'],
-    message: 'Give a lower limit, an upper limit or both: the acceptance criterion needs at least one.',
-    ...whenLimitsRead,
-  })
-  .refine(
-    (study) => study.lowerLimit === null || study.upperLimit === null || study.lowerLimit < study.upperLimit,
-    {
-      path: ['upperLimit'],
-      message: 'The upper limit must be above the lower limit.',
-      ...whenLimitsRead,
-    },
-  )
-  .refine((study) => study.workingOrder === null || study.workingOrderReason !== '', {
-    path: ['workingOrderReason'],
-    message: 'Give the reason for the working order, e.g. the protocol that states it.',
-  })
+  }),
+)
+  .superRefine(checkAttributeList, { when: () => true })
   .refine(
     (study) =>
       study.storageTemperatureC === null ||
@@ -165,7 +137,18 @@ export const studyFormSchema = z
     },
   );
 
-export type StudyFormInput = z.input<typeof studyFormSchema>;
+export const studyFormSchema = z.preprocess(
+  collectGroups,
+  studyObjectSchema.transform((study) => ({
+    ...study,
+    additionalAttributes: study.additionalAttributes.filter(
+      (attribute): attribute is StudyAttribute => attribute !== null,
+    ),
+  })),
+);
+
+/** What the form posts (text fields, and the further attributes as `attributes[N][field]`). */
+export type StudyFormInput = Record<string, unknown>;
 export type StudyInput = z.output<typeof studyFormSchema>;
 
 /** The fields of a study the form edits and the audit trail records, in form order. */
@@ -189,16 +172,22 @@ export const STUDY_FIELDS = [
   'declarationBasis',
   'workingOrder',
   'workingOrderReason',
+  'censoredRule',
+  'censoredValue',
+  'massBalanceRole',
+  'additionalAttributes',
   'batches',
   'notes',
 ] as const satisfies readonly (keyof StudyInput)[];
 
-/** Field name → first message, for showing errors beside each field of the form. */
+/**
+ * Field name → first message, for showing errors beside each field of the form; a further
+ * attribute's field is named as the form names it (`attributes[3][upperLimit]`).
+ */
 export function fieldErrors(error: z.ZodError): Record<string, string> {
   const errors: Record<string, string> = {};
   for (const issue of error.issues) {
-    const field = String(issue.path[0] ?? 'form');
-    errors[field] ??= issue.message;
+    errors[formFieldOf(issue.path)] ??= issue.message;
   }
   return errors;
 }

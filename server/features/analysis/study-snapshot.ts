@@ -28,6 +28,7 @@ import {
 import { HttpError } from '../../platform/http/http-error.ts';
 import {
   ensureStudyVersion,
+  STUDY_VERSION_DEFAULTS,
   type StudyVersionEntry,
   studyChanges,
   studyValues,
@@ -72,13 +73,21 @@ export async function linkRunToStudyVersion(
 /**
  * A field the version does not hold was added to studies after the version was recorded (e.g. the
  * working order, after migration 0011): the run had no such value, so it reads as empty rather
- * than as whatever the study says today.
+ * than as whatever the study says today — or, for the fields of several attributes (migration
+ * 0020), as the value every study had then (`STUDY_VERSION_DEFAULTS`: one attribute, results
+ * below a limit excluded, no mass-balance role).
  */
 function notRecorded(current: Study, values: Record<string, unknown>): Partial<Study> {
   return Object.fromEntries(
     STUDY_FIELDS.filter((field) => !(field in values)).map((field) => [
       field,
-      typeof current[field] === 'string' ? '' : Array.isArray(current[field]) ? [] : null,
+      field in STUDY_VERSION_DEFAULTS
+        ? STUDY_VERSION_DEFAULTS[field]
+        : typeof current[field] === 'string'
+          ? ''
+          : Array.isArray(current[field])
+            ? []
+            : null,
     ]),
   ) as Partial<Study>;
 }

@@ -13,6 +13,7 @@ import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database, Executor } from '../../platform/db/client.ts';
 import { analysisRuns, datasets, studies, uploads, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { sameStudyValue } from './study-attribute-changes.ts';
 import { recordStudyVersion } from './study-versions.ts';
 
 export type Study = typeof studies.$inferSelect;
@@ -25,10 +26,6 @@ function auditedFields(study: StudyInput | Study): Record<string, unknown> {
   return Object.fromEntries(STUDY_FIELDS.map((field) => [field, study[field]]));
 }
 
-function sameValue(a: unknown, b: unknown): boolean {
-  return JSON.stringify(a) === JSON.stringify(b);
-}
-
 export async function listStudies(db: Executor, organisationId: number) {
   return db
     .select({
@@ -39,6 +36,7 @@ export async function listStudies(db: Executor, organisationId: number) {
       unit: studies.unit,
       lowerLimit: studies.lowerLimit,
       upperLimit: studies.upperLimit,
+      additionalAttributes: studies.additionalAttributes,
       storageTemperatureC: studies.storageTemperatureC,
       storageHumidityPercent: studies.storageHumidityPercent,
       batches: studies.batches,
@@ -112,7 +110,7 @@ export async function updateStudy(
       .where(and(eq(studies.id, studyId), eq(studies.organisationId, actor.organisationId)))
       .for('update');
     if (!current) throw new HttpError(404, `There is no study ${studyId} in your organisation.`);
-    const changed = STUDY_FIELDS.filter((field) => !sameValue(current[field], input[field]));
+    const changed = STUDY_FIELDS.filter((field) => !sameStudyValue(current[field], input[field]));
     if (changed.length === 0) return { study: current, changed: [] };
     const reasonForChange = reason.trim();
     if (reasonForChange === '') {

@@ -10,6 +10,7 @@ import { STUDY_FIELDS } from '../../../shared/api/studies.ts';
 import type { Executor } from '../../platform/db/client.ts';
 import { type studies, studyVersions, users } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
+import { attributeListChanges, sameStudyValue } from './study-attribute-changes.ts';
 
 type Study = typeof studies.$inferSelect;
 export type StudyVersion = typeof studyVersions.$inferSelect;
@@ -36,9 +37,31 @@ const FIELD_LABELS: Record<string, string> = {
   declarationBasis: 'basis of the declaration',
   workingOrder: 'working order',
   workingOrderReason: 'reason for the working order',
+  censoredRule: 'rule for results below the limit',
+  censoredValue: 'stated value for results below the limit',
+  massBalanceRole: 'mass-balance role',
+  additionalAttributes: 'further attributes',
   batches: 'batches',
   notes: 'notes',
 };
+
+/**
+ * What a version recorded before a field existed reads as: the value every study had when the
+ * field was added (migration 0020: a study of one attribute whose results below a limit are
+ * excluded, with no part in a mass balance). Read with these, an old version and the next one
+ * differ only where the analyst changed something.
+ */
+export const STUDY_VERSION_DEFAULTS: Partial<Record<(typeof STUDY_FIELDS)[number], unknown>> = {
+  censoredRule: 'exclude',
+  censoredValue: null,
+  massBalanceRole: null,
+  additionalAttributes: [],
+};
+
+/** A version's values with the fields it predates read as their defaults. */
+export function versionValues(values: StudyValues): StudyValues {
+  return { ...STUDY_VERSION_DEFAULTS, ...values };
+}
 
 /** The values of the study that a version keeps: every field the study form edits. */
 export function studyValues(study: Study): StudyValues {
@@ -47,9 +70,24 @@ export function studyValues(study: Study): StudyValues {
 
 function shown(value: unknown): string {
   if (value === null || value === undefined || value === '') return 'none';
-  if (Array.isArray(value)) return value.length === 0 ? 'none' : value.join(', ');
+  if (Array.isArray(value))
+    return value.length === 0 ? 'none' : value.map((entry) => shown(entry)).join(', ');
+  if (typeof value === 'object') return JSON.stringify(value);
   return String(value);
 }
+
+/** The first attribute's own fields: named with the attribute once the study lists several. */
+const FIRST_ATTRIBUTE_FIELDS = new Set([
+  'unit',
+  'direction',
+  'lowerLimit',
+  'upperLimit',
+  'workingOrder',
+  'workingOrderReason',
+  'censoredRule',
+  'censoredValue',
+  'massBalanceRole',
+]);
 
 export interface StudyChange {
   field: string;
@@ -58,19 +96,39 @@ export interface StudyChange {
   after: string;
 }
 
-/** The fields that differ between two sets of study values, in form order. */
-export function studyChanges(before: StudyValues, after: StudyValues): StudyChange[] {
+/**
+ * The fields that differ between two sets of study values, in form order; a change in the further
+ * attributes reads per attribute and field ("Impurity B: upper limit 0.5 → 1").
+ */
+export function studyChanges(beforeValues: StudyValues, afterValues: StudyValues): StudyChange[] {
+  const before = versionValues(beforeValues);
+  const after = versionValues(afterValues);
   const fields = [...new Set([...STUDY_FIELDS, ...Object.keys(after)])];
+  const several = [before, after].some(
+    (values) => Array.isArray(values.additionalAttributes) && values.additionalAttributes.length > 0,
+  );
   return fields
-    .filter(
-      (field) => field in after && JSON.stringify(before[field] ?? null) !== JSON.stringify(after[field]),
-    )
-    .map((field) => ({
-      field,
-      label: FIELD_LABELS[field] ?? field,
-      before: shown(before[field]),
-      after: shown(after[field]),
-    }));
+    .filter((field) => field in after && !sameStudyValue(before[field], after[field]))
+    .flatMap((field) => {
+      if (field === 'additionalAttributes') {
+        return attributeListChanges(before[field], after[field]).map((change) => ({
+          field,
+          label: change.label,
+          before: shown(change.before),
+          after: shown(change.after),
+        }));
+      }
+      const label = FIELD_LABELS[field] ?? field;
+      return [
+        {
+          field,
+          label:
+            several && FIRST_ATTRIBUTE_FIELDS.has(field) ? `${String(after.attribute)}: ${label}` : label,
+          before: shown(before[field]),
+          after: shown(after[field]),
+        },
+      ];
+    });
 }
 
 export async function latestStudyVersion(db: Executor, studyId: number): Promise<StudyVersion | null> {
@@ -168,9 +226,12 @@ export async function studyVersionsAfter(
   });
 }
 
-/** Every version of a study, newest first, for the study page. */
+/**
+ * Every version of a study, newest first, for the study page, each with what it changed from the
+ * version before (none for the first).
+ */
 export async function listStudyVersions(db: Executor, studyId: number) {
-  return db
+  const rows = await db
     .select({
       versionNumber: studyVersions.versionNumber,
       recordedAt: studyVersions.recordedAt,
@@ -178,11 +239,19 @@ export async function listStudyVersions(db: Executor, studyId: number) {
       reason: studyVersions.reason,
       origin: studyVersions.origin,
       changedFields: studyVersions.changedFields,
+      values: studyVersions.values,
     })
     .from(studyVersions)
     .innerJoin(users, eq(users.id, studyVersions.recordedBy))
     .where(eq(studyVersions.studyId, studyId))
-    .orderBy(desc(studyVersions.versionNumber));
+    .orderBy(asc(studyVersions.versionNumber));
+  let previous: StudyValues | null = null;
+  const versions = rows.map(({ values, ...row }) => {
+    const changes = previous === null ? [] : studyChanges(previous, values);
+    previous = values;
+    return { ...row, changes };
+  });
+  return versions.reverse();
 }
 
 /** The field errors of a refused change for lack of a reason, or null for any other error. */
