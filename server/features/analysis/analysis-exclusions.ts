@@ -14,6 +14,8 @@ export interface ResolvedExclusion {
 
 /**
  * Marks the excluded points of a dataset's series (a copy; the stored dataset is never changed).
+ * The series of every attribute are here: their ids are unique across the dataset ("Impurity B ·
+ * B1 @ 25 °C" beside "Assay · B1 @ 25 °C"), so an exclusion names its point in any attribute.
  *
  * Each exclusion names its series and its point — by 0-based observation index, or by time (and
  * value, when replicates share a time). A point that cannot be found, that two entries name, or

@@ -5,9 +5,9 @@ import {
   type ExcludePointRequest,
   type Exclusion,
 } from '../../../shared/api/analyses.ts';
-import { confidenceBands, type StoredAnalysisResult } from '../../../shared/figures/stored-result.ts';
-import { analyseDataset, type DatasetOptions } from '../../../shared/kinetics/analyse-dataset.ts';
-import { KineticsError } from '../../../shared/kinetics/numeric/kinetics-error.ts';
+import type { StoredAnalysisResult } from '../../../shared/figures/stored-result.ts';
+import type { DatasetOptions } from '../../../shared/kinetics/analyse-dataset.ts';
+import { studyAttributes } from '../../../shared/kinetics/stability/study-attributes.ts';
 import type { Series } from '../../../shared/kinetics/types.ts';
 import { ENGINE_VERSION } from '../../../shared/kinetics/version.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
@@ -16,6 +16,7 @@ import { analysisRuns, datasets, studies, users } from '../../platform/db/schema
 import { HttpError } from '../../platform/http/http-error.ts';
 import { assertNotRetired } from '../retirement/index.ts';
 import { applyExclusions, type ResolvedExclusion } from './analysis-exclusions.ts';
+import { evaluateStudy, seriesAsRun } from './study-attribute-runs.ts';
 import { linkRunToStudyVersion, type StudyStanding, studyAsRun } from './study-snapshot.ts';
 
 /** Who asked: attributable to a person, or to the system for the demo seed. */
@@ -38,48 +39,18 @@ export interface RunAnalysisInput {
 
 type Study = typeof studies.$inferSelect;
 
-/** The engine options of a run: the analyst's choices plus what the study fixes. */
-export function engineOptions(options: AnalysisOptions, study: Study): DatasetOptions {
-  return {
-    confidenceLevel: options.confidenceLevel,
-    errorModel: options.errorModel,
-    ...(options.order === undefined ? {} : { order: options.order }),
-    ...(study.lowerLimit === null ? {} : { lowerLimit: study.lowerLimit }),
-    ...(study.upperLimit === null ? {} : { upperLimit: study.upperLimit }),
-    ...(study.storageTemperatureC === null ? {} : { storageTemperatureC: study.storageTemperatureC }),
-    // The protocol's working order, used only where the data name none (issue 12 §3).
-    ...(study.workingOrder === null || study.workingOrder === undefined
-      ? {}
-      : {
-          workingOrder: {
-            order: study.workingOrder as 0 | 1 | 2,
-            reason: study.workingOrderReason || 'stated by the study',
-          },
-        }),
-    direction: study.direction,
-    // The study's Q1E declaration; the long-term condition is its storage temperature.
-    q1e: {
-      storage: study.storageCategory,
-      longTermTemperatureC: study.storageTemperatureC,
-      intermediateTemperatureC: study.intermediateTemperatureC,
-      acceleratedTemperatureC: study.acceleratedTemperatureC,
-      acceleratedChange: study.acceleratedChange,
-      intermediateChange: study.intermediateChange,
-      littleChange: study.littleChange,
-      supportingData: study.supportingData,
-    },
-  };
-}
+export { engineOptions } from './study-attribute-runs.ts';
 
 /**
- * Runs the kinetics engine on a stored dataset and records the run, immutable, with everything
- * needed to trace it: dataset id and SHA-256, options (the analyst's and the study's), resolved
- * exclusions with reasons, engine version, the full result and the method statement — and an audit
- * event, all in one transaction. The engine runs before the transaction opens, so a slow analysis
+ * Runs the kinetics engine on a stored dataset — every attribute of the study, each alone
+ * (`evaluateStudy`; a study of one attribute exactly as before) — and records the run,
+ * immutable, with everything needed to trace it: dataset id and SHA-256, options (the analyst's
+ * and the study's), resolved exclusions with reasons, engine version, the full result and the
+ * method statement — and an audit event, all in one transaction. The engine runs before the transaction opens, so a slow analysis
  * holds no locks; the run row and its audit event commit together or not at all.
  *
  * Throws HttpError 404 (dataset not in the organisation), 400 (exclusions that name no point,
- * engine option errors), 409 (superseding a run that a newer run already supersedes).
+ * engine option errors, the first attribute refused by the engine), 409 (superseding a run that a newer run already supersedes).
  */
 export async function runAnalysis(
   db: Executor,
@@ -95,17 +66,13 @@ export async function runAnalysis(
   await assertNotRetired(db, input.organisationId, 'dataset', input.datasetId);
   const { dataset, study } = found;
   const { series, resolved } = applyExclusions(dataset.series, input.exclusions ?? []);
-  const settings = engineOptions(options, study);
-  let result: StoredAnalysisResult;
-  try {
-    const analysis = analyseDataset(series, settings);
-    result = { analysis, confidenceBands: confidenceBands(analysis, series, settings) };
-  } catch (error) {
-    if (error instanceof KineticsError)
-      throw new HttpError(400, error.message, [{ field: 'options', message: error.message }]);
-    throw error;
-  }
-  const storedOptions = { analyst: options, engine: settings };
+  // Every attribute of the study (one, as before, or several); study-attribute-runs.ts states the rules.
+  const { result, methodStatement, engine, otherEngines } = evaluateStudy(series, study, options);
+  const storedOptions = {
+    analyst: options,
+    engine,
+    ...(otherEngines.length === 0 ? {} : { otherAttributes: otherEngines }),
+  };
   return db.transaction(async (tx) => {
     if (input.supersedesRunId !== undefined)
       await assertLatest(tx, input.organisationId, input.supersedesRunId);
@@ -120,7 +87,7 @@ export async function runAnalysis(
         exclusions: resolved,
         engineVersion: ENGINE_VERSION,
         result,
-        methodStatement: result.analysis.methodStatement.text,
+        methodStatement,
         supersedesRunId: input.supersedesRunId ?? null,
         runBy: input.actor.userId,
       })
@@ -235,7 +202,12 @@ export interface AnalysisRunRecord {
   studyStanding: StudyStanding;
   datasetId: number;
   datasetSha256: string;
-  options: { analyst: AnalysisOptions; engine: DatasetOptions };
+  /** The analyst's options and the engine's: the first attribute's, then each other attribute's (several only). */
+  options: {
+    analyst: AnalysisOptions;
+    engine: DatasetOptions;
+    otherAttributes?: { attribute: string; engine: DatasetOptions }[];
+  };
   exclusions: ResolvedExclusion[];
   engineVersion: string;
   result: StoredAnalysisResult;
@@ -244,7 +216,7 @@ export interface AnalysisRunRecord {
   supersededByRunId: number | null;
   runBy: { id: number; fullName: string };
   runAt: Date;
-  /** The dataset's series with this run's exclusions marked, as the engine saw them. */
+  /** The dataset's series (every attribute's) with this run's exclusions and censored rules applied, as the engine saw them. */
   series: Series[];
 }
 
@@ -268,8 +240,13 @@ export async function getAnalysisRun(
     .where(and(eq(analysisRuns.id, runId), eq(analysisRuns.organisationId, organisationId)));
   if (!row) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
   const exclusions = row.run.exclusions as ResolvedExclusion[];
-  const { series } = applyExclusions(row.dataset.series, exclusions);
+  const { series: excluded } = applyExclusions(row.dataset.series, exclusions);
   const frozen = await studyAsRun(db, row.run, row.study);
+  const result = row.run.result as StoredAnalysisResult;
+  // The attributes the run recorded (a multi-attribute run keeps each with its rules), else the study's.
+  const attributes =
+    result.studyShelfLife?.attributes.map((entry) => entry.attribute) ?? studyAttributes(frozen.study);
+  const series = seriesAsRun(excluded, attributes);
   return {
     id: row.run.id,
     organisationId: row.run.organisationId,
@@ -282,7 +259,7 @@ export async function getAnalysisRun(
     options: row.run.options as AnalysisRunRecord['options'],
     exclusions,
     engineVersion: row.run.engineVersion,
-    result: row.run.result as StoredAnalysisResult,
+    result,
     methodStatement: row.run.methodStatement,
     supersedesRunId: row.run.supersedesRunId,
     supersededByRunId: await supersedingRun(db, row.run.id),
