@@ -8,6 +8,8 @@
  * "Returned to the author (round 1): “Check batch 2”".
  */
 
+import { attributeListChanges } from '../studies/index.ts';
+
 export interface AuditEventForWords {
   action: string;
   recordType: string | null;
@@ -36,13 +38,24 @@ function reviewers(after: Values): string {
     .join(', ');
 }
 
+const listText = (value: unknown): string =>
+  Array.isArray(value) ? value.map(text).join(', ') : text(value);
+
 function changedFields(before: Values, after: Values): string {
   const names = [...new Set([...Object.keys(before), ...Object.keys(after)])].filter(
     (key) => JSON.stringify(before[key]) !== JSON.stringify(after[key]) && key !== 'reason',
   );
+  // The further attributes of a study change field by field ("Water: upper limit 3 → 5").
   const shown = names
-    .slice(0, 6)
-    .map((key) => `${key} ${text(before[key]) || '—'} → ${text(after[key]) || '—'}`);
+    .flatMap((key) =>
+      key === 'additionalAttributes'
+        ? attributeListChanges(before[key], after[key]).map(
+            (change) =>
+              `${change.label} ${listText(change.before) || '—'} → ${listText(change.after) || '—'}`,
+          )
+        : [`${key} ${text(before[key]) || '—'} → ${text(after[key]) || '—'}`],
+    )
+    .slice(0, 6);
   return shown.length ? ` (${shown.join('; ')})` : '';
 }
 
