@@ -22,7 +22,11 @@ describe('a study change in the reviewer’s words', () => {
       recordType: 'study',
       recordId: '4',
       before: { additionalAttributes: [water], notes: '' },
-      after: { additionalAttributes: [{ ...water, upperLimit: 5 }], notes: '', reason: 'Protocol amendment 2' },
+      after: {
+        additionalAttributes: [{ ...water, upperLimit: 5 }],
+        notes: '',
+        reason: 'Protocol amendment 2',
+      },
     });
     expect(words).toBe('Study changed (Water: upper limit 3 → 5): “Protocol amendment 2”');
   });
