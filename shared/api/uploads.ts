@@ -104,6 +104,8 @@ export type ImportRequest = z.input<typeof importRequestSchema>;
 
 export const importedSeriesSchema = z.object({
   id: z.string(),
+  /** The study attribute the series measures, when the mapping names attributes. */
+  attribute: z.string().optional(),
   batch: z.string().optional(),
   temperatureC: z.number().optional(),
   points: z.number().int(),

@@ -9,6 +9,13 @@
  * goes on so the analyst sees all problems at once. Cells inside a merged block read the block's
  * content (a batch name or a time written once over several replicate rows).
  *
+ * A value cell may report a result below a limit ("<LOQ", "< 0.05": `parse-censored-cell.ts`);
+ * it is read as censored, never as a number. With several value columns (the wide layout: one
+ * column per attribute) a row gives one data row per value column, each with its attribute; a
+ * blank cell in one of them is skipped with a warning and the row's other values are kept. In the
+ * long layout the attribute of each row is read from its attribute column; a blank one is a
+ * problem on its cell.
+ *
  * Never throws; problems and warnings are returned.
  *
  * Example: the row `[3, '98,7', 'B-01']` with time in A and value in B reads as
@@ -19,6 +26,7 @@ import { columnLetter, sheetPrefix } from './cell-reference.ts';
 import type { ColumnMapping } from './column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
 import { valueCannotBeNegative } from './non-negative-unit.ts';
+import { type CensoredCell, parseCensoredCell } from './parse-censored-cell.ts';
 import { parseDateCell } from './parse-date-cell.ts';
 import { FORMULA_WITHOUT_VALUE_REASON, parseNumberCell } from './parse-number-cell.ts';
 import { cellText } from './resolve-column.ts';
@@ -39,6 +47,30 @@ export interface MappedColumns {
   series?: number;
   temperature?: number;
   replicate?: number;
+  /** Long layout: the column naming the attribute of each row. */
+  attribute?: number;
+  /** Wide layout: the value columns after `value`, each with its attribute and unit. */
+  moreValues?: { column: number; attribute: string; unit: string }[];
+}
+
+/** Every column index a mapping reads, the further value columns included. */
+export function mappedColumnIndexes(columns: MappedColumns): number[] {
+  const indexes = [columns.time, columns.value];
+  for (const column of [columns.series, columns.temperature, columns.replicate, columns.attribute])
+    if (column !== undefined) indexes.push(column);
+  for (const entry of columns.moreValues ?? []) indexes.push(entry.column);
+  return indexes;
+}
+
+type ValueCellResult =
+  | { ok: true; value: number; censored?: CensoredCell }
+  | { ok: false; blank: boolean; reason: string };
+
+/** A value cell: a result below a limit, or a number. */
+function parseValueCell(cell: GridCell | undefined): ValueCellResult {
+  const censored = parseCensoredCell(cell);
+  if (censored === null) return parseNumberCell(cell);
+  return censored.ok ? censored : { ok: false, blank: false, reason: censored.reason };
 }
 
 export interface DataRow {
@@ -47,6 +79,10 @@ export interface DataRow {
   time: number | Date;
   value: number;
   valueCell: string;
+  /** The attribute the value measures, as the mapping or the attribute cell names it. */
+  attribute?: string;
+  /** Set when the cell reported a result below a limit; `value` is then the limit or 0. */
+  censored?: CensoredCell;
   seriesLabel?: string;
   temperatureC?: number;
   replicateLabel?: string;
@@ -89,7 +125,7 @@ export function readDataRows(
   const rows: DataRow[] = [];
   const problems: IntakeProblem[] = [];
   const warnings: IntakeProblem[] = [];
-  const mapped = Object.values(columns).filter((column): column is number => column !== undefined);
+  const mapped = mappedColumnIndexes(columns);
   const merges = mergesOnColumns(sheet, mapped);
   // References are built from the sheet prefix and column letters worked out once: a 100,000-row
   // sheet needs two per row (the same text `cellReference` gives).
@@ -100,8 +136,13 @@ export function readDataRows(
   const datetime = mapping.timeFormat === 'datetime';
   const lowestTemperature = mapping.temperatureUnit === 'K' ? 0 : -273.15;
   const temperatureSymbol = mapping.temperatureUnit === 'K' ? 'K' : '°C';
-  const nonNegative = valueCannotBeNegative(mapping.valueUnit);
-  const negativeRows: number[] = [];
+  const valueColumns = [
+    { column: columns.value, attribute: mapping.valueAttribute, unit: mapping.valueUnit },
+    ...(columns.moreValues ?? []),
+  ].map((entry) => ({ ...entry, nonNegative: valueCannotBeNegative(entry.unit) }));
+  const several = valueColumns.length > 1;
+  const valueResults: ValueCellResult[] = [];
+  const negatives: { rowIndex: number; column: number }[] = [];
   let rowProblems: IntakeProblem[] = [];
   let rowIndex = 0;
   const cell = (column: number) => cellAt(sheet, merges, rowIndex, column);
@@ -131,11 +172,17 @@ export function readDataRows(
     if (rowProblems.length > 0) rowProblems = [];
 
     const timeCell = cell(columns.time);
-    const valueCell = cell(columns.value);
     const timeResult = datetime ? parseDateCell(timeCell) : parseNumberCell(timeCell);
-    const valueResult = parseNumberCell(valueCell);
-    if (!valueResult.ok && valueResult.blank && timeResult.ok) {
-      warnings.push(intakeProblem(reference(rowIndex, columns.value), 'no value; row skipped'));
+    // One array for every row, filled in place, and plain loops: this runs 100,000 times.
+    let allBlank = true;
+    for (let index = 0; index < valueColumns.length; index += 1) {
+      const result = parseValueCell(cell(valueColumns[index]!.column));
+      valueResults[index] = result;
+      if (result.ok || !result.blank) allBlank = false;
+    }
+    if (allBlank && timeResult.ok) {
+      const message = several ? 'no value in any value column; row skipped' : 'no value; row skipped';
+      warnings.push(intakeProblem(reference(rowIndex, columns.value), message));
       continue;
     }
     if (!timeResult.ok) {
@@ -150,8 +197,15 @@ export function readDataRows(
     } else if (typeof timeResult.value === 'number' && timeResult.value < 0) {
       report(columns.time, `time ${timeResult.value} is negative; times are elapsed since the first sample`);
     }
-    if (!valueResult.ok) report(columns.value, valueResult.reason);
+    for (let index = 0; index < valueColumns.length; index += 1) {
+      const result = valueResults[index]!;
+      if (result.ok || (several && result.blank && !allBlank)) continue;
+      if (several && allBlank && index > 0) continue;
+      report(valueColumns[index]!.column, result.reason);
+    }
 
+    const attribute =
+      columns.attribute === undefined ? mapping.valueAttribute : label(columns.attribute, 'attribute name');
     const seriesLabel = label(columns.series, 'batch name');
     const replicateLabel = label(columns.replicate, 'replicate label');
 
@@ -167,39 +221,55 @@ export function readDataRows(
       }
     }
 
-    if (rowProblems.length > 0 || !timeResult.ok || !valueResult.ok) {
+    if (rowProblems.length > 0 || !timeResult.ok) {
       problems.push(...rowProblems);
       continue;
     }
-    const row: DataRow = {
-      rowIndex,
-      time: timeResult.value,
-      value: valueResult.value,
-      valueCell: reference(rowIndex, columns.value),
-    };
-    if (seriesLabel !== undefined) row.seriesLabel = seriesLabel;
-    if (temperatureC !== undefined) row.temperatureC = temperatureC;
-    if (replicateLabel !== undefined) row.replicateLabel = replicateLabel;
-    rows.push(row);
-    if (nonNegative && valueResult.value < 0) {
-      negativeRows.push(rowIndex);
-      if (negativeRows.length <= MAX_NEGATIVE_VALUE_NOTES) {
-        warnings.push(
-          intakeProblem(
-            row.valueCell,
-            `value ${valueResult.value} is negative, but an amount in "${mapping.valueUnit}" cannot be: check the cell (a typing error, or a result below the quantitation limit written as a number); it is imported as written`,
-          ),
-        );
+    for (let index = 0; index < valueColumns.length; index += 1) {
+      const result = valueResults[index]!;
+      const entry = valueColumns[index]!;
+      if (!result.ok) {
+        if (result.blank) {
+          const named = entry.attribute === undefined ? '' : ` for ${entry.attribute}`;
+          warnings.push(intakeProblem(reference(rowIndex, entry.column), `no value${named}; cell skipped`));
+        }
+        continue;
+      }
+      const row: DataRow = {
+        rowIndex,
+        time: timeResult.value,
+        value: result.value,
+        valueCell: reference(rowIndex, entry.column),
+      };
+      if (attribute !== undefined) row.attribute = entry.attribute ?? attribute;
+      if (result.censored !== undefined) row.censored = result.censored;
+      if (seriesLabel !== undefined) row.seriesLabel = seriesLabel;
+      if (temperatureC !== undefined) row.temperatureC = temperatureC;
+      if (replicateLabel !== undefined) row.replicateLabel = replicateLabel;
+      rows.push(row);
+      if (entry.nonNegative && result.value < 0) {
+        negatives.push({ rowIndex, column: entry.column });
+        if (negatives.length <= MAX_NEGATIVE_VALUE_NOTES) {
+          warnings.push(
+            intakeProblem(
+              row.valueCell,
+              `value ${result.value} is negative, but an amount in "${entry.unit}" cannot be: check the cell (a typing error, or a result below the quantitation limit written as a number); it is imported as written`,
+            ),
+          );
+        }
       }
     }
   }
-  if (negativeRows.length > MAX_NEGATIVE_VALUE_NOTES) {
-    const rest = negativeRows.slice(MAX_NEGATIVE_VALUE_NOTES);
-    const letter = letters.get(columns.value) ?? columnLetter(columns.value);
+  if (negatives.length > MAX_NEGATIVE_VALUE_NOTES) {
+    const rest = negatives.slice(MAX_NEGATIVE_VALUE_NOTES);
+    const first = rest[0]!;
+    const last = rest[rest.length - 1]!;
+    const letter = (column: number) => letters.get(column) ?? columnLetter(column);
+    const oneColumn = rest.every((entry) => entry.column === first.column);
     warnings.push(
       intakeProblem(
-        `${prefix}${letter}${rest[0]! + 1}:${letter}${rest[rest.length - 1]! + 1}`,
-        `${rest.length} more negative values in this column, each imported as written; check them as above`,
+        `${prefix}${letter(first.column)}${first.rowIndex + 1}:${letter(last.column)}${last.rowIndex + 1}`,
+        `${rest.length} more negative values in ${oneColumn ? 'this column' : 'these columns'}, each imported as written; check them as above`,
       ),
     );
   }

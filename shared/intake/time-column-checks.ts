@@ -29,7 +29,7 @@
 import { columnLetter, sheetPrefix } from './cell-reference.ts';
 import type { ColumnMapping } from './column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from './intake-problem.ts';
-import type { DataRow, MappedColumns } from './read-data-rows.ts';
+import { type DataRow, type MappedColumns, mappedColumnIndexes } from './read-data-rows.ts';
 import { headerTexts } from './resolve-column.ts';
 import type { SheetGrid } from './sheet-grid.ts';
 
@@ -156,7 +156,7 @@ export function timeColumnChecks(input: TimeColumnCheckInput): {
 
 /** A column other than the mapped ones whose header reads like a time, if any. */
 function timeLikeColumn(headers: readonly string[], columns: MappedColumns): number | null {
-  const mapped = new Set(Object.values(columns));
+  const mapped = new Set(mappedColumnIndexes(columns));
   const index = headers.findIndex(
     (header, column) => !mapped.has(column) && TIME_HEADER.test(header) && !TEMPERATURE_HEADER.test(header),
   );

@@ -9,14 +9,20 @@
  * a 422 listing all of them and nothing is stored; otherwise the dataset (series, mapping, hash
  * over the canonical JSON of the series, point count), the saved mapping if asked for, and their
  * audit events are written in one transaction.
+ *
+ * A mapping that names attributes (several per sheet, issue 15 §1) is read against the study's
+ * attributes (`studyAttributes`): a name in the mapping or in the attribute column that is not
+ * one of them is refused with a 400 naming the field or the cell and the study's attributes, and
+ * the study's spelling is stored on each series. A mapping that names none reads as before.
  */
 
 import { sql } from 'drizzle-orm';
 import type { ImportResponse, MappingCheck } from '../../../shared/api/uploads.ts';
-import type { ColumnMapping } from '../../../shared/intake/column-mapping.ts';
+import { type ColumnMapping, mappingNamesAttributes } from '../../../shared/intake/column-mapping.ts';
 import { type IntakeProblem, intakeProblem } from '../../../shared/intake/intake-problem.ts';
-import { seriesFromGrid } from '../../../shared/intake/series-from-grid.ts';
+import { type IntakeOptions, seriesFromGrid } from '../../../shared/intake/series-from-grid.ts';
 import type { SheetGrid } from '../../../shared/intake/sheet-grid.ts';
+import { studyAttributes } from '../../../shared/kinetics/stability/study-attributes.ts';
 import type { Series } from '../../../shared/kinetics/types.ts';
 import { appendAuditEvent } from '../../platform/audit/audit-trail.ts';
 import { canonicalJson } from '../../platform/audit/canonical-json.ts';
@@ -24,7 +30,7 @@ import type { SessionUser } from '../../platform/auth/roles.ts';
 import type { Database } from '../../platform/db/client.ts';
 import { datasets } from '../../platform/db/schema/index.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
-import type { AuditContext } from '../studies/index.ts';
+import { type AuditContext, findStudy } from '../studies/index.ts';
 import { checkDuplicateImport } from './duplicate-import.ts';
 import { headerSignature, saveMapping } from './saved-mappings.ts';
 import { findUpload, forgetUploadSheets, sha256Hex, sheetsOfUpload } from './uploads.ts';
@@ -41,12 +47,26 @@ export interface MappedSeries {
   series: Series[];
   problems: IntakeProblem[];
   warnings: IntakeProblem[];
+  /** Attribute names that are not the study's (also in `problems`). */
+  attributeProblems?: IntakeProblem[];
 }
 
 /** Applies the mapping and the import's own rule (some series must span two times). */
-export function mapSheets(sheets: readonly SheetGrid[], mapping: ColumnMapping): MappedSeries {
-  const result = seriesFromGrid(sheets, mapping);
-  if (!result.ok) return { ok: false, series: [], problems: result.problems, warnings: result.warnings };
+export function mapSheets(
+  sheets: readonly SheetGrid[],
+  mapping: ColumnMapping,
+  options: IntakeOptions = {},
+): MappedSeries {
+  const result = seriesFromGrid(sheets, mapping, options);
+  if (!result.ok) {
+    return {
+      ok: false,
+      series: [],
+      problems: result.problems,
+      warnings: result.warnings,
+      ...(result.attributeProblems ? { attributeProblems: result.attributeProblems } : {}),
+    };
+  }
   const warnings = [...result.warnings];
   const singleTime = result.series.filter((series) => distinctTimes(series) < 2);
   const describe = (series: Series, hint = '') => {
@@ -86,8 +106,12 @@ export function replicateRows(series: readonly Series[]): number[] {
 }
 
 /** The dry run the preview shows: what importing with this mapping would give. */
-export function checkMapping(sheets: readonly SheetGrid[], mapping: ColumnMapping): MappingCheck {
-  const mapped = mapSheets(sheets, mapping);
+export function checkMapping(
+  sheets: readonly SheetGrid[],
+  mapping: ColumnMapping,
+  options: IntakeOptions = {},
+): MappingCheck {
+  const mapped = mapSheets(sheets, mapping, options);
   return {
     ok: mapped.ok,
     problems: mapped.problems.slice(0, MAX_PROBLEMS_LISTED),
@@ -142,6 +166,27 @@ export function seriesSha256(series: readonly Series[]): string {
   return sha256Hex(canonicalSeriesJson(series));
 }
 
+/**
+ * What the study lets a mapping name: its attribute names, when the mapping names attributes
+ * (a mapping that names none reads one attribute, the study's first, as before).
+ */
+export function intakeOptionsForStudy(
+  study: Parameters<typeof studyAttributes>[0],
+  mapping: ColumnMapping,
+): IntakeOptions {
+  if (!mappingNamesAttributes(mapping)) return {};
+  return { attributes: studyAttributes(study).map((attribute) => attribute.name) };
+}
+
+function attributesError(problems: IntakeProblem[]): HttpError {
+  const noun = problems.length === 1 ? 'an attribute' : 'attributes';
+  return new HttpError(
+    400,
+    `The mapping or the sheet names ${noun} this study does not have; nothing was stored. Match each value to one of the study's attributes (listed below), or add the attribute to the study first.`,
+    problems.slice(0, MAX_PROBLEMS_LISTED),
+  );
+}
+
 function problemsError(problems: IntakeProblem[]): HttpError {
   const count = problems.length;
   const listed = problems.slice(0, MAX_PROBLEMS_LISTED);
@@ -164,8 +209,10 @@ export async function importUpload(
   duplicateReason?: string,
 ): Promise<ImportResponse> {
   const upload = await findUpload(db, actor.organisationId, uploadId);
+  const study = await findStudy(db, actor.organisationId, upload.studyId);
   const sheets = await sheetsOfUpload(upload);
-  const mapped = mapSheets(sheets, mapping);
+  const mapped = mapSheets(sheets, mapping, intakeOptionsForStudy(study, mapping));
+  if (mapped.attributeProblems) throw attributesError(mapped.attributeProblems);
   if (!mapped.ok) throw problemsError(mapped.problems);
   const series = mapped.series;
   const pointCount = series.reduce((sum, entry) => sum + entry.observations.length, 0);
@@ -235,6 +282,7 @@ export async function importUpload(
         const last = entry.observations[entry.observations.length - 1]?.time ?? first;
         return {
           id: entry.id,
+          ...(entry.attribute !== undefined ? { attribute: entry.attribute } : {}),
           ...(entry.batch !== undefined ? { batch: entry.batch } : {}),
           ...(entry.temperatureC !== undefined ? { temperatureC: entry.temperatureC } : {}),
           points: entry.observations.length,

@@ -11,13 +11,14 @@ import {
   type UploadResponse,
 } from '../../../shared/api/uploads.ts';
 import { columnMappingSchema } from '../../../shared/intake/column-mapping.ts';
+import { studyAttributes } from '../../../shared/kinetics/stability/study-attributes.ts';
 import type { AppServices } from '../../platform/app-services.ts';
 import { auditContext } from '../../platform/audit/audit-context.ts';
 import { requireRole } from '../../platform/auth/route-policy.ts';
 import { HttpError } from '../../platform/http/http-error.ts';
 import { renderPage } from '../../platform/web/render-page.ts';
 import { findStudy } from '../studies/index.ts';
-import { checkMapping, importUpload } from './datasets.ts';
+import { checkMapping, importUpload, intakeOptionsForStudy } from './datasets.ts';
 import { hashingMemoryStorage, isHashedFile } from './hashing-memory-storage.ts';
 import { matchingSavedMappings } from './saved-mappings.ts';
 import { findUpload, previewSheet, sheetsOfUpload, storeUpload } from './uploads.ts';
@@ -109,6 +110,8 @@ export function uploadRoutes(services: AppServices): Router {
       title: `Map columns · ${upload.fileName}`,
       upload: { id: upload.id, fileName: upload.fileName, format: upload.format, sha256: upload.sha256 },
       study: { id: study.id, title: study.title, unit: study.unit },
+      // The study's attributes, for the island to match value columns to (issue 15 §1).
+      attributes: studyAttributes(study).map((attribute) => ({ name: attribute.name, unit: attribute.unit })),
     });
   });
 
@@ -128,6 +131,7 @@ export function uploadRoutes(services: AppServices): Router {
     const mapping = mappingFromQuery(req.query.mapping);
     const upload = await findUpload(services.db, req.user!.organisationId, uploadId);
     const sheets = await sheetsOfUpload(upload);
+    const study = mapping ? await findStudy(services.db, req.user!.organisationId, upload.studyId) : null;
     const body: PreviewResponse = {
       upload: {
         id: upload.id,
@@ -139,7 +143,7 @@ export function uploadRoutes(services: AppServices): Router {
       },
       sheets: sheets.map(previewSheet),
       savedMappings: await matchingSavedMappings(services.db, req.user!.organisationId, sheets),
-      check: mapping ? checkMapping(sheets, mapping) : null,
+      check: mapping && study ? checkMapping(sheets, mapping, intakeOptionsForStudy(study, mapping)) : null,
     };
     res.json(body);
   });

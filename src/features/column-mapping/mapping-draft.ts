@@ -5,13 +5,26 @@
  *
  * Columns are offered by header text when the header is unique and not itself a column letter
  * (so a saved mapping still fits when columns move), and by letter otherwise.
+ *
+ * For a study of several attributes the draft also holds the sheet's layout and each value
+ * column's attribute (`attribute-draft.ts`); for a study of one it names none, as before.
  */
 import type { SheetPreview } from '../../../shared/api/uploads.ts';
 import { columnIndex, columnLetter } from '../../../shared/intake/cell-reference.ts';
 import { type ColumnMapping, columnMappingSchema } from '../../../shared/intake/column-mapping.ts';
 import { timeUnitFromHeader, valueUnitForStudy } from '../../../shared/intake/unit-from-header.ts';
+import {
+  type AttributeChoice,
+  type AttributeDraft,
+  attributeColumnFields,
+  attributeDraftErrors,
+  attributeDraftFromMapping,
+  attributeFieldLabel,
+  attributeMappingInput,
+  guessAttributeDraft,
+} from './attribute-draft.ts';
 
-export interface MappingDraft {
+export interface MappingDraft extends AttributeDraft {
   sheet: string;
   headerRow: string;
   timeColumn: string;
@@ -70,7 +83,11 @@ const PATTERNS = {
 };
 
 /** A first guess from the header texts; the analyst checks and corrects it. */
-export function guessDraft(sheet: SheetPreview, valueUnit: string): MappingDraft {
+export function guessDraft(
+  sheet: SheetPreview,
+  valueUnit: string,
+  attributes: readonly AttributeChoice[] = [],
+): MappingDraft {
   const headerRow = sheet.headerGuess;
   const options = columnOptions(sheet, headerRow);
   const headers = previewHeaders(sheet, headerRow);
@@ -92,7 +109,15 @@ export function guessDraft(sheet: SheetPreview, valueUnit: string): MappingDraft
   const firstData = sheet.rows[headerRow]?.[timeIndex];
   const timeHeader = headers[timeIndex] ?? '';
   const valueHeader = headers[options.findIndex((option) => option.value === valueColumn)] ?? '';
+  const attributeDraft = guessAttributeDraft(
+    headers,
+    options.map((option) => option.value),
+    valueColumn,
+    attributes,
+    taken,
+  );
   return {
+    ...attributeDraft,
     sheet: sheet.name,
     headerRow: String(headerRow),
     timeColumn,
@@ -113,6 +138,7 @@ export function guessDraft(sheet: SheetPreview, valueUnit: string): MappingDraft
 
 export function draftFromMapping(mapping: ColumnMapping, fallbackSheet: string): MappingDraft {
   return {
+    ...attributeDraftFromMapping(mapping),
     sheet: mapping.sheet ?? fallbackSheet,
     headerRow: String(mapping.headerRow),
     timeColumn: mapping.timeColumn,
@@ -129,8 +155,12 @@ export function draftFromMapping(mapping: ColumnMapping, fallbackSheet: string):
 
 export type DraftCheck = { ok: true; mapping: ColumnMapping } | { ok: false; errors: Record<string, string> };
 
-/** Validates the draft with the shared schema; errors keyed by form field. */
-export function checkDraft(draft: MappingDraft): DraftCheck {
+/**
+ * Validates the draft with the shared schema; errors keyed by form field (a further value
+ * column's fields as "moreValueColumns.0.column"). `attributes` are the study's, for the checks
+ * the schema cannot make.
+ */
+export function checkDraft(draft: MappingDraft, attributes: readonly AttributeChoice[] = []): DraftCheck {
   const optional = (text: string) => (text.trim() === '' ? undefined : text);
   const headerRow = /^\d+$/.test(draft.headerRow.trim()) ? Number(draft.headerRow) : Number.NaN;
   const parsed = columnMappingSchema.safeParse({
@@ -145,11 +175,15 @@ export function checkDraft(draft: MappingDraft): DraftCheck {
     temperatureColumn: optional(draft.temperatureColumn),
     temperatureUnit: draft.temperatureUnit,
     replicateColumn: optional(draft.replicateColumn),
+    ...attributeMappingInput(draft),
   });
-  const errors: Record<string, string> = {};
+  const errors: Record<string, string> = attributeDraftErrors(draft, attributes);
   if (!parsed.success) {
     for (const issue of parsed.error.issues) {
-      const field = String(issue.path[0] ?? 'form');
+      const field =
+        issue.path[0] === 'moreValueColumns' && issue.path.length > 1
+          ? issue.path.join('.')
+          : String(issue.path[0] ?? 'form');
       errors[field] ??= friendly(field, issue.message);
     }
   }
@@ -157,7 +191,7 @@ export function checkDraft(draft: MappingDraft): DraftCheck {
     const [first, ...later] = twice.roles;
     for (const field of later)
       errors[field] ??=
-        `Column “${twice.column}” is already chosen as the ${LABELS[first!]}; a column can have one role only.`;
+        `Column “${twice.column}” is already chosen as the ${roleLabel(first!, draft)}; a column can have one role only.`;
   }
   if (Object.keys(errors).length > 0 || !parsed.success) return { ok: false, errors };
   return { ok: true, mapping: parsed.data };
@@ -174,14 +208,19 @@ const CHOSEN_COLUMNS = [
 /** A column the draft gives more than one role, with the roles in form order. */
 export interface ColumnChosenTwice {
   column: string;
-  roles: (typeof CHOSEN_COLUMNS)[number][];
+  /** Form fields: those of CHOSEN_COLUMNS, "attributeColumn", "moreValueColumns.<i>.column". */
+  roles: string[];
 }
 
-/** The columns chosen for more than one role (time, value, batch, temperature, replicate). */
+/** The columns chosen for more than one role (time, value, batch, temperature, replicate, attributes). */
 export function columnsChosenTwice(draft: MappingDraft): ColumnChosenTwice[] {
   const byColumn = new Map<string, ColumnChosenTwice['roles']>();
-  for (const field of CHOSEN_COLUMNS) {
-    const value = draft[field].trim();
+  const fields: [string, string][] = [
+    ...CHOSEN_COLUMNS.map((field): [string, string] => [field, draft[field]]),
+    ...attributeColumnFields(draft),
+  ];
+  for (const [field, chosen] of fields) {
+    const value = chosen.trim();
     if (value !== '') byColumn.set(value, [...(byColumn.get(value) ?? []), field]);
   }
   return [...byColumn.entries()]
@@ -190,8 +229,8 @@ export function columnsChosenTwice(draft: MappingDraft): ColumnChosenTwice[] {
 }
 
 /** "Column “Month” is chosen as both the time column and the value column." */
-export function describeColumnChosenTwice(twice: ColumnChosenTwice): string {
-  const names = twice.roles.map((role) => LABELS[role]!);
+export function describeColumnChosenTwice(twice: ColumnChosenTwice, draft?: MappingDraft): string {
+  const names = twice.roles.map((role) => roleLabel(role, draft));
   const list =
     names.length === 2
       ? names.join(' and the ')
@@ -206,6 +245,10 @@ const LABELS: Record<string, string> = {
   temperatureColumn: 'temperature column',
   replicateColumn: 'replicate column',
 };
+
+function roleLabel(field: string, draft: MappingDraft | undefined): string {
+  return LABELS[field] ?? (draft ? attributeFieldLabel(field, draft) : undefined) ?? field;
+}
 
 function friendly(field: string, message: string): string {
   if (field === 'headerRow')

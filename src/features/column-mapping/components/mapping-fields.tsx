@@ -12,10 +12,10 @@ const TIME_UNIT_LABELS: Record<string, string> = {
   year: 'years',
 };
 
-const inputClass = (error?: string) =>
+export const inputClass = (error?: string) =>
   `mt-1 block w-full rounded-sm border px-2 py-1.5 text-sm focus:border-ledger ${error ? 'border-alert' : 'border-rule'}`;
 
-function Field({
+export function Field({
   id,
   label,
   error,
@@ -45,6 +45,8 @@ function Field({
   );
 }
 
+type ColumnField = 'timeColumn' | 'valueColumn' | 'seriesColumn' | 'temperatureColumn' | 'replicateColumn';
+
 interface Props {
   draft: MappingDraft;
   errors: Record<string, string>;
@@ -57,7 +59,7 @@ interface Props {
 export function MappingFields({ draft, errors, sheetNames, columns, onChange }: Props) {
   const aria = (field: string) =>
     errors[field] ? { 'aria-invalid': true, 'aria-describedby': `map-${field}-error` } : {};
-  const columnSelect = (field: keyof MappingDraft, optional: boolean) => (
+  const columnSelect = (field: ColumnField, optional: boolean) => (
     <select
       id={`map-${field}`}
       value={draft[field]}

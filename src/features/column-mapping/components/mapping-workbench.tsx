@@ -3,6 +3,7 @@ import type { SavedMapping } from '../../../../shared/api/uploads.ts';
 import { ApiError } from '../../../lib/http.ts';
 import { usePreview } from '../api/get-preview.ts';
 import { importProblems, useImportUpload } from '../api/import-upload.ts';
+import type { AttributeChoice } from '../attribute-draft.ts';
 import {
   checkDraft,
   columnOptions,
@@ -12,6 +13,7 @@ import {
   guessDraft,
   type MappingDraft,
 } from '../mapping-draft.ts';
+import { AttributeFields } from './attribute-fields.tsx';
 import { DuplicateImportReason } from './duplicate-import-reason.tsx';
 import { ImportSummary } from './import-summary.tsx';
 import { MappingFields } from './mapping-fields.tsx';
@@ -58,25 +60,28 @@ export function MappingWorkbench({
   uploadId,
   studyId,
   valueUnit,
+  attributes = [],
 }: {
   uploadId: string;
   studyId: string;
   valueUnit: string;
+  /** The study's attributes; with more than one the form asks which column measures which. */
+  attributes?: readonly AttributeChoice[];
 }) {
   const [draft, setDraft] = useState<MappingDraft | null>(null);
   const [touched, setTouched] = useState(false);
   const [saveAs, setSaveAs] = useState('');
   const [saveWanted, setSaveWanted] = useState(false);
   const [dismissedOffer, setDismissedOffer] = useState(false);
-  const checked = draft ? checkDraft(draft) : null;
+  const checked = draft ? checkDraft(draft, attributes) : null;
   const mapping = useDebounced(checked?.ok ? checked.mapping : null, CHECK_DELAY_MS);
   const preview = usePreview(uploadId, mapping);
   const importer = useImportUpload(uploadId);
 
   const data = preview.data;
   useEffect(() => {
-    if (data && draft === null && data.sheets[0]) setDraft(guessDraft(data.sheets[0], valueUnit));
-  }, [data, draft, valueUnit]);
+    if (data && draft === null && data.sheets[0]) setDraft(guessDraft(data.sheets[0], valueUnit, attributes));
+  }, [data, draft, valueUnit, attributes]);
 
   const sheet = data?.sheets.find((candidate) => candidate.name === draft?.sheet) ?? data?.sheets[0];
   const headerRow = Number(draft?.headerRow ?? 0) || 0;
@@ -100,7 +105,7 @@ export function MappingWorkbench({
       if (!current) return current;
       if (patch.sheet && patch.sheet !== current.sheet) {
         const next = data.sheets.find((candidate) => candidate.name === patch.sheet);
-        return next ? guessDraft(next, valueUnit) : { ...current, ...patch };
+        return next ? guessDraft(next, valueUnit, attributes) : { ...current, ...patch };
       }
       return { ...current, ...patch };
     });
@@ -116,6 +121,19 @@ export function MappingWorkbench({
   for (const [field, role] of ROLE_FIELDS) {
     const index = columns.findIndex((option) => option.value !== '' && option.value === draft[field]);
     if (index >= 0) roles[index] = role;
+  }
+  const attributeRoles: [string, string][] =
+    draft.layout === 'long'
+      ? [[draft.attributeColumn, 'attribute']]
+      : draft.layout === 'wide'
+        ? draft.moreValueColumns.map((entry) => [
+            entry.column,
+            entry.attribute === '' ? 'value' : entry.attribute,
+          ])
+        : [];
+  for (const [chosen, role] of attributeRoles) {
+    const index = columns.findIndex((option) => option.value !== '' && option.value === chosen);
+    if (index >= 0 && roles[index] === undefined) roles[index] = role;
   }
   const current =
     mapping !== null && checked?.ok && JSON.stringify(mapping) === JSON.stringify(checked.mapping);
@@ -167,13 +185,24 @@ export function MappingWorkbench({
           columns={columns}
           onChange={update}
         />
+        {attributes.length > 1 && (
+          <AttributeFields
+            draft={draft}
+            errors={errors}
+            columns={columns}
+            attributes={attributes}
+            onChange={update}
+          />
+        )}
       </section>
 
       <section aria-label="Check of the whole sheet" aria-live="polite">
         {!checked?.ok ? (
           <p className="text-sm text-ink-muted">
             {columnsChosenTwice(draft).length > 0
-              ? `${columnsChosenTwice(draft).map(describeColumnChosenTwice).join(' ')} The whole sheet is then checked.`
+              ? `${columnsChosenTwice(draft)
+                  .map((twice) => describeColumnChosenTwice(twice, draft))
+                  .join(' ')} The whole sheet is then checked.`
               : draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
                 ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
                 : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
