@@ -84,11 +84,14 @@ export const analysisFigureSchema = z.object({
 });
 export type AnalysisFigure = z.infer<typeof analysisFigureSchema>;
 
-/** GET /api/analyses/:id/figures?group=series-N|dataset (all figures without a group). */
+/**
+ * GET /api/analyses/:id/figures?group=series-N|dataset (all figures without a group); a further
+ * attribute of a multi-attribute run prefixes its groups with "attribute-N-" (issue 15 §1).
+ */
 export const figuresQuerySchema = z.object({
   group: z
     .string()
-    .regex(/^(series-\d+|dataset)$/)
+    .regex(/^(attribute-\d+-)?(series-\d+|dataset)$/)
     .optional(),
 });
 

@@ -3,8 +3,9 @@ import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import { rateLawValue } from '../kinetics/order/integrated-rate-law.ts';
 import { fromStabilityScale } from '../kinetics/stability/stability-scale.ts';
 import { lineValueAt } from '../kinetics/temperature/inverse-temperature-line.ts';
-import type { Series } from '../kinetics/types.ts';
+import type { Observation, Series } from '../kinetics/types.ts';
 import { type FigureSpec, q1eFigureId } from './analysis-figures.ts';
+import { censoredWords } from './fitted-curves.ts';
 import { lawLabels } from './law-standing.ts';
 import { plotSample } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
@@ -52,6 +53,32 @@ function sampleWords(shown: number, total: number): string {
     : `The figure draws an even sample of ${shown} of ${total} points; this table lists the same points, and every point is in the export.`;
 }
 
+/** The value cell of a point: its reported text for a result below a limit ("<LOQ (fitted at 0.02)"). */
+function valueText(observation: Observation): string {
+  if (!observation.censored) return number(observation.value);
+  return observation.excluded
+    ? observation.censored.text
+    : `${observation.censored.text} (fitted at ${number(observation.value)})`;
+}
+
+/** Issue 15 §1: which results reported below a limit the figure leaves out, or "". */
+function censoredNotDrawn(seriesList: readonly Series[]): string {
+  const left = seriesList.flatMap((series) =>
+    series.observations
+      .filter((observation) => observation.censored && observation.excluded)
+      .map(
+        (observation) => `${series.id} at time ${number(observation.time)} (${observation.censored!.text})`,
+      ),
+  );
+  return left.length === 0
+    ? ''
+    : `Not drawn: ${left.length} result${left.length === 1 ? '' : 's'} reported below a limit and excluded from the fit by the study’s rule: ${left.join('; ')}.`;
+}
+
+function joined(...notes: string[]): string {
+  return notes.filter((note) => note !== '').join(' ');
+}
+
 function linearisedTable(analysis: SeriesAnalysis, series: Series): FigureDataTable {
   const sample = plotSample(series.observations.filter((observation) => observation.excluded === undefined));
   const lineOf = (transform: string) => {
@@ -71,21 +98,27 @@ function linearisedTable(analysis: SeriesAnalysis, series: Series): FigureDataTa
       '1/value',
       'Line: 1/value',
     ],
-    rows: sample.points.map(({ time, value }) => [
-      number(time),
-      number(value),
-      number(valueLine!(time)),
-      value > 0 ? number(Math.log(value)) : NOT_ESTIMABLE,
-      number(lnLine!(time)),
-      value > 0 ? number(1 / value) : NOT_ESTIMABLE,
-      number(inverseLine!(time)),
-    ]),
-    note: sampleWords(sample.shown, sample.total),
+    rows: sample.points.map((observation) => {
+      const { time, value } = observation;
+      return [
+        number(time),
+        valueText(observation),
+        number(valueLine!(time)),
+        value > 0 ? number(Math.log(value)) : NOT_ESTIMABLE,
+        number(lnLine!(time)),
+        value > 0 ? number(1 / value) : NOT_ESTIMABLE,
+        number(inverseLine!(time)),
+      ];
+    }),
+    note: joined(sampleWords(sample.shown, sample.total), censoredNotDrawn([series])),
   };
 }
 
 function curvesTable(analysis: SeriesAnalysis, series: Series): FigureDataTable {
-  const sample = plotSample(series.observations, (observation) => observation.excluded !== undefined);
+  const sample = plotSample(
+    series.observations,
+    (observation) => observation.excluded !== undefined || observation.censored !== undefined,
+  );
   const laws = lawLabels(analysis).flatMap(({ model: name }) => {
     const model = analysis.models.find((candidate) => String(candidate.order) === name);
     if (!model || model.c0 === null || model.k === null) return [];
@@ -105,8 +138,12 @@ function curvesTable(analysis: SeriesAnalysis, series: Series): FigureDataTable 
     ],
     rows: sample.points.map((observation) => [
       number(observation.time),
-      number(observation.value),
-      observation.excluded ? `excluded: ${observation.excluded.reason}` : 'used',
+      valueText(observation),
+      observation.censored
+        ? censoredWords(observation)
+        : observation.excluded
+          ? `excluded: ${observation.excluded.reason}`
+          : 'used',
       ...laws.flatMap((law) => {
         const fitted = law.at(observation.time);
         return [number(fitted), fitted === null ? NOT_ESTIMABLE : number(observation.value - fitted)];
@@ -221,14 +258,15 @@ function q1eTable(condition: ConditionShelfLife, seriesList: readonly Series[]):
     );
     shown += sample.shown;
     total += sample.total;
-    return sample.points.map(({ time, value }) => {
+    return sample.points.map((observation) => {
+      const { time, value } = observation;
       const mean = line
         ? fromStabilityScale(line.interceptAtTimeZero + line.slope * time, condition.transform)
         : null;
       return [
         series.id,
         number(time),
-        number(value),
+        valueText(observation),
         line?.label ?? NOT_ESTIMABLE,
         number(mean),
         mean === null ? NOT_ESTIMABLE : number(value - mean),
@@ -246,7 +284,7 @@ function q1eTable(condition: ConditionShelfLife, seriesList: readonly Series[]):
       'Residual',
     ],
     rows,
-    note: sampleWords(shown, total),
+    note: joined(sampleWords(shown, total), censoredNotDrawn(members)),
   };
 }
 

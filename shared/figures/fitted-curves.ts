@@ -1,6 +1,6 @@
 import type { SeriesAnalysis } from '../kinetics/analyse-series.ts';
 import { rateLawValue } from '../kinetics/order/integrated-rate-law.ts';
-import type { Series } from '../kinetics/types.ts';
+import type { Observation, Series } from '../kinetics/types.ts';
 import {
   FIGURE_CONFIG,
   MODEL_COLOURS,
@@ -85,13 +85,23 @@ export function fittedCurvesSpec(
   const lineSymbols = { symbolType: 'stroke', symbolSize: 900 };
   const lawLegend = named ? { columns: 2, ...lineSymbols } : { columns: 1, labelLimit: 360, ...lineSymbols };
   const namedBand = named && band && String(band.order) === named.model ? band : undefined;
-  const sample = plotSample(series.observations, (observation) => observation.excluded !== undefined);
+  const sample = plotSample(
+    series.observations,
+    (observation) => observation.excluded !== undefined || observation.censored !== undefined,
+  );
   const points = sample.points.map((observation) => ({
     time: observation.time,
     value: observation.value,
-    status: observation.excluded ? 'excluded' : 'used',
-    reason: observation.excluded?.reason ?? '—',
+    status: observation.censored ? CENSORED_STATUS : observation.excluded ? 'excluded' : 'used',
+    reason: observation.censored ? censoredWords(observation) : (observation.excluded?.reason ?? '—'),
   }));
+  // Issue 15 §1: results reported below a limit get a shape of their own (only when there are any,
+  // so the figures of series without such results are unchanged).
+  const censored = points.some((point) => point.status === CENSORED_STATUS);
+  const statuses = censored ? ['used', 'excluded', CENSORED_STATUS] : ['used', 'excluded'];
+  const statusColours = censored
+    ? [PALETTE.ink, PALETTE.alert, PALETTE.ledger]
+    : [PALETTE.ink, PALETTE.alert];
   const bandValues = (namedBand?.points ?? []).filter(
     (point) => point.lower !== null && point.upper !== null,
   );
@@ -163,18 +173,21 @@ export function fittedCurvesSpec(
           field: 'status',
           type: 'nominal',
           title: 'Point',
-          scale: { domain: ['used', 'excluded'], range: ['circle', 'cross'] },
+          scale: {
+            domain: statuses,
+            range: censored ? ['circle', 'cross', 'triangle-down'] : ['circle', 'cross'],
+          },
         },
         fill: {
           field: 'status',
           type: 'nominal',
-          scale: { domain: ['used', 'excluded'], range: [PALETTE.ink, PALETTE.alert] },
+          scale: { domain: statuses, range: statusColours },
           legend: null,
         },
         stroke: {
           field: 'status',
           type: 'nominal',
-          scale: { domain: ['used', 'excluded'], range: [PALETTE.ink, PALETTE.alert] },
+          scale: { domain: statuses, range: statusColours },
           legend: null,
         },
         tooltip: [
@@ -186,7 +199,10 @@ export function fittedCurvesSpec(
       },
     },
   );
-  const note = curvesNote(analysis, named, bandValues.length > 1, percent);
+  const note = [
+    ...curvesNote(analysis, named, bandValues.length > 1, percent),
+    ...(censored ? [CENSORED_NOTE] : []),
+  ];
   return {
     $schema: VEGA_LITE_SCHEMA,
     description: `Data of ${series.id} with the fitted curve of each rate law. ${note.join(' ')}`,
@@ -207,6 +223,19 @@ export function fittedCurvesSpec(
       },
     },
   };
+}
+
+/** The status of a point reported below a limit ("<LOQ"), in the legend and the data table. */
+export const CENSORED_STATUS = 'below limit';
+const CENSORED_NOTE =
+  'Triangles pointing down: results reported below a limit, drawn at the limit (or 0); the study’s rule decides whether they are fitted.';
+
+/** How a result reported below a limit is shown in words: its text and what the fit did with it. */
+export function censoredWords(observation: Observation): string {
+  const text = observation.censored?.text ?? '';
+  if (!observation.excluded) return `reported as ${text}: fitted at ${observation.value} by the study’s rule`;
+  const reason = observation.excluded.reason;
+  return reason.includes(text) ? reason : `reported as ${text}; excluded: ${reason}`;
 }
 
 /** The subtitle lines: which law the table names and what is shaded, or why no law is singled out. */

@@ -5,6 +5,7 @@ import type { Browser, Page } from 'puppeteer-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { RenderWorker } from '../../server/features/reports/queue/render-worker.ts';
 import { reportStorage } from '../../server/platform/storage/report-storage.ts';
+import { seedMultiAttributeRun } from '../integration/multi-attribute-run-seed.ts';
 import { postReviewForm, startTestRenderWorker, waitForRender } from '../integration/render-fixture.ts';
 import { makeAnalysisRun } from '../integration/reports-fixture.ts';
 import { reportWithoutRender, tokenOf, uploadVeltrazine } from '../integration/study-flow-fixture.ts';
@@ -40,7 +41,14 @@ let server: Awaited<ReturnType<typeof serve>>;
 let worker: RenderWorker;
 let smtp: TestSmtp;
 let links: { invitation: string; passwordReset: string; verify: string };
-let ids: { studyId: number; runId: number; uploadId: number; reportId: number; draftReportId: number };
+let ids: {
+  studyId: number;
+  runId: number;
+  uploadId: number;
+  reportId: number;
+  draftReportId: number;
+  multiRunId: number;
+};
 
 beforeAll(async () => {
   world = await createTestWorld({
@@ -102,7 +110,9 @@ beforeAll(async () => {
     passwordReset: `/password-reset/${await tokenIn(world.users.forgetful!.email, 'password-reset')}`,
     verify: `/verify?report=${reportNumber}`,
   };
-  ids = { studyId, runId, uploadId, reportId: renderedId, draftReportId: reportId };
+  // A run of several attributes (issue 15 §1): its page has more regions, tables and figures.
+  const multi = await seedMultiAttributeRun(world.database.db, world.organisationId, world.users.analyst!.id);
+  ids = { studyId, runId, uploadId, reportId: renderedId, draftReportId: reportId, multiRunId: multi.runId };
   server = await serve(world.app);
   browser = await launchChromium();
 }, 180_000);
@@ -522,6 +532,7 @@ describe('WCAG 2.1 A and AA rules of axe-core on every page, as the role that us
         `/studies/${ids.studyId}`,
         `/studies/${ids.studyId}/edit`,
         `/analyses/${ids.runId}`,
+        `/analyses/${ids.multiRunId}`,
         `/retire/analysis/${ids.runId}`,
         '/app/activity',
         '/app/reports',

@@ -2,6 +2,11 @@ import type { Writable } from 'node:stream';
 import { resultRows } from '../../../shared/figures/results-table.ts';
 import { csvTable } from '../../platform/export/csv-writer.ts';
 import { planSheet, writeWorkbook } from '../../platform/export/workbook-writer.ts';
+import {
+  ATTRIBUTE_RESULT_COLUMNS,
+  attributeResultRows,
+  attributeSheets,
+} from './analysis-attributes-sheet.ts';
 import { figureDataSheet } from './analysis-figure-data-sheet.ts';
 import { fitSheets } from './analysis-fit-sheets.ts';
 import { proposalSheet } from './analysis-proposal-sheet.ts';
@@ -39,6 +44,8 @@ export async function writeAnalysisWorkbook(run: AnalysisRunRecord, stream: Writ
     ...fitSheets(analysis),
     temperatureSheet(run),
     proposalSheet(run),
+    // Issue 15 §1: present only for a run of several attributes.
+    ...attributeSheets(run),
     figureDataSheet(run),
     methodStatementSheet(run),
   ];
@@ -50,5 +57,8 @@ export async function writeAnalysisWorkbook(run: AnalysisRunRecord, stream: Writ
  * byte-order mark so spreadsheet programs read "°".
  */
 export function analysisCsv(run: AnalysisRunRecord): string {
+  // A run of several attributes lists every attribute's rows, each naming its attribute (issue 15 §1).
+  if (run.result.otherAttributes?.length)
+    return csvTable(ATTRIBUTE_RESULT_COLUMNS, attributeResultRows(run, true), { byteOrderMark: true });
   return csvTable(RESULT_COLUMNS, resultRows(run.result.analysis), { byteOrderMark: true });
 }

@@ -23,6 +23,17 @@ export function aboutSheet(run: AnalysisRunRecord): PlannedSheet {
     ['Study', run.study.title],
     ['Product', run.study.product],
     ['Attribute', `${run.study.attribute} (${run.study.unit})`],
+    // Issue 15 §1: a run of several attributes names the others (their criteria are in "Shelf life by attribute").
+    ...(run.result.otherAttributes?.length
+      ? ([
+          [
+            'Other attributes',
+            run.result.otherAttributes
+              .map(({ attribute }) => `${attribute.name} (${attribute.unit})`)
+              .join('; '),
+          ],
+        ] as AboutRow[])
+      : []),
     ['Lower limit', run.study.lowerLimit],
     ['Upper limit', run.study.upperLimit],
     ['Storage temperature (°C)', run.study.storageTemperatureC],
@@ -77,8 +88,23 @@ function* dataRows(run: AnalysisRunRecord): Generator<DataRow> {
   }
 }
 
+/** The cell's text of a result reported below a limit ("<LOQ"); its Value is then the limit or 0. */
+const REPORTED_AS: ExportColumn<DataRow> = {
+  header: 'Reported as',
+  width: 14,
+  type: 'text',
+  value: ({ observation }) => observation.censored?.text,
+};
+
 export function dataSheet(run: AnalysisRunRecord): PlannedSheet {
-  return planSheet({ name: 'Data', columns: DATA_COLUMNS, rows: () => dataRows(run) });
+  // The column is there only when a result was reported below a limit, so other exports are unchanged.
+  const censored = run.series.some((series) =>
+    series.observations.some((observation) => observation.censored),
+  );
+  const columns = censored
+    ? [...DATA_COLUMNS.slice(0, 7), REPORTED_AS, ...DATA_COLUMNS.slice(7)]
+    : DATA_COLUMNS;
+  return planSheet({ name: 'Data', columns, rows: () => dataRows(run) });
 }
 
 interface MethodRow {

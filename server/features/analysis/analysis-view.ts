@@ -1,17 +1,13 @@
 import { MIN_EXCLUSION_REASON_LENGTH } from '../../../shared/api/analyses.ts';
 import { analysisFigures } from '../../../shared/figures/analysis-figures.ts';
-import { figureDataTables } from '../../../shared/figures/figure-data-tables.ts';
-import { MODEL_NAMES, type ResultRow, resultRows } from '../../../shared/figures/results-table.ts';
-import {
-  formatInterval,
-  formatPercent,
-  formatSignificant,
-  NOT_ESTIMABLE,
-} from '../../../shared/figures/significant-figures.ts';
-import { inTimeUnit } from '../../../shared/figures/time-unit-words.ts';
-import { proposalView } from './analysis-proposal-view.ts';
+import { otherAttributeFigures } from '../../../shared/figures/attribute-figures.ts';
+import { type FigureDataTable, figureDataTables } from '../../../shared/figures/figure-data-tables.ts';
+import { MODEL_NAMES } from '../../../shared/figures/results-table.ts';
+import { formatPercent, formatSignificant } from '../../../shared/figures/significant-figures.ts';
+import { attributeResults } from './analysis-attribute-results.ts';
 import type { AnalysisRunRecord } from './analysis-runs.ts';
-import { groupedWarnings, readableNumbers, verdictSummary } from './analysis-verdict.ts';
+import { massBalanceModel, otherAttributesModel, studyVerdictModel } from './analysis-study-verdict.ts';
+import { groupedWarnings, verdictSummary } from './analysis-verdict.ts';
 import type { NumberCell } from './number-cell.ts';
 import { studyStandingModel } from './study-snapshot.ts';
 
@@ -29,58 +25,26 @@ export type { NumberCell };
 
 /** The figures of a run, as the screen, the figures API and the export all show them. */
 export function runFigures(run: AnalysisRunRecord) {
-  return analysisFigures(run.result, run.series, studyLimits(run.study), run.study.storageTemperatureC);
+  return figuresAndTables(run).figures;
+}
+
+/** The figures, with the other attributes' data tables (their figure code makes both at once). */
+function figuresAndTables(run: AnalysisRunRecord) {
+  const storage = run.study.storageTemperatureC;
+  const first = analysisFigures(run.result, run.series, studyLimits(run.study), storage);
+  // Issue 15 §1: the other attributes' figures follow the first's, under their own ids.
+  if (!run.result.otherAttributes?.length) return { figures: first, otherTables: {} };
+  const others = otherAttributeFigures(run.result, run.series, storage);
+  return {
+    figures: [...first, ...others.flatMap((entry) => entry.figures)],
+    otherTables: Object.assign({}, ...others.map((entry) => entry.tables)) as Record<string, FigureDataTable>,
+  };
 }
 
 export function studyLimits(study: { lowerLimit: number | null; upperLimit: number | null }) {
   return {
     ...(study.lowerLimit === null ? {} : { lower: study.lowerLimit }),
     ...(study.upperLimit === null ? {} : { upper: study.upperLimit }),
-  };
-}
-
-function numberCell(row: ResultRow | undefined): NumberCell {
-  if (!row)
-    return {
-      key: '',
-      text: NOT_ESTIMABLE,
-      value: '',
-      interval: NOT_ESTIMABLE,
-      hasInterval: false,
-      unit: '',
-      note: '',
-    };
-  const interval =
-    row.lower !== null && row.upper !== null ? ([row.lower, row.upper] as [number, number]) : null;
-  return {
-    key: row.key,
-    text: formatSignificant(row.estimate, row.digits),
-    value: row.estimate === null ? '' : String(row.estimate),
-    interval: formatInterval(interval, Math.max(row.digits - 1, 3)),
-    hasInterval: interval !== null,
-    unit: row.unit,
-    note: readableNumbers(row.note),
-  };
-}
-
-/**
- * The plausible laws of a series whose order the data do not name, one group per law (its k and
- * times), then the model averages (t90, time to a limit; never k), all from the result rows.
- */
-function plausibleView(rows: readonly ResultRow[], seriesId: string) {
-  const own = rows.filter((row) => row.section === 'plausible' && row.seriesId === seriesId);
-  if (own.length === 0) return null;
-  const models = [...new Set(own.map((row) => row.model))].filter((model) => model !== 'average');
-  return {
-    laws: models.map((model) => ({
-      name: MODEL_NAMES[model ?? ''] ?? model,
-      rows: own
-        .filter((row) => row.model === model)
-        .map((row) => ({ label: row.label, cell: numberCell(row) })),
-    })),
-    averages: own
-      .filter((row) => row.model === 'average')
-      .map((row) => ({ label: row.label, cell: numberCell(row) })),
   };
 }
 
@@ -96,14 +60,11 @@ export interface FormState {
 export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, form?: FormState) {
   const { analysis } = run.result;
   const options = run.options.analyst;
-  const rows = resultRows(analysis);
-  const byKey = new Map(rows.map((row) => [row.key, row]));
-  const find = (section: string, seriesId: string | null, model: string | null, quantity: string) =>
-    numberCell(byKey.get([section, seriesId ?? '*', model ?? '-', quantity].join('|')));
-  const figures = runFigures(run);
+  const { figures, otherTables } = figuresAndTables(run);
   const figureIds = new Set(figures.map((figure) => figure.id));
   // Issue 17 §4: each figure's "data" table, from the same stored result as the figure.
-  const tables = figureDataTables(run.result, run.series, figures);
+  const tables = { ...figureDataTables(run.result, run.series, figures), ...otherTables };
+
   const figure = (id: string) => {
     const found = figures.find((candidate) => candidate.id === id);
     return found
@@ -122,147 +83,17 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     study.upperLimit === null ? null : `not more than ${study.upperLimit}`,
   ].filter(Boolean);
 
-  const series = analysis.series.map((result, index) => {
-    const fitted = result.analysis;
-    const reported =
-      fitted?.reportedOrder === null || fitted?.reportedOrder === undefined
-        ? null
-        : String(fitted.reportedOrder);
-    const models = (fitted?.models ?? []).map((model) => {
-      const name = String(model.order);
-      return {
-        name: MODEL_NAMES[name] ?? name,
-        reported: fitted?.reportedOrder !== null && String(fitted?.reportedOrder) === name,
-        applicable: model.applicable,
-        reason: readableNumbers(model.reason ?? ''),
-        k: find('rate-law', result.id, name, 'k'),
-        c0: find('rate-law', result.id, name, 'c0'),
-        n: name === 'n' ? find('rate-law', result.id, name, 'n') : null,
-        aicc: find('rate-law', result.id, name, 'aicc'),
-        weight: find('rate-law', result.id, name, 'weight'),
-      };
-    });
-    const derived = ['half-life', 't90', 'time-to-lower-limit', 'time-to-upper-limit'].flatMap((quantity) => {
-      const row = byKey.get(['derived', result.id, reported ?? '-', quantity].join('|'));
-      return row ? [{ label: row.label, cell: numberCell(row) }] : [];
-    });
-    const linearised = (fitted?.linearized ?? []).map((line) => ({
-      transform: line.transform,
-      cell: find('linearised', result.id, line.transform, 'r-squared'),
-    }));
-    const derivedCell = (quantity: string) =>
-      numberCell(byKey.get(['derived', result.id, reported ?? '-', quantity].join('|')));
-    return {
-      anchor: `series-${index}`,
-      overview: {
-        k: reported === null ? null : find('rate-law', result.id, reported, 'k'),
-        halfLife: derivedCell('half-life'),
-        t90: derivedCell('t90'),
-        timeToLower: derivedCell('time-to-lower-limit'),
-        timeToUpper: derivedCell('time-to-upper-limit'),
-        weights: models.map((model, modelIndex) => ({
-          name: ['0', '1', '2', 'n'][modelIndex] ?? '',
-          cell: model.weight,
-        })),
-      },
-      id: result.id,
-      batch: result.batch ?? '—',
-      temperature: result.temperatureC === null ? '—' : `${result.temperatureC} °C`,
-      error: result.error?.message ?? null,
-      n: fitted?.n ?? 0,
-      timeSpan: fitted
-        ? `${formatSignificant(fitted.timeSpan[0], 3)} to ${formatSignificant(fitted.timeSpan[1], 3)} ${fitted.timeUnit}`
-        : '',
-      verdict: readableNumbers(fitted?.verdict ?? ''),
-      orderSource:
-        fitted?.orderSource === 'analyst'
-          ? 'fixed by the analyst'
-          : fitted?.orderSource === 'study'
-            ? `working order from the study: ${fitted.workingOrderReason ?? ''}`
-            : 'from the data',
-      plausible: plausibleView(rows, result.id),
-      reportedName: reported === null ? 'none named' : MODEL_NAMES[reported],
-      errorModel: fitted ? `${fitted.errorModel} (${fitted.errorModelChoice.reason})` : '',
-      fractionReacted: formatPercent(fitted?.fractionReacted ?? null),
-      derivedReason: fitted?.derivedReason ?? '',
-      models,
-      derived,
-      linearised,
-      warnings: (fitted?.warnings ?? []).map((warning) => ({
-        code: warning.code,
-        message: readableNumbers(warning.message),
-      })),
-      excluded: (fitted?.excluded ?? []).map((point) => ({
-        time: formatSignificant(point.time, 4),
-        value: formatSignificant(point.value, 4),
-        reason: point.reason,
-        cell: point.source?.cell ?? '',
-      })),
-      figures: ['linearised', 'curves', 'residuals'].flatMap((kind) => {
-        const id = `series-${index}-${kind}`;
-        return figureIds.has(id) ? [figure(id)] : [];
-      }),
-      open: index === 0,
-    };
-  });
-
-  const arrhenius = analysis.arrhenius;
-  const arrheniusModel = arrhenius
-    ? {
-        order: arrhenius.order === null ? 'none' : MODEL_NAMES[String(arrhenius.order)],
-        orderSource:
-          arrhenius.orderSource === 'analyst'
-            ? 'fixed by the analyst'
-            : arrhenius.orderSource === 'study'
-              ? 'working order from the study, as no series named an order'
-              : 'lowest summed AICc',
-        noOrderNamed: analysis.warnings.find((warning) => warning.code === 'no-order-named')?.message ?? null,
-        notApplicable: arrhenius.notApplicableReason,
-        rows: rows
-          .filter((row) => row.section === 'arrhenius')
-          .map((row) => ({ label: row.label, cell: numberCell(row) })),
-        excludedSeries: arrhenius.excludedSeries.map((entry) => ({
-          id: entry.id,
-          reason: readableNumbers(entry.reason),
-        })),
-        figure: figure('arrhenius'),
-      }
-    : null;
-
-  const shelfLife = (analysis.shelfLife ?? []).map((condition) => {
-    const id = condition.temperatureC === null ? 'all' : `${condition.temperatureC}C`;
-    const row = rows.find(
-      (candidate) => candidate.section === 'shelf-life' && candidate.quantity === `shelf-life-${id}`,
-    );
-    const result = condition.result;
-    const figureId = `q1e-${condition.temperatureC === null ? 'all' : String(condition.temperatureC).replace(/[^0-9]/g, '-')}`;
-    const timeUnit =
-      analysis.series.find((entry) => condition.seriesIds.includes(entry.id))?.analysis?.timeUnit ?? '';
-    const proposal = proposalView(condition, timeUnit);
-    return {
-      condition: condition.temperatureC === null ? 'all series' : `${condition.temperatureC} °C`,
-      proposal,
-      series: condition.seriesIds.join(', '),
-      scale: { none: 'values (zero order)', ln: 'ln(value) (first order)', '1/x': '1/value (second order)' }[
-        condition.transform
-      ],
-      transformReason: condition.transformReason,
-      cell: numberCell(row),
-      model: result ? (result.model === 'single-batch' ? 'single batch' : result.model) : '',
-      poolability: readableNumbers(
-        result?.poolability?.explanation ?? result?.poolabilityNotApplicableReason ?? '',
-      ),
-      reason: inTimeUnit(readableNumbers(result?.reason ?? condition.notApplicableReason ?? ''), timeUnit),
-      // Only the declared long-term condition proposes a shelf life; runs recorded before roles use the storage temperature.
-      accelerated: proposal.recorded
-        ? !proposal.isLongTerm
-        : study.storageTemperatureC !== null &&
-          condition.temperatureC !== null &&
-          condition.temperatureC !== study.storageTemperatureC,
-      beyondData: result?.extrapolation.beyondObservedData === true,
-      limiting: result?.limitingLine ?? null,
-      figure: figureIds.has(figureId) ? figure(figureId) : null,
-    };
+  const {
+    series,
+    arrhenius: arrheniusModel,
+    shelfLife,
+  } = attributeResults({
+    analysis,
+    series: run.series,
+    figureIds,
+    figure,
+    storageTemperatureC: study.storageTemperatureC,
+    prefix: '',
   });
 
   const summary = verdictSummary(analysis, shelfLife, arrheniusModel, options.order);
@@ -273,7 +104,7 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     label: entry.id,
     options: entry.observations.map((observation, index) => ({
       value: `${seriesIndex}:${index}`,
-      label: `${entry.id} · t = ${formatSignificant(observation.time, 4)} ${entry.timeUnit} · ${formatSignificant(observation.value, 4)} ${entry.valueUnit}${observation.source?.cell ? ` (${observation.source.cell})` : ''}`,
+      label: `${entry.id} · t = ${formatSignificant(observation.time, 4)} ${entry.timeUnit} · ${observation.censored ? observation.censored.text : formatSignificant(observation.value, 4)} ${entry.valueUnit}${observation.source?.cell ? ` (${observation.source.cell})` : ''}`,
       disabled: observation.excluded !== undefined,
       selected: form?.point === `${seriesIndex}:${index}`,
     })),
@@ -367,5 +198,23 @@ export function analysisPageModel(run: AnalysisRunRecord, canExclude: boolean, f
     hasFigures: figures.length > 0,
     hasLowerLimit: study.lowerLimit !== null && study.direction !== 'increasing',
     hasUpperLimit: study.upperLimit !== null && study.direction !== 'decreasing',
+    // Issue 15 §1: only a run of several attributes carries these keys; one attribute reads as before.
+    ...(run.result.otherAttributes?.length || run.result.studyShelfLife || run.result.massBalance
+      ? {
+          multiAttribute: {
+            firstAttribute: study.attribute,
+            verdict: studyVerdictModel(run.result),
+            others: otherAttributesModel({
+              result: run.result,
+              series: run.series,
+              figureIds,
+              figure,
+              storageTemperatureC: study.storageTemperatureC,
+              fixedOrder: options.order,
+            }),
+            massBalance: massBalanceModel(run.result.massBalance),
+          },
+        }
+      : {}),
   };
 }
