@@ -48,4 +48,7 @@ node dist/server/demo/seed.js
 
 node dist/server/index.js &
 SERVER_PID=$!
+# The demo people's first reports (one signed, one waiting for review), made through the server's
+# own pages once it answers; does nothing when the demo organisation already holds a report.
+node dist/server/demo/demo-activity.js "http://${HOST:-127.0.0.1}:${PORT:-3000}" &
 wait "$SERVER_PID"

@@ -20,8 +20,9 @@ import { DEMO_ACCOUNTS } from './demo-accounts.ts';
  *
  * The data go the way a user's would: written as an .xlsx workbook, stored as the original upload
  * with its SHA-256, read back by the real intake (`readWorkbook`, `seriesFromGrid`) with a column
- * mapping, stored as a dataset, and analysed twice (order from the data; first order fixed, as in
- * ICH shelf-life work), then once more with an excluded point, so the screen shows a superseded run.
+ * mapping, stored as a dataset, and analysed (order from the data), then once more with an excluded
+ * point, so the screen shows a superseded run. The seed uses the four-attribute results workbook
+ * of `demo-stability-results.ts`; tests use the assay-only workbook here (`ASSAY_DEMO_RECIPE`).
  *
  * Model (invented): C(t) = C0·exp(−k(T)·t), C0 = 100.4 % of label claim, k(25 °C) = 0.0016 /month,
  * Ea = 92 kJ/mol; noise SD 0.35 % of label claim; batch-to-batch C0 and k differ slightly.
@@ -127,44 +128,59 @@ export interface DemoContext {
   analystName: string;
 }
 
+/** A demo study's values, its workbook and the mapping that reads it. */
+export interface DemoStudyRecipe {
+  study: Omit<typeof studies.$inferInsert, 'organisationId' | 'createdBy'>;
+  fileName: string;
+  workbook: () => Promise<Buffer>;
+  mapping: ColumnMappingInput;
+}
+
+/** The assay-only demo study: one attribute, the workbook of `demoWorkbook` (tests use it). */
+export const ASSAY_DEMO_RECIPE: DemoStudyRecipe = {
+  study: {
+    title: 'Quillatrine 40 mg — registration stability (demo)',
+    product: DEMO_PRODUCT,
+    attribute: 'Assay',
+    unit: '% of label claim',
+    direction: 'decreasing',
+    lowerLimit: 95,
+    upperLimit: 105,
+    storageTemperatureC: 25,
+    storageHumidityPercent: 60,
+    // The Q1E declaration (invented): 25 °C long-term, 40 °C accelerated; 50 and 60 °C are
+    // stress conditions for the kinetics only. No intermediate study, so its outcome stays
+    // unknown — and the analysis names that assumption.
+    storageCategory: 'room-temperature',
+    acceleratedTemperatureC: 40,
+    acceleratedChange: 'significant',
+    littleChange: 'no',
+    supportingData: 'yes',
+    declarationBasis:
+      'Invented demo statements: assay fell more than 5 % within 6 months at 40 °C (accelerated report AR-QT-07); supporting data from development batches QT-D01 to QT-D03.',
+    batches: [...DEMO_BATCHES],
+    notes: 'Invented demo data: long-term 25 °C/60 % RH, accelerated 40 °C, stress conditions 50 and 60 °C.',
+  },
+  fileName: DEMO_WORKBOOK_NAME,
+  workbook: () => demoWorkbook(),
+  mapping: DEMO_MAPPING,
+};
+
 /**
- * The demo study, its original workbook (upload) and the dataset read from it by the real intake,
- * with audit events; no analysis yet. Used by the seed and by tests that need a realistic dataset.
+ * A demo study, its original workbook (upload) and the dataset read from it by the real intake,
+ * with audit events; no analysis yet. Used by the seed and by tests that need a realistic dataset
+ * (the assay-only study unless another recipe is given).
  */
 export async function createDemoDataset(
   db: Executor,
   context: DemoContext,
+  recipe: DemoStudyRecipe = ASSAY_DEMO_RECIPE,
 ): Promise<{ studyId: number; uploadId: number; datasetId: number; series: Series[] }> {
   const actor = { actorUserId: context.analystUserId, actorLabel: context.analystName };
   return db.transaction(async (tx) => {
     const [study] = await tx
       .insert(studies)
-      .values({
-        organisationId: context.organisationId,
-        title: 'Quillatrine 40 mg — registration stability (demo)',
-        product: DEMO_PRODUCT,
-        attribute: 'Assay',
-        unit: '% of label claim',
-        direction: 'decreasing',
-        lowerLimit: 95,
-        upperLimit: 105,
-        storageTemperatureC: 25,
-        storageHumidityPercent: 60,
-        // The Q1E declaration (invented): 25 °C long-term, 40 °C accelerated; 50 and 60 °C are
-        // stress conditions for the kinetics only. No intermediate study, so its outcome stays
-        // unknown — and the analysis names that assumption.
-        storageCategory: 'room-temperature',
-        acceleratedTemperatureC: 40,
-        acceleratedChange: 'significant',
-        littleChange: 'no',
-        supportingData: 'yes',
-        declarationBasis:
-          'Invented demo statements: assay fell more than 5 % within 6 months at 40 °C (accelerated report AR-QT-07); supporting data from development batches QT-D01 to QT-D03.',
-        batches: [...DEMO_BATCHES],
-        notes:
-          'Invented demo data: long-term 25 °C/60 % RH, accelerated 40 °C, stress conditions 50 and 60 °C.',
-        createdBy: context.analystUserId,
-      })
+      .values({ ...recipe.study, organisationId: context.organisationId, createdBy: context.analystUserId })
       .returning();
     await appendAuditEvent(tx, {
       organisationId: context.organisationId,
@@ -174,13 +190,13 @@ export async function createDemoDataset(
       recordId: study!.id,
       after: study,
     });
-    const content = await demoWorkbook();
+    const content = await recipe.workbook();
     const [upload] = await tx
       .insert(uploads)
       .values({
         organisationId: context.organisationId,
         studyId: study!.id,
-        fileName: DEMO_WORKBOOK_NAME,
+        fileName: recipe.fileName,
         mediaType: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
         format: 'xlsx',
         sizeBytes: content.length,
@@ -197,13 +213,13 @@ export async function createDemoDataset(
       recordId: upload!.id,
       after: {
         studyId: study!.id,
-        fileName: DEMO_WORKBOOK_NAME,
+        fileName: recipe.fileName,
         format: 'xlsx',
         sizeBytes: content.length,
         sha256: upload!.sha256,
       },
     });
-    const mapping = columnMappingSchema.parse(DEMO_MAPPING);
+    const mapping = columnMappingSchema.parse(recipe.mapping);
     const intake = seriesFromGrid(await readWorkbook(content), mapping);
     if (!intake.ok)
       throw new Error(`demo workbook does not read: ${JSON.stringify(intake.problems.slice(0, 3))}`);
@@ -237,6 +253,7 @@ export async function createDemoDataset(
 export async function seedDemoStudy(
   tx: Transaction,
   organisation: { organisationId: number },
+  recipe: DemoStudyRecipe = ASSAY_DEMO_RECIPE,
 ): Promise<{ studyId: number; datasetId: number; runIds: number[] }> {
   const analystEmail = DEMO_ACCOUNTS.find((account) => account.roles.includes('analyst'))?.email ?? '';
   const [analyst] = await tx.select().from(users).where(eq(users.email, analystEmail));
@@ -246,17 +263,24 @@ export async function seedDemoStudy(
     analystUserId: analyst.id,
     analystName: `${analyst.fullName} (demo seed)`,
   };
-  const { studyId, datasetId, series } = await createDemoDataset(tx, context);
+  const { studyId, datasetId, series } = await createDemoDataset(tx, context, recipe);
   const actor = { userId: context.analystUserId, label: context.analystName };
   const base = { organisationId: context.organisationId, datasetId, actor };
+  // The order from the data (each attribute's own, or its protocol's working order where the data
+  // name none), then the same with the cracked vial's result excluded: a superseded run to show.
   const fromData = await runAnalysis(tx, base);
-  const firstOrder = await runAnalysis(tx, { ...base, options: { order: 1 } });
-  const runIds = [fromData.runId, firstOrder.runId];
-  const cracked = series.find((entry) => entry.batch === 'QT-2402' && entry.temperatureC === 40);
+  const runIds = [fromData.runId];
+  // The assay series of the batch (the attribute is named when the workbook holds several).
+  const cracked = series.find(
+    (entry) =>
+      entry.batch === 'QT-2402' &&
+      entry.temperatureC === 40 &&
+      (entry.attribute === undefined || entry.attribute === 'Assay'),
+  );
   if (cracked) {
     const superseding = await excludePoint(tx, {
       organisationId: context.organisationId,
-      runId: firstOrder.runId,
+      runId: fromData.runId,
       request: {
         seriesId: cracked.id,
         observationIndex: 2,

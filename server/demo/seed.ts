@@ -5,6 +5,7 @@ import { hashPassword } from '../platform/auth/passwords.ts';
 import { type Database, openDatabase } from '../platform/db/client.ts';
 import { memberships, organisations, users } from '../platform/db/schema/index.ts';
 import { DEMO_ACCOUNTS, DEMO_ORGANISATION } from './demo-accounts.ts';
+import { RESULTS_DEMO_RECIPE } from './demo-stability-results.ts';
 import { seedDemoStudy } from './demo-study.ts';
 import { seedDemoTemperatureLog } from './demo-temperature-log.ts';
 
@@ -45,7 +46,7 @@ export async function seedDemo(db: Database): Promise<'seeded' | 'already-presen
         accounts: DEMO_ACCOUNTS.map((account) => ({ email: account.email, roles: account.roles })),
       },
     });
-    const study = await seedDemoStudy(tx, { organisationId: organisation!.id });
+    const study = await seedDemoStudy(tx, { organisationId: organisation!.id }, RESULTS_DEMO_RECIPE);
     return { organisation: organisation!, studyId: study.studyId };
   });
   // After the study's transaction: the assessment reads the study's committed analysis.
