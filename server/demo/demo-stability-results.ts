@@ -241,9 +241,21 @@ export const RESULTS_DEMO_RECIPE: DemoStudyRecipe = {
     valueUnit: DEMO_ATTRIBUTES[0]!.unit,
     valueAttribute: DEMO_ATTRIBUTES[0]!.name,
     moreValueColumns: [
-      { column: DEMO_RESULT_COLUMNS.qxA, attribute: DEMO_ATTRIBUTES[1]!.name, unit: DEMO_ATTRIBUTES[1]!.unit },
-      { column: DEMO_RESULT_COLUMNS.qxB, attribute: DEMO_ATTRIBUTES[2]!.name, unit: DEMO_ATTRIBUTES[2]!.unit },
-      { column: DEMO_RESULT_COLUMNS.water, attribute: DEMO_ATTRIBUTES[3]!.name, unit: DEMO_ATTRIBUTES[3]!.unit },
+      {
+        column: DEMO_RESULT_COLUMNS.qxA,
+        attribute: DEMO_ATTRIBUTES[1]!.name,
+        unit: DEMO_ATTRIBUTES[1]!.unit,
+      },
+      {
+        column: DEMO_RESULT_COLUMNS.qxB,
+        attribute: DEMO_ATTRIBUTES[2]!.name,
+        unit: DEMO_ATTRIBUTES[2]!.unit,
+      },
+      {
+        column: DEMO_RESULT_COLUMNS.water,
+        attribute: DEMO_ATTRIBUTES[3]!.name,
+        unit: DEMO_ATTRIBUTES[3]!.unit,
+      },
     ],
     seriesColumn: DEMO_RESULT_COLUMNS.batch,
     temperatureColumn: DEMO_RESULT_COLUMNS.temperature,
