@@ -54,6 +54,12 @@ export type IntakeResult =
 export interface IntakeOptions {
   /** The study's attribute names, in its order: names must be among them, spelled as there. */
   attributes?: readonly string[];
+  /**
+   * The unit of each of `attributes` (same order). In the long layout one value column holds
+   * every attribute, so each series takes its attribute's unit from the study, not the mapping's
+   * single `valueUnit`.
+   */
+  attributeUnits?: readonly string[];
 }
 
 function formatTemperature(celsius: number): string {
@@ -340,6 +346,8 @@ function nameAttributes(
     if (columns.attribute !== undefined && !columnOf.has(name)) {
       order.push(name);
       columnOf.set(name, columns.value);
+      const studyUnit = options.attributeUnits?.[options.attributes?.indexOf(name) ?? -1];
+      if (studyUnit !== undefined) unitOf.set(name, studyUnit);
     }
     named.push(name === row.attribute ? row : { ...row, attribute: name });
   }

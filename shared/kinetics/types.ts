@@ -35,8 +35,9 @@ export interface Series {
   /** Batch (lot) identifier, when known. */
   batch?: string;
   /**
-   * The study attribute the series measures ("Assay", "Impurity B"), when the upload names one;
-   * absent for a dataset of one attribute, whose series all measure the study's first attribute.
+   * The study attribute the series measures ("Assay", "Impurity B"), whenever the column mapping
+   * names attributes; absent when it names none (every dataset imported before attributes were
+   * listed), and then every series measures the study's first attribute.
    */
   attribute?: string;
 }

@@ -165,6 +165,8 @@ describe('import of an upload holding two attributes', () => {
       ['Assay · OR-2401', 'Assay', 2],
       ['Impurity B · OR-2401', 'Impurity B', 2],
     ]);
+    // One value column holds both attributes: each series takes its attribute's unit from the study.
+    expect(series.map((entry) => entry.valueUnit)).toEqual(['% of label claim', '% area']);
     expect(series[1]!.observations[0]).toMatchObject({ censored: { text: '<LOQ' }, value: 0 });
   });
 

@@ -175,7 +175,11 @@ export function intakeOptionsForStudy(
   mapping: ColumnMapping,
 ): IntakeOptions {
   if (!mappingNamesAttributes(mapping)) return {};
-  return { attributes: studyAttributes(study).map((attribute) => attribute.name) };
+  const attributes = studyAttributes(study);
+  return {
+    attributes: attributes.map((attribute) => attribute.name),
+    attributeUnits: attributes.map((attribute) => attribute.unit),
+  };
 }
 
 function attributesError(problems: IntakeProblem[]): HttpError {
