@@ -7,6 +7,7 @@ import { DEMO_MAPPING, demoWorkbook } from '../../server/demo/demo-study.ts';
 import { readWorkbook } from '../../server/features/intake/index.ts';
 import { BrowserPool } from '../../server/features/reports/pdf/browser-pool.ts';
 import { reportFixture } from '../../server/features/reports/render/render-fixture.ts';
+import { multiAttributeReportFixture } from '../../server/features/reports/render/render-fixture-attributes.ts';
 import { renderReportPdf, reportFigures } from '../../server/features/reports/render/render-report.ts';
 import {
   buildReportContext,
@@ -79,7 +80,7 @@ async function demoReport(): Promise<{
 const pool = new BrowserPool({ size: 1 });
 const folder = mkdtempSync(path.join(os.tmpdir(), 'rateledger-pdf-test-'));
 const printed: Record<
-  'A4' | 'Letter' | 'demo',
+  'A4' | 'Letter' | 'demo' | 'multi',
   { file: string; pageCount: number; blocked: number; html: string }
 > = {} as never;
 
@@ -116,6 +117,17 @@ beforeAll(async () => {
   const demoFile = path.join(folder, 'report-demo.pdf');
   writeFileSync(demoFile, demoResult.pdf);
   printed.demo = { file: demoFile, pageCount: demoResult.pageCount, blocked: 0, html: demoResult.html };
+  // A study of three attributes (assay, a degradation product with censored results, water).
+  const multi = multiAttributeReportFixture();
+  const multiResult = await renderReportPdf(pool, {
+    template: loadDefaultTemplate(),
+    context: multi.context,
+    figures: multi.figures,
+    paper: 'A4',
+  });
+  const multiFile = path.join(folder, 'report-multi.pdf');
+  writeFileSync(multiFile, multiResult.pdf);
+  printed.multi = { file: multiFile, pageCount: multiResult.pageCount, blocked: 0, html: multiResult.html };
   mkdirSync(SCREENSHOT_DIR, { recursive: true });
   for (const old of readdirSync(SCREENSHOT_DIR).filter((name) => name.startsWith('report-a4-')))
     rmSync(path.join(SCREENSHOT_DIR, old));
@@ -232,7 +244,7 @@ describe('the default report as a PDF', () => {
         .replace(/&#x27;/g, "'")
         .replace(/\s+/g, ' ')
         .trim();
-    for (const paper of ['A4', 'Letter', 'demo'] as const) {
+    for (const paper of ['A4', 'Letter', 'demo', 'multi'] as const) {
       const { html, file, pageCount } = printed[paper];
       const leads = [...html.matchAll(/<(h[1-4]|caption)\b[^>]*>([\s\S]*?)<\/\1>/g)]
         .map((match) => decode(match[2] ?? ''))

@@ -1,9 +1,9 @@
-import { analysisFigures } from '../../../../shared/figures/analysis-figures.ts';
 import { FigureRenderError } from '../figures/render-svg.ts';
 import { BrowserPool } from '../pdf/browser-pool.ts';
-import { type RenderReportInput, renderReportPdf, reportFigures } from '../render/render-report.ts';
+import { type RenderReportInput, renderReportPdf } from '../render/render-report.ts';
 import { buildReportContext, type ReportContext } from '../render/report-context.ts';
 import { reportFigurePart } from '../render/report-figure-parts.ts';
+import { reportRunFigures } from '../render/report-figures.ts';
 import { reportTemperatureLogs } from '../render/report-temperature-logs.ts';
 import { TemplateError } from '../render/template-engine.ts';
 import {
@@ -65,11 +65,11 @@ export function createRenderPipeline(options: { browsers?: number } = {}): Repor
 /** The report figures of the version's run, in reading order, as specs. */
 export function runReportFigures(request: Pick<RenderRequest, 'run'>) {
   const { run } = request;
-  const limits = {
-    ...(run.study.lowerLimit === null ? {} : { lower: run.study.lowerLimit }),
-    ...(run.study.upperLimit === null ? {} : { upper: run.study.upperLimit }),
-  };
-  return reportFigures(analysisFigures(run.result, run.series, limits));
+  return reportRunFigures(run.result, run.series, {
+    name: run.study.attribute,
+    lowerLimit: run.study.lowerLimit,
+    upperLimit: run.study.upperLimit,
+  });
 }
 
 /** The context and figures of one report version, from its records. */

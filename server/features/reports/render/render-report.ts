@@ -5,7 +5,7 @@ import { renderSvg } from '../figures/render-svg.ts';
 import type { BrowserPool } from '../pdf/browser-pool.ts';
 import { type PdfPaper, type PrintPdfResult, printPdf } from '../pdf/print-pdf.ts';
 import type { ReportContext } from './report-context.ts';
-import { REPORT_FIGURE_PARTS, reportFigurePart } from './report-figure-parts.ts';
+import { REPORT_FIGURE_PARTS, reportFigureAttribute, reportFigurePart } from './report-figure-parts.ts';
 import { compileReportTemplate, type ReportTemplateSource } from './template-engine.ts';
 import type { FigureMarkup } from './template-helpers.ts';
 
@@ -50,11 +50,13 @@ export interface RenderTimings {
 
 /**
  * The figures of the default report in its reading order (`report-figure-parts.ts`), so that
- * they are numbered as they are read.
+ * they are numbered as they are read: by part, then by attribute (the study's order).
  */
 export function reportFigures<T extends Pick<FigureSpec, 'id'>>(figures: readonly T[]): T[] {
   const rank = (figure: T) => REPORT_FIGURE_PARTS.indexOf(reportFigurePart(figure.id)!);
-  return figures.filter((figure) => reportFigurePart(figure.id) !== null).sort((a, b) => rank(a) - rank(b));
+  return figures
+    .filter((figure) => reportFigurePart(figure.id) !== null)
+    .sort((a, b) => rank(a) - rank(b) || reportFigureAttribute(a.id) - reportFigureAttribute(b.id));
 }
 
 /** Draws each figure to SVG, in order, numbered from 1. */
@@ -115,7 +117,8 @@ export async function renderReportPdf(
     metadata: {
       title: `${context.report.title} (${context.report.number} v${context.report.version})`,
       author: context.report.author,
-      subject: `${context.study.product}: ${context.study.attribute}, study ${context.study.title}`,
+      // Every attribute of the study, in its order ("Assay, Impurity B, Water"); one: the study's.
+      subject: `${context.study.product}: ${context.attributes.map((attribute) => attribute.name).join(', ')}, study ${context.study.title}`,
       keywords: [
         'Rateledger',
         'stability',

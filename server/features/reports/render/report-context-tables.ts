@@ -1,15 +1,14 @@
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../../../shared/figures/results-table.ts';
 import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
-import type { Series } from '../../../../shared/kinetics/types.ts';
-import { interval, NOT_ESTIMABLE_TEXT, significant } from './template-format.ts';
+import { interval, significant } from './template-format.ts';
 import type { ReportTable, TableColumn } from './template-helpers.ts';
 
 /**
  * The tables of a report, as `ReportTable` objects of pre-formatted text (the `table` helper
  * escapes and prints them): the results, one per section of `resultRows` — the same rows, with
- * the same significant figures, as the analysis screen and the exported workbook — and the
- * measured data of each series with every exclusion and its reason.
+ * the same significant figures, as the analysis screen and the exported workbook. The measured
+ * data of each series are `report-data-tables.ts`.
  *
  * Throws nothing.
  *
@@ -392,33 +391,4 @@ export function sharedStatementTable(
     rows: tableRows,
     ...(notes.length > 0 ? { notes } : {}),
   };
-}
-
-/** The measured points of each series, in time order, marking excluded ones with their reason. */
-export function dataTables(seriesList: readonly Series[]): ReportTable[] {
-  return seriesList.map((series) => {
-    const observations = [...series.observations].sort((a, b) => a.time - b.time);
-    const conditions = [
-      series.batch ? `batch ${series.batch}` : '',
-      series.temperatureC === undefined ? '' : `${series.temperatureC} °C`,
-    ].filter(Boolean);
-    return {
-      caption: `Measured data: ${series.id}${conditions.length > 0 ? ` (${conditions.join(', ')})` : ''}`,
-      columns: [
-        { key: 'time', label: `Time (${series.timeUnit})`, align: 'right' as const },
-        { key: 'value', label: `Value (${series.valueUnit})`, align: 'right' as const },
-        { key: 'source', label: 'Source cell' },
-        { key: 'status', label: 'Used' },
-      ],
-      rows: observations.map((observation) => ({
-        time: String(observation.time),
-        value: String(observation.value),
-        source:
-          observation.source?.cell ??
-          (observation.source?.row === undefined ? '' : `row ${observation.source.row}`),
-        status: observation.excluded ? `Excluded: ${observation.excluded.reason}` : 'yes',
-      })),
-      empty: NOT_ESTIMABLE_TEXT,
-    };
-  });
 }

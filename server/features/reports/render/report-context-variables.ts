@@ -131,6 +131,21 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
     description: "Each series' data and fitted curves.",
   },
   {
+    path: 'attributes[]',
+    description:
+      'Each attribute of the study in the study\'s order (one entry for a study of one attribute): number, name, unit, direction, lowerLimit, upperLimit, acceptanceCriterion, limiting (true when it sets the study\'s shelf life), outcome { proposed (e.g. "28 months" or null), proposedShelfLifeMonths, reason, statement }, series[] and shelfLife[] and proposals[] and arrhenius (as in summary), resultsTable (one row per batch and condition; {{table resultsTable}}), proposalTable and estimateTable (or null), tables { shelfLife[], temperature[], series[] }, seriesBasis, figureGroups { shelfLife[], shelfLifeAtStorage[], shelfLifeOther[], temperature[], series[] }, exclusions[], censored[] (seriesId, time, timeUnit, text, cell, handling), censoredRule, censoredRuleText, dataTables[], warnings[] (repeats said once), seriesCount, pointsUsed, methodStatement { paragraphs[], ownParagraphs[] (those no earlier attribute has) }.',
+  },
+  {
+    path: 'studyShelfLife',
+    description:
+      'The study\'s proposed shelf life (ICH Q1E Appendix A: the shortest of the attributes\'): proposed (e.g. "28 months", or null), proposedShelfLife, proposedShelfLifeMonths, timeUnit, limitingAttributes[], limitingText ("Impurity B", "Assay and Water"), reason (why none), statement, rows[] { attribute, criterion, proposed, limiting, reason, statement } and table ({{table studyShelfLife.table}}). For a study of one attribute, built from that attribute.',
+  },
+  {
+    path: 'massBalance',
+    description:
+      'Assay plus degradation products against the initial value, or null when the study marks no assay and degradation product: assayAttribute, degradantAttributes[], degradantText, unit, timeUnit, statement, table (per batch and condition with the trend) and pointsTable (every pull); print with {{table massBalance.table}}.',
+  },
+  {
     path: 'temperatureLogs[]',
     description:
       'Temperature-log assessments attached to this version (excursion assessments), in order; empty when none. Each: number, id, title, fileName, sha256, assessedAt, assessedBy, engineVersion, figureId (print with {{figure figureId}}: the figure as drawn when the log was assessed), summary, excursions and gaps (tables: {{table summary}}), impact (a table, or null when no study priced the log), impactNotes[], method.',

@@ -7,6 +7,10 @@
  * Two renders of the same run at once store one drawing: the insert skips a figure already there
  * and the stored one is read back.
  *
+ * A run of several attributes keeps every attribute's figures the same way; their ids are unique
+ * per attribute ('attribute-2-q1e-25', `report-figures.ts`), and a run of one attribute keeps the
+ * ids it always had.
+ *
  * Example: `await runFigureSvgs(tx, run.id, figures)` gives a Map from 'q1e-25' to '<svg …>'.
  */
 import { and, eq, inArray } from 'drizzle-orm';
