@@ -1,4 +1,4 @@
-import { fireEvent, screen, within } from '@testing-library/react';
+import { fireEvent, screen, waitFor, within } from '@testing-library/react';
 import { describe, expect, it, vi } from 'vitest';
 import { json, mockApi } from '../testing/api-mock.ts';
 import { renderWithQueries } from '../testing/render.tsx';
@@ -34,5 +34,36 @@ describe('a route of the client section that fails', () => {
 
     expect(await screen.findByRole('link', { name: 'RL-2026-0006' })).toBeDefined();
     expect(screen.queryByText('The report could not be shown.')).toBeNull();
+  });
+});
+
+describe('an address under /app with no page', () => {
+  it('names the section menu by name, not by where it sits (it is above the page when narrow)', async () => {
+    window.history.replaceState(null, '', '/app/no-such-page');
+    mockApi([]);
+    renderWithQueries(<ClientApp />);
+    const text = (await screen.findByText(/There is no page here/)).textContent;
+    expect(text).toBe('There is no page here. Choose one in the section menu (My activity, Reports).');
+    expect(text).not.toMatch(/\b(left|right|above|below)\b/);
+  });
+});
+
+describe('moving to another page of the section', () => {
+  it('focuses the new page’s heading; the first page shown takes no focus', async () => {
+    window.history.replaceState(null, '', '/app/reports');
+    mockApi([
+      { path: '/api/reports/filter-options', respond: () => json(200, filterOptions) },
+      { path: '/api/reports', respond: () => json(200, reportList) },
+      { path: /^\/api\/(activity|me)/, respond: () => json(200, []) },
+    ]);
+    vi.spyOn(console, 'error').mockImplementation(() => {});
+    renderWithQueries(<ClientApp />);
+    await screen.findByRole('link', { name: 'RL-2026-0005' });
+    expect(document.activeElement).toBe(document.body);
+
+    fireEvent.click(within(screen.getByRole('navigation', { name: 'Section' })).getByText('My activity'));
+    const heading = await screen.findByRole('heading', { level: 1, name: 'My activity' });
+    await waitFor(() => expect(document.activeElement).toBe(heading));
+    expect(heading.getAttribute('tabindex')).toBe('-1');
   });
 });

@@ -1,10 +1,11 @@
-import type { ReactNode } from 'react';
+import { type ReactNode, useRef } from 'react';
 import { BrowserRouter, NavLink, Route, Routes, useLocation } from 'react-router';
 import { ErrorBoundary } from '../components/error-boundary.tsx';
 import { ActivityList } from '../features/activity/components/activity-list.tsx';
 import { ReportDetail } from '../features/reports/components/report-detail.tsx';
 import { ReportHistory } from '../features/reports/components/report-history.tsx';
 import { useDocumentTitle } from '../lib/document-title.ts';
+import { useFocusHeadingOnRouteChange } from './focus-on-route-change.ts';
 
 /**
  * The routes of the section; each is shown in its own error boundary, so a page that fails names
@@ -20,7 +21,8 @@ const ROUTES: { path: string; what: string; title: string | null; page: ReactNod
     path: '*',
     what: 'This page',
     title: 'No such page',
-    page: <p>There is no page here. Choose one on the left.</p>,
+    // Not "on the left": when narrow, the section menu sits above the page (WCAG 1.3.3).
+    page: <p>There is no page here. Choose one in the section menu (My activity, Reports).</p>,
   },
 ];
 
@@ -28,6 +30,16 @@ const ROUTES: { path: string; what: string; title: string | null; page: ReactNod
 export default function ClientApp() {
   return (
     <BrowserRouter basename="/app">
+      <Section />
+    </BrowserRouter>
+  );
+}
+
+function Section() {
+  const page = useRef<HTMLDivElement>(null);
+  useFocusHeadingOnRouteChange(page);
+  return (
+    <>
       {/* The side menu sits above the page when narrow (reflow at 320 px and at 200 % text). */}
       <div className="flex flex-col gap-4 md:flex-row md:gap-8">
         <nav
@@ -49,7 +61,7 @@ export default function ClientApp() {
             Reports
           </NavLink>
         </nav>
-        <div className="min-w-0 flex-1">
+        <div ref={page} className="min-w-0 flex-1">
           <Routes>
             {ROUTES.map(({ path, what, title, page }) => (
               <Route
@@ -65,7 +77,7 @@ export default function ClientApp() {
           </Routes>
         </div>
       </div>
-    </BrowserRouter>
+    </>
   );
 }
 

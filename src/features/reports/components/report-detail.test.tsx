@@ -1,4 +1,4 @@
-import { screen, within } from '@testing-library/react';
+import { screen, waitFor, within } from '@testing-library/react';
 import { beforeEach, describe, expect, it } from 'vitest';
 import ClientApp from '../../../app/client-app.tsx';
 import { json, mockApi } from '../../../testing/api-mock.ts';
@@ -41,5 +41,37 @@ describe('one report under /app/reports/:id', () => {
     expect(within(inReviewRow).getByText('In review')).toBeDefined();
     expect(within(inReviewRow).queryByRole('link', { name: 'Download signed PDF' })).toBeNull();
     expect(within(inReviewRow).getByRole('link', { name: 'Download PDF (unsigned)' })).toBeDefined();
+  });
+
+  it('says in its live region when a render it saw running has finished, and nothing on a page opened finished', async () => {
+    const rendering = {
+      ...readyReportDetail,
+      versions: readyReportDetail.versions.map((version) =>
+        version.versionNumber === 2
+          ? { ...version, renderStatus: 'rendering', pdfUrl: null, htmlUrl: null, finishedAt: null }
+          : version,
+      ),
+    };
+    let answers = 0;
+    mockApi([
+      { path: '/api/reports/5', respond: () => json(200, answers++ === 0 ? rendering : readyReportDetail) },
+      { path: '/api/me', respond: () => json(200, me) },
+    ]);
+    const view = renderWithQueries(<ClientApp />);
+    const live = await screen.findByText('Rendering — this page updates by itself.');
+    expect(live.getAttribute('aria-live')).toBe('polite');
+    await waitFor(
+      () =>
+        expect(live.textContent).toBe(
+          'Version 2 is rendered and ready: download it, or open "Review and signing".',
+        ),
+      { timeout: 5_000 },
+    );
+    view.unmount();
+
+    answers = 1;
+    renderWithQueries(<ClientApp />);
+    await screen.findByRole('table');
+    expect(document.querySelector('[aria-live="polite"]')?.textContent).toBe('');
   });
 });

@@ -1,3 +1,4 @@
+import { useEffect, useRef, useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { TableRegion } from '../../../components/table-region.tsx';
 import { useDocumentTitle } from '../../../lib/document-title.ts';
@@ -19,6 +20,7 @@ export function ReportDetail() {
   const me = useMe().data;
   const canRender = me?.roles.includes('analyst') ?? false;
   useDocumentTitle(report.data ? `${report.data.reportNumber} ${report.data.title}` : 'Report');
+  const finished = useRenderFinished(report.data?.versions);
 
   if (!Number.isInteger(reportId) || reportId <= 0) return <p role="alert">There is no such report.</p>;
   if (report.isPending) return <p className="text-ink-muted">Loading the report…</p>;
@@ -72,7 +74,7 @@ export function ReportDetail() {
           </button>
         )}
         <span aria-live="polite" className="text-sm text-ink-muted">
-          {running ? 'Rendering — this page updates by itself.' : ''}
+          {running ? 'Rendering — this page updates by itself.' : finished}
         </span>
       </div>
       {renderAgain.isError && (
@@ -197,4 +199,35 @@ export function ReportDetail() {
       </p>
     </section>
   );
+}
+
+type VersionState = { versionNumber: number; renderStatus: string; failureReason: string | null };
+
+/**
+ * What the live region says once a render seen running on this page has finished (WCAG 4.1.3):
+ * the badge in the table changes silently, so without it a screen reader hears "Rendering…"
+ * and then nothing. Empty until a render was seen running.
+ */
+function useRenderFinished(versions: readonly VersionState[] | undefined): string {
+  const [message, setMessage] = useState('');
+  const wasRunning = useRef(false);
+  const running = versions?.some((version) => isRendering(version.renderStatus)) ?? false;
+  const latest = versions?.reduce<VersionState | null>(
+    (last, version) => (last && last.versionNumber > version.versionNumber ? last : version),
+    null,
+  );
+  useEffect(() => {
+    if (running) {
+      wasRunning.current = true;
+      setMessage('');
+    } else if (wasRunning.current && latest) {
+      wasRunning.current = false;
+      setMessage(
+        latest.renderStatus === 'ready'
+          ? `Version ${latest.versionNumber} is rendered and ready: download it, or open "Review and signing".`
+          : `Version ${latest.versionNumber} could not be rendered${latest.failureReason ? `: ${latest.failureReason}` : '.'}`,
+      );
+    }
+  }, [running, latest]);
+  return message;
 }

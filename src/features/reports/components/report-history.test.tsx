@@ -1,4 +1,4 @@
-import { fireEvent, screen, within } from '@testing-library/react';
+import { fireEvent, screen, waitFor, within } from '@testing-library/react';
 import { beforeEach, describe, expect, it } from 'vitest';
 import ClientApp from '../../../app/client-app.tsx';
 import { json, mockApi, refusal } from '../../../testing/api-mock.ts';
@@ -58,6 +58,27 @@ describe('the report history under /app/reports', () => {
     const last = requests.filter((request) => request.url.pathname === '/api/reports').at(-1);
     expect(last?.url.searchParams.get('status')).toBe('failed');
     expect(screen.getByRole('button', { name: 'Clear filters' })).toBeDefined();
+  });
+
+  it('says in a status message what the list holds after a filter changes, and nothing before', async () => {
+    mockApi([
+      filterOptionsRoute,
+      {
+        path: '/api/reports',
+        respond: ({ url }) =>
+          json(200, url.searchParams.get('status') === 'failed' ? failedReportList : reportList),
+      },
+    ]);
+    renderWithQueries(<ClientApp />);
+    await screen.findByRole('link', { name: 'RL-2026-0005' });
+    const status = screen.getByRole('status');
+    expect(status.textContent).toBe('');
+
+    fireEvent.change(screen.getByLabelText('Status'), { target: { value: 'failed' } });
+    await waitFor(() => expect(status.textContent).toBe('1 report matches.'));
+
+    fireEvent.click(screen.getByRole('button', { name: 'Clear filters' }));
+    await waitFor(() => expect(status.textContent).toBe('2 reports match.'));
   });
 
   it('offers the authors the server names as a filter', async () => {

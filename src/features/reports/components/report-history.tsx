@@ -1,3 +1,4 @@
+import { useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { REVIEW_STANDING_LABELS, REVIEW_STANDINGS } from '../../../../shared/api/report-standing.ts';
 import {
@@ -28,8 +29,11 @@ export function ReportHistory() {
   const { query, problem } = queryFrom(params);
   const list = useReportList(query);
   const options = useReportFilterOptions();
+  // Set by the person changing a filter or a page: only then does the live region speak.
+  const [asked, setAsked] = useState(false);
 
   const setFilter = (name: (typeof FILTERS)[number] | 'page', value: string) => {
+    setAsked(true);
     const next = new URLSearchParams(params);
     if (value === '') next.delete(name);
     else next.set(name, value);
@@ -140,12 +144,19 @@ export function ReportHistory() {
           <button
             type="button"
             className="rounded-sm border border-rule px-2 py-1 hover:bg-paper"
-            onClick={() => setParams(new URLSearchParams())}
+            onClick={() => {
+              setAsked(true);
+              setParams(new URLSearchParams());
+            }}
           >
             Clear filters
           </button>
         )}
       </form>
+      {/* The list changes in place as a filter changes: say what it now holds (WCAG 4.1.3). */}
+      <p role="status" className="sr-only">
+        {asked && list.data && !list.isPlaceholderData ? matchSummary(list.data) : ''}
+      </p>
       {problem && (
         <p role="alert" className="mt-2 text-sm text-alert">
           {problem} Showing all reports instead.
@@ -245,4 +256,11 @@ export function ReportHistory() {
       </div>
     </section>
   );
+}
+
+/** "3 reports match; page 1 of 2." — what the live region says after a filter or page change. */
+function matchSummary({ total, page, pageCount }: { total: number; page: number; pageCount: number }) {
+  if (total === 0) return 'No reports match these filters.';
+  const count = total === 1 ? '1 report matches' : `${total} reports match`;
+  return pageCount > 1 ? `${count}; page ${page} of ${pageCount}.` : `${count}.`;
 }
