@@ -39,9 +39,10 @@ if [ -z "${SESSION_SECRET:-}" ]; then
   export SESSION_SECRET
 fi
 
-log "building the client and the server"
+log "building the client, the server and the command-line tools"
 npx vite build --logLevel warn
 node scripts/run-built.mjs
+node scripts/build-cli.mjs
 
 node dist/server/migrate-database.js
 node dist/server/demo/seed.js

@@ -29,8 +29,10 @@ log "type-checking (tsc --noEmit)"
 npx tsc --noEmit -p . || status=1
 log "linting (biome)"
 npx biome check . || status=1
-log "building the client"
+log "building the client and the command-line tools"
 npx vite build --logLevel warn || status=1
+# The tests of server/cli run the bundles `npm run fit`/`mkt` run (dist/cli/, not committed).
+node scripts/build-cli.mjs || status=1
 
 RESULTS="$(mktemp /tmp/rateledger-vitest.XXXXXX.json)"
 npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS" || status=1

@@ -19,7 +19,7 @@ interface Case {
 const cases = JSON.parse(readFileSync(path.join(folder, 'cases.json'), 'utf8')) as Case[];
 
 function runFit(args: string[]) {
-  const run = spawnSync('npx', ['tsx', 'server/cli/fit.ts', ...args], {
+  const run = spawnSync(process.execPath, ['scripts/run-cli.mjs', 'fit', ...args], {
     cwd: root,
     encoding: 'utf8',
     maxBuffer: 64 * 1024 * 1024,

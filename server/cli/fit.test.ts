@@ -1,4 +1,5 @@
-// End-to-end tests of `fit`: spawn `npx tsx server/cli/fit.ts` on the invented fixtures in
+// End-to-end tests of `fit`: spawn `node scripts/run-cli.mjs fit` (the bundle `npm run fit` runs,
+// dist/cli/fit.cjs, rebuilt when a source is newer) on the invented fixtures in
 // tests/fixtures (fictional product "Veltrazine", simulated with Ea = 95 kJ/mol; see its README).
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -15,7 +16,10 @@ const scratch = mkdtempSync(path.join(tmpdir(), 'rateledger-fit-'));
 const TIMEOUT = 60_000;
 
 function runFit(...args: string[]) {
-  const run = spawnSync('npx', ['tsx', 'server/cli/fit.ts', ...args], { cwd: root, encoding: 'utf8' });
+  const run = spawnSync(process.execPath, ['scripts/run-cli.mjs', 'fit', ...args], {
+    cwd: root,
+    encoding: 'utf8',
+  });
   return { status: run.status, stdout: run.stdout, stderr: run.stderr };
 }
 

@@ -1,4 +1,5 @@
-// End-to-end tests of `mkt`: spawn `npx tsx server/cli/mkt.ts` on logs written here and on the
+// End-to-end tests of `mkt`: spawn `node scripts/run-cli.mjs mkt` (the bundle `npm run mkt` runs,
+// dist/cli/mkt.cjs, rebuilt when a source is newer) on logs written here and on the
 // invented store-room log in tests/fixtures (a fictional company's data logger; see its README).
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
@@ -13,7 +14,10 @@ const scratch = mkdtempSync(path.join(tmpdir(), 'rateledger-mkt-'));
 const TIMEOUT = 60_000;
 
 function runMkt(...args: string[]) {
-  const run = spawnSync('npx', ['tsx', 'server/cli/mkt.ts', ...args], { cwd: root, encoding: 'utf8' });
+  const run = spawnSync(process.execPath, ['scripts/run-cli.mjs', 'mkt', ...args], {
+    cwd: root,
+    encoding: 'utf8',
+  });
   return { status: run.status, stdout: run.stdout, stderr: run.stderr };
 }
 

@@ -1,7 +1,7 @@
 /**
  * Speed of the `fit` command as a user runs it (issue 16): whole processes of
- * `node scripts/run-built.mjs server/cli/fit.ts --json …` (compiled JavaScript, what
- * `npm run fit` runs), side by side with the alternative a statistician would pick on the same
+ * `node scripts/run-cli.mjs fit --json …` (what `npm run fit` runs: the bundle dist/cli/fit.cjs,
+ * one compiled JavaScript file, no TypeScript loader; npm's own start-up is not counted), side by side with the alternative a statistician would pick on the same
  * series — a Python script (written by this bench into its temporary folder) that fits the zero-,
  * first- and second-order laws to each series by nonlinear least squares with
  * `scipy.optimize.curve_fit` and keeps the law of least AICc.
@@ -11,8 +11,9 @@
  * at 25, 30 or 40 °C, from a seeded generator, so every run sees the same numbers. One CSV for 1
  * series and one for each large count.
  *
- * Figures, each the median of `RUNS` runs (wall clock; the CPU time of the child, from
- * /proc/self/stat, is printed beside it as a check against a busy machine):
+ * Figures, each the median of `RUNS` runs (`STARTUP_RUNS` for the 1-series runs; wall clock; the
+ * CPU time of the child, from /proc/self/stat, is printed beside it as a check against a busy
+ * machine):
  * - per-series cost = (t_N − t_1) / (N − 1) for `fit` and for the scipy script, so start-up cancels;
  *   PASS when `fit`'s is at least 5× cheaper than scipy's in the same run (its anchor);
  * - start-up: the wall time of the 1-series `fit` run, PASS under 300 ms (scipy's 1-series run
@@ -34,6 +35,8 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 
 const RUNS = 3;
+/** The 1-series runs: the start-up figure, and what each per-series cost subtracts. */
+const STARTUP_RUNS = 5;
 const POINTS_PER_SERIES = 12;
 const LARGE_COUNTS = [3_240, 10_000] as const;
 const LINEAR_COUNT = 10_000;
@@ -178,10 +181,13 @@ function medianOf(runs: Run[]): Timing {
   };
 }
 
-/** Compiles dist/ when a source is newer, outside any timing (others may edit sources meanwhile). */
+/** Rebuilds dist/cli/ when a source is newer, outside any timing (others may edit sources meanwhile). */
 function ensureBuild() {
-  const run = spawnSync(process.execPath, ['scripts/run-built.mjs'], { cwd: root, stdio: 'inherit' });
-  if (run.status !== 0) throw new Error('the server build failed');
+  const run = spawnSync(process.execPath, ['scripts/build-cli.mjs', '--if-stale'], {
+    cwd: root,
+    stdio: 'inherit',
+  });
+  if (run.status !== 0) throw new Error('the command-line build failed');
 }
 
 /** The per-series work only, as the scipy script does it: one series per batch, no data-set figures. */
@@ -196,20 +202,18 @@ const DATASET = [
   '25',
 ];
 
-function fitTiming(file: string, options: string[]): Timing {
+function fitTiming(file: string, options: string[], count = RUNS): Timing {
   const runs: Run[] = [];
-  for (let run = 0; run < RUNS; run += 1) {
+  for (let run = 0; run < count; run += 1) {
     ensureBuild();
-    runs.push(
-      timed(process.execPath, ['scripts/run-built.mjs', 'server/cli/fit.ts', '--json', ...options, file]),
-    );
+    runs.push(timed(process.execPath, ['scripts/run-cli.mjs', 'fit', '--json', ...options, file]));
   }
   return medianOf(runs);
 }
 
-function scipyTiming(script: string, file: string): Timing {
+function scipyTiming(script: string, file: string, count = RUNS): Timing {
   const runs: Run[] = [];
-  for (let run = 0; run < RUNS; run += 1) runs.push(timed('python3', [script, file]));
+  for (let run = 0; run < count; run += 1) runs.push(timed('python3', [script, file]));
   return medianOf(runs);
 }
 
@@ -242,11 +246,11 @@ for (const count of LARGE_COUNTS) files.set(count, writeSeries(count));
 const fileOf = (count: number) => files.get(count) as string;
 
 const results: boolean[] = [];
-const fitOne = fitTiming(fileOf(1), PLAIN);
+const fitOne = fitTiming(fileOf(1), PLAIN, STARTUP_RUNS);
 const withScipy = scipyAvailable();
 const script = path.join(folder, 'three-laws-aicc.py');
 writeFileSync(script, SCIPY_SCRIPT);
-const scipyOne = withScipy ? scipyTiming(script, fileOf(1)) : null;
+const scipyOne = withScipy ? scipyTiming(script, fileOf(1), STARTUP_RUNS) : null;
 
 for (const count of LARGE_COUNTS) {
   const fit = fitTiming(fileOf(count), PLAIN);
@@ -271,10 +275,10 @@ for (const count of LARGE_COUNTS) {
 const startupPass = fitOne.wallMs < TARGET_STARTUP_MS;
 results.push(startupPass);
 console.log(
-  `${startupPass ? 'PASS' : 'FAIL'}  start-up, fit --json on 1 series: ${ms(fitOne.wallMs)} (target < ${TARGET_STARTUP_MS} ms; runs ${fitOne.runs.map(ms).join(', ')}${cpu(fitOne)}); scipy script on 1 series ${scipyOne ? ms(scipyOne.wallMs) : 'not run'}`,
+  `${startupPass ? 'PASS' : 'FAIL'}  start-up, fit --json on 1 series (the bundle dist/cli/fit.cjs): ${ms(fitOne.wallMs)} (target < ${TARGET_STARTUP_MS} ms, median of ${STARTUP_RUNS}; runs ${fitOne.runs.map(ms).join(', ')}${cpu(fitOne)}); scipy script on 1 series ${scipyOne ? ms(scipyOne.wallMs) : 'not run'}`,
 );
 
-const datasetOne = fitTiming(fileOf(1), DATASET);
+const datasetOne = fitTiming(fileOf(1), DATASET, STARTUP_RUNS);
 const datasetMid = fitTiming(fileOf(LARGE_COUNTS[0]), DATASET);
 const datasetLarge = fitTiming(fileOf(LINEAR_COUNT), DATASET);
 const linearPass = datasetLarge.wallMs < TARGET_LINEAR_MS;
