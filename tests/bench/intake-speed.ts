@@ -12,6 +12,9 @@
  * Fresh processes keep one repetition's garbage from inflating the next one's memory figure.
  * Without DATABASE_URL only reading and mapping are timed and the database part is skipped.
  *
+ * The same 100,000 rows are then run as a four-attribute workbook (assay, two degradation
+ * products, water: issue 15), printed beside the one-attribute time of the same run.
+ *
  * Targets (issue 4): median upload-to-stored-analysis under 5 s; peak resident memory under
  * 500 MB (the kernel's maximum RSS of the process, which also catches peaks between samples, and
  * the highest `process.memoryUsage().rss` sampled every 10 ms). Exits 1 when a target is missed.
@@ -41,6 +44,10 @@ const REPETITIONS = 3;
 const TARGET_SECONDS = 5;
 const TARGET_RSS_MB = 500;
 const MB = 1024 * 1024;
+/** Issue 15: four attributes from upload to stored analysis in at most twice one attribute's time… */
+const FOUR_ATTRIBUTE_RATIO = 2;
+/** …and within the memory target of the speed issue (issue 16: 300 MB peak). */
+const SPEED_ISSUE_RSS_MB = 300;
 
 const mapping = columnMappingSchema.parse({
   sheet: 'Stability data',
@@ -51,6 +58,60 @@ const mapping = columnMappingSchema.parse({
   temperatureColumn: 'Temperature (°C)',
 });
 
+/**
+ * The four-attribute workbook (issue 15): the same 100,000 rows, each pull tested for assay, two
+ * degradation products and water, one column per attribute (the wide layout).
+ */
+const FOUR_ATTRIBUTES = [
+  {
+    name: 'Assay',
+    column: 'Assay (% label claim)',
+    unit: '% label claim',
+    direction: 'decreasing',
+    lower: 90,
+    upper: null,
+  },
+  {
+    name: 'Impurity A',
+    column: 'Impurity A (%)',
+    unit: '%',
+    direction: 'increasing',
+    lower: null,
+    upper: 1.5,
+  },
+  {
+    name: 'Impurity B',
+    column: 'Impurity B (%)',
+    unit: '%',
+    direction: 'increasing',
+    lower: null,
+    upper: 1.0,
+  },
+  { name: 'Water', column: 'Water (% w/w)', unit: '% w/w', direction: 'increasing', lower: null, upper: 4 },
+] as const;
+const mappingOfFour = columnMappingSchema.parse({
+  ...mapping,
+  valueUnit: FOUR_ATTRIBUTES[0].unit,
+  valueAttribute: FOUR_ATTRIBUTES[0].name,
+  moreValueColumns: FOUR_ATTRIBUTES.slice(1).map((attribute) => ({
+    column: attribute.column,
+    attribute: attribute.name,
+    unit: attribute.unit,
+  })),
+});
+const additionalAttributes = FOUR_ATTRIBUTES.slice(1).map((attribute) => ({
+  name: attribute.name,
+  unit: attribute.unit,
+  direction: attribute.direction,
+  lowerLimit: attribute.lower,
+  upperLimit: attribute.upper,
+  workingOrder: null,
+  workingOrderReason: '',
+  censoredRule: 'exclude' as const,
+  censoredValue: null,
+  massBalanceRole: null,
+}));
+
 /** Park–Miller generator with Box–Muller noise: the same workbook on every run. */
 let seed = 4_242;
 const uniform = () => {
@@ -59,10 +120,15 @@ const uniform = () => {
 };
 const noise = () => Math.sqrt(-2 * Math.log(Math.max(uniform(), 1e-12))) * Math.cos(2 * Math.PI * uniform());
 
-async function buildWorkbook(): Promise<Buffer> {
+async function buildWorkbook(attributes: 1 | 4): Promise<Buffer> {
   const book = new ExcelJS.Workbook();
   const sheet = book.addWorksheet('Stability data');
-  sheet.addRow(['Batch', 'Temperature (°C)', 'Month', 'Assay (% label claim)']);
+  sheet.addRow([
+    'Batch',
+    'Temperature (°C)',
+    'Month',
+    ...FOUR_ATTRIBUTES.slice(0, attributes).map((attribute) => attribute.column),
+  ]);
   const groups = [
     ['BX-01', 25, 0.004],
     ['BX-02', 25, 0.004],
@@ -73,8 +139,23 @@ async function buildWorkbook(): Promise<Buffer> {
   for (const [batch, temperature, rate] of groups) {
     for (let index = 0; index < perGroup; index += 1) {
       const month = Math.round((index / perGroup) * 24 * 100) / 100;
-      const assay = Math.round((100 * Math.exp(-rate * month) + 0.3 * noise()) * 100) / 100;
-      sheet.addRow([batch, temperature, month, assay]);
+      const remaining = 100 * Math.exp(-rate * month);
+      const assay = Math.round((remaining + 0.3 * noise()) * 100) / 100;
+      if (attributes === 1) {
+        sheet.addRow([batch, temperature, month, assay]);
+        continue;
+      }
+      const lost = 100 - remaining;
+      const round = (value: number) => Math.round(value * 1000) / 1000;
+      sheet.addRow([
+        batch,
+        temperature,
+        month,
+        assay,
+        round(0.05 + 0.5 * lost + 0.01 * noise()),
+        round(0.02 + 0.3 * lost + 0.008 * noise()),
+        round(1.8 + rate * 5 * month + 0.05 * noise()),
+      ]);
     }
   }
   return Buffer.from(await book.xlsx.writeBuffer());
@@ -128,6 +209,7 @@ async function readAndMap(
 async function pipeline(
   bytes: Buffer,
   url: string,
+  attributes: 1 | 4,
 ): Promise<{
   phases: Record<string, number>;
   cpu: Record<string, number>;
@@ -168,6 +250,7 @@ async function pipeline(
         direction: 'decreasing',
         lowerLimit: 90,
         storageTemperatureC: 25,
+        ...(attributes === 4 ? { additionalAttributes } : {}),
         createdBy: user!.id,
       })
       .returning();
@@ -193,10 +276,18 @@ async function pipeline(
     cpu.store = cpuSeconds(phaseCpu);
     phaseCpu = process.cpuUsage();
     const imported = process.hrtime.bigint();
-    const dataset = await importUpload(database.db, actor, upload.id, mapping, undefined, {});
+    const dataset = await importUpload(
+      database.db,
+      actor,
+      upload.id,
+      attributes === 4 ? mappingOfFour : mapping,
+      undefined,
+      {},
+    );
     phases.import = seconds(imported);
     cpu.import = cpuSeconds(phaseCpu);
-    if (dataset.pointCount !== ROWS) throw new Error(`expected ${ROWS} points, stored ${dataset.pointCount}`);
+    if (dataset.pointCount !== ROWS * attributes)
+      throw new Error(`expected ${ROWS * attributes} points, stored ${dataset.pointCount}`);
     if (runAnalysis) {
       const analysed = process.hrtime.bigint();
       phaseCpu = process.cpuUsage();
@@ -222,7 +313,7 @@ async function pipeline(
 
 const role = process.argv[2];
 if (role === '--build-workbook') {
-  writeFileSync(process.argv[3]!, await buildWorkbook());
+  writeFileSync(process.argv[3]!, await buildWorkbook(process.argv[4] === '4' ? 4 : 1));
   process.exit(0);
 }
 if (role === '--read-and-map' || role === '--pipeline') {
@@ -233,7 +324,7 @@ if (role === '--read-and-map' || role === '--pipeline') {
   const bytes = readFileSync(process.argv[3]!);
   const outcome =
     role === '--pipeline'
-      ? await pipeline(bytes, process.env.DATABASE_URL!)
+      ? await pipeline(bytes, process.env.DATABASE_URL!, process.argv[4] === '4' ? 4 : 1)
       : { ...(await readAndMap(bytes)), total: 0, totalCpu: 0, analysed: false };
   clearInterval(sampler);
   peak = Math.max(peak, process.memoryUsage().rss);
@@ -258,14 +349,20 @@ function child(args: string[]): Measurement {
 
 const folder = mkdtempSync(path.join(tmpdir(), 'rateledger-bench-'));
 const workbookFile = path.join(folder, 'bench.xlsx');
+const fourFile = path.join(folder, 'bench-four-attributes.xlsx');
 try {
   const built = process.hrtime.bigint();
-  const building = spawnSync(
-    process.execPath,
-    ['--import', 'tsx', import.meta.filename, '--build-workbook', workbookFile],
-    { stdio: 'inherit' },
-  );
-  if (building.status !== 0) throw new Error('building the bench workbook failed');
+  for (const [file, attributes] of [
+    [workbookFile, '1'],
+    [fourFile, '4'],
+  ] as const) {
+    const building = spawnSync(
+      process.execPath,
+      ['--import', 'tsx', import.meta.filename, '--build-workbook', file, attributes],
+      { stdio: 'inherit' },
+    );
+    if (building.status !== 0) throw new Error('building the bench workbook failed');
+  }
   const size = readFileSync(workbookFile).length;
   console.log(
     `workbook: ${ROWS.toLocaleString('en')} rows, ${(size / MB).toFixed(1)} MB, built in ${format(seconds(built))}`,
@@ -312,6 +409,25 @@ try {
       `peak RSS of the pipeline process: median ${maxRss.toFixed(0)} MB (runs: ${runs.map((m) => `${m.maxRssMb.toFixed(0)} MB`).join(', ')}) — target < ${TARGET_RSS_MB} MB: ${memoryVerdict}`,
     );
     if (memoryVerdict === 'FAIL') failures.push('memory');
+
+    // Issue 15: the same rows tested for four attributes, against the one-attribute time above
+    // (measured in this run) and the speed issue's memory target.
+    if (analysed) {
+      const four = Array.from({ length: REPETITIONS }, () => child(['--pipeline', fourFile, '4']));
+      const fourTotal = median(four.map((m) => m.total));
+      const ratio = fourTotal / total;
+      const ratioVerdict = ratio <= FOUR_ATTRIBUTE_RATIO ? 'PASS' : 'FAIL';
+      console.log(
+        `four attributes (${(4 * ROWS).toLocaleString('en')} results), upload → stored analysis: median ${format(fourTotal)} (store ${format(median(four.map((m) => m.phases.store!)))}, import ${format(median(four.map((m) => m.phases.import!)))}, analyse ${format(median(four.map((m) => m.phases.analyse!)))}) = ${ratio.toFixed(2)}× the one-attribute ${format(total)} — target ≤ ${FOUR_ATTRIBUTE_RATIO}×: ${ratioVerdict}`,
+      );
+      if (ratioVerdict === 'FAIL') failures.push('four-attribute time');
+      const fourRss = median(four.map((m) => Math.max(m.maxRssMb, m.sampledRssMb)));
+      const fourMemory = fourRss < SPEED_ISSUE_RSS_MB ? 'PASS' : 'FAIL';
+      console.log(
+        `four attributes, peak RSS: median ${fourRss.toFixed(0)} MB (one attribute ${maxRss.toFixed(0)} MB) — target < ${SPEED_ISSUE_RSS_MB} MB (the speed issue's): ${fourMemory}`,
+      );
+      if (fourMemory === 'FAIL') failures.push('four-attribute memory');
+    }
   }
   process.exitCode = failures.length === 0 ? 0 : 1;
 } finally {
