@@ -218,6 +218,18 @@ describe('report context of a multi-attribute run', () => {
     );
   });
 
+  it('says the mass balance on the summary page in one sentence: the range of the last pulls', () => {
+    const balance = stored.massBalance!;
+    const lasts = balance.series.map((entry) => entry.points.at(-1)!.percentOfInitial);
+    const summary = context.massBalance?.summary ?? '';
+    expect(summary).toMatch(
+      /^Mass balance \(.+\): .+ of the initial value at the last pull, over \d+ batches and conditions/,
+    );
+    expect(summary).toContain(`over ${lasts.length} batches and conditions`);
+    // Shorter than the statement, which gives every series' numbers.
+    expect(summary.length).toBeLessThan(balance.statement.length);
+  });
+
   it('says each method paragraph once: later attributes keep only what differs', () => {
     expect(assay?.methodStatement.ownParagraphs).toEqual(assay?.methodStatement.paragraphs);
     for (const paragraph of impurity?.methodStatement.ownParagraphs ?? [])

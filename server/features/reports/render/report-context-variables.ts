@@ -143,7 +143,7 @@ export const TEMPLATE_VARIABLES: readonly TemplateVariableDescription[] = [
   {
     path: 'massBalance',
     description:
-      'Assay plus degradation products against the initial value, or null when the study marks no assay and degradation product: assayAttribute, degradantAttributes[], degradantText, unit, timeUnit, statement, table (per batch and condition with the trend) and pointsTable (every pull); print with {{table massBalance.table}}.',
+      'Assay plus degradation products against the initial value, or null when the study marks no assay and degradation product: assayAttribute, degradantAttributes[], degradantText, unit, timeUnit, statement, summary (one sentence for a summary page), table (per batch and condition with the trend) and pointsTable (every pull); print with {{table massBalance.table}}.',
   },
   {
     path: 'temperatureLogs[]',

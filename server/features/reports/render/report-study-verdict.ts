@@ -138,6 +138,23 @@ export function studyShelfLifeContext(verdict: StudyShelfLife) {
   };
 }
 
+/**
+ * The mass balance in one sentence for the summary page: the range of the last pull's percentage
+ * of initial over the batches and conditions; the trends and every pull are in the report body.
+ */
+export function massBalanceSummary(balance: MassBalance): string {
+  const what = `${balance.assayAttribute} plus ${namesInWords(balance.degradantAttributes)}`;
+  const lasts = balance.series
+    .map((entry) => entry.points[entry.points.length - 1]?.percentOfInitial)
+    .filter((value): value is number => value !== undefined);
+  if (lasts.length === 0) return `Mass balance (${what}): not computed. ${balance.statement}`;
+  const low = significant(Math.min(...lasts), 4);
+  const high = significant(Math.max(...lasts), 4);
+  const range = low === high ? `${low} %` : `${low} to ${high} %`;
+  const count = lasts.length === 1 ? 'the one batch and condition' : `${lasts.length} batches and conditions`;
+  return `Mass balance (${what}): ${range} of the initial value at the last pull, over ${count}; the trends are under Mass balance.`;
+}
+
 export function massBalanceContext(balance: MassBalance) {
   const condition = (temperatureC: number | null) => (temperatureC === null ? '—' : `${temperatureC} °C`);
   const value = (number: number) => significant(number, 4);
@@ -149,6 +166,7 @@ export function massBalanceContext(balance: MassBalance) {
     unit: balance.unit,
     timeUnit: balance.timeUnit,
     statement: balance.statement,
+    summary: massBalanceSummary(balance),
     table: {
       caption: `Mass balance: ${balance.assayAttribute} plus ${namesInWords(balance.degradantAttributes)} (${balance.unit}), as % of the first pull, with its trend per ${balance.timeUnit}`,
       columns: [
