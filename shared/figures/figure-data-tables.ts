@@ -146,7 +146,13 @@ function curvesTable(analysis: SeriesAnalysis, series: Series): FigureDataTable 
           : 'used',
       ...laws.flatMap((law) => {
         const fitted = law.at(observation.time);
-        return [number(fitted), fitted === null ? NOT_ESTIMABLE : number(observation.value - fitted)];
+        // A result below the limit left out of the fit has no measured value: its number is the
+        // limit itself, so a residual would claim a measurement that was never made.
+        const unmeasured = observation.censored !== undefined && observation.excluded !== undefined;
+        return [
+          number(fitted),
+          fitted === null || unmeasured ? NOT_ESTIMABLE : number(observation.value - fitted),
+        ];
       }),
     ]),
     note: sampleWords(sample.shown, sample.total),

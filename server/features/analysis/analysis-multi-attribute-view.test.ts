@@ -95,6 +95,14 @@ describe('the analysis page of a run of several attributes', () => {
     const first = curves.table!.rows[0]!;
     expect(first[1]).toBe('<LOQ');
     expect(first[2]).toBe('reported below the limit (<LOQ): excluded from the fit by the study’s rule');
+    // Fitted values are drawn at its time, but no residual: "<LOQ" was never measured as a number.
+    const residualColumns = curves.table!.columns.flatMap((column, index) =>
+      column.endsWith(': residual') ? [index] : [],
+    );
+    expect(residualColumns.length).toBeGreaterThan(0);
+    for (const index of residualColumns) expect(first[index]).toBe('—');
+    const measured = curves.table!.rows.find((row) => row[2] === 'used')!;
+    expect(residualColumns.some((index) => measured[index] !== '—')).toBe(true);
     const spec = runFigures(run).find((figure) => figure.id === 'attribute-1-series-0-curves')!.spec;
     const pointsLayer = (
       spec.layer as { encoding?: { shape?: { scale: { domain: string[]; range: string[] } } } }[]
