@@ -122,6 +122,16 @@ describe('from a new study to a recorded analysis in Chromium', () => {
       .nth(2)
       .hover({ force: true });
     await expect.poll(() => ui.locator('#vg-tooltip-element.visible').textContent()).toContain('value');
+    // WCAG 1.4.13: the pointer can move onto the tooltip and it stays; Escape hides it.
+    const box = await page.$eval('#vg-tooltip-element', (element) => {
+      const { left, top, width, height } = element.getBoundingClientRect();
+      return { x: left + width / 2, y: top + height / 2 };
+    });
+    await page.mouse.move(box.x, box.y, { steps: 5 });
+    await new Promise((resolve) => setTimeout(resolve, 1_000));
+    expect(await page.$('#vg-tooltip-element.visible')).not.toBeNull();
+    await page.keyboard.press('Escape');
+    expect(await page.$('#vg-tooltip-element.visible')).toBeNull();
 
     // Fix first order (as shelf-life work does), so every derived figure is reported.
     await ui.getByLabel('Reaction order').selectOption('1');

@@ -1,4 +1,5 @@
 import { useEffect, useRef, useState } from 'react';
+import { figureTooltip } from './figure-tooltip.ts';
 import './vega-figure.css';
 
 /** How long a figure out of view waits for the browser to be idle before it is drawn anyway. */
@@ -48,8 +49,9 @@ export function drawSoon(element: Element, draw: () => void): () => void {
  * Draws one Vega-Lite spec with vega-embed as SVG: at once when in view, otherwise when the
  * browser is idle or before printing (`drawSoon`; vega-embed is loaded on first use, ~1 MB). Under the app's strict CSP
  * (script-src 'self', no 'unsafe-eval'; style-src 'self') it uses the AST expression interpreter
- * instead of generated functions, and no injected <style> elements: vega-embed's default style and
- * the tooltip's are switched off and replaced by `vega-figure.css`, which the bundler ships as a file.
+ * instead of generated functions, and no injected <style> elements: vega-embed's default style is
+ * switched off and replaced by `vega-figure.css`, which the bundler ships as a file. The tooltip is
+ * our own handler (`figure-tooltip.ts`: Escape hides it, the pointer can move onto it; WCAG 1.4.13).
  */
 export function VegaFigure({ spec, title }: { spec: Record<string, unknown>; title: string }) {
   const container = useRef<HTMLDivElement>(null);
@@ -74,9 +76,12 @@ export function VegaFigure({ spec, title }: { spec: Record<string, unknown>; tit
           ast: true,
           expr: expressionInterpreter,
           defaultStyle: false,
-          tooltip: { disableDefaultStyle: true, theme: 'custom' },
+          tooltip: figureTooltip().handler,
         });
-        finalize = () => result.finalize();
+        finalize = () => {
+          figureTooltip().hide();
+          result.finalize();
+        };
         element.querySelector('svg')?.setAttribute('aria-label', title);
         setState('drawn');
       } catch (error) {

@@ -94,6 +94,16 @@ const previewRoute = {
 /** The whole-sheet check waits for the form to settle (350 ms) before it asks the server. */
 const AFTER_CHECK = { timeout: 3_000 };
 
+/** Every live region (aria-live, or a role that is one) that holds `element`, itself included. */
+function liveRegionsHolding(element: Element): Element[] {
+  const live = '[aria-live]:not([aria-live="off"]), [role="status"], [role="alert"], [role="log"]';
+  const regions: Element[] = [];
+  for (let node: Element | null = element; node; node = node.parentElement) {
+    if (node.matches(live)) regions.push(node);
+  }
+  return regions;
+}
+
 function renderWorkbench() {
   return renderWithQueries(<MappingWorkbench uploadId="41" studyId="7" valueUnit="%" />);
 }
@@ -113,7 +123,7 @@ describe('the mapping workbench', () => {
       {},
       AFTER_CHECK,
     );
-    expect(status.getAttribute('role')).toBe('status');
+    expect(liveRegionsHolding(status).map((region) => region.getAttribute('role'))).toEqual(['status']);
     expect((screen.getByLabelText('Time column') as HTMLSelectElement).value).toBe('Month');
     expect((screen.getByLabelText('Value column') as HTMLSelectElement).value).toBe('Assay (%)');
     expect((screen.getByLabelText('Unit of time') as HTMLSelectElement).value).toBe('month');
@@ -158,6 +168,33 @@ describe('the mapping workbench', () => {
     expect(live?.getAttribute('aria-live')).toBe('polite');
     // Empty when it enters the page, filled a moment later: that change is what is announced.
     await waitFor(() => expect(live?.textContent).toMatch(/^Dataset #93 stored: \d+ points in 2 series\./));
+  });
+
+  it('says each sentence of the whole-sheet check in exactly one live region, which stays in the page (accessibility review, 4.1.3)', async () => {
+    mockApi([previewRoute]);
+    renderWorkbench();
+    const timeColumn = await screen.findByLabelText('Time column');
+    const checking = screen.getByText('Checking the whole sheet…');
+    const [region] = liveRegionsHolding(checking);
+    expect(liveRegionsHolding(checking)).toHaveLength(1);
+
+    const sentence = await screen.findByText(
+      /^The whole sheet reads cleanly: 6 points in 2 series\.$/,
+      {},
+      AFTER_CHECK,
+    );
+    expect(liveRegionsHolding(sentence)).toEqual([region]);
+    expect(region?.getAttribute('role')).toBe('status');
+    expect(region?.textContent).toBe('The whole sheet reads cleanly: 6 points in 2 series.');
+    // No live region inside the region either: its text is said once.
+    expect(
+      region?.querySelectorAll('[aria-live], [role="status"], [role="alert"], [role="log"]'),
+    ).toHaveLength(0);
+
+    fireEvent.change(timeColumn, { target: { value: '' } });
+    const hint = screen.getByText(/^Choose at least the time column/);
+    expect(liveRegionsHolding(hint)).toEqual([region]);
+    expect(region?.isConnected).toBe(true);
   });
 
   it('shows the field error beside the field when a required column is unchosen', async () => {

@@ -196,30 +196,38 @@ export function MappingWorkbench({
         )}
       </section>
 
-      <section aria-label="Check of the whole sheet" aria-live="polite">
-        {!checked?.ok ? (
-          <p className="text-sm text-ink-muted">
-            {columnsChosenTwice(draft).length > 0
-              ? `${columnsChosenTwice(draft)
-                  .map((twice) => describeColumnChosenTwice(twice, draft))
-                  .join(' ')} The whole sheet is then checked.`
-              : draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
-                ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
-                : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
-          </p>
-        ) : !check ? (
-          <p className="text-sm text-ink-muted">Checking the whole sheet…</p>
-        ) : check.ok ? (
-          <p role="status" className="rounded-sm border border-ledger/30 bg-ledger-light px-4 py-2 text-sm">
-            {check.warnings.length === 0 ? 'The whole sheet reads cleanly' : 'The whole sheet can be read'}:{' '}
-            {check.pointCount} points in {check.seriesCount} series
-            {check.replicateRows.length > 0 &&
-              `, ${check.replicateRows.length} rows are replicates (same time, same series)`}
-            .
-            {check.warnings.length > 0 &&
-              ` Read the ${plural(check.warnings.length, 'note')} below before you import: the import is allowed, but a note may mean the mapping is wrong.`}
-          </p>
-        ) : (
+      <section aria-label="Check of the whole sheet">
+        {/* The check's one live region (WCAG 4.1.3 Status Messages): always in the page, so each
+            new sentence in it is announced, and neither inside nor around another live region, so
+            it is said once (the section itself was aria-live too, and screen readers read the
+            sentence twice: docs/accessibility-review.md). Problems (an alert) and notes (a status)
+            are regions of their own beside it. */}
+        <div role="status">
+          {!checked?.ok ? (
+            <p className="text-sm text-ink-muted">
+              {columnsChosenTwice(draft).length > 0
+                ? `${columnsChosenTwice(draft)
+                    .map((twice) => describeColumnChosenTwice(twice, draft))
+                    .join(' ')} The whole sheet is then checked.`
+                : draft.timeColumn.trim() === '' || draft.valueColumn.trim() === ''
+                  ? 'Choose at least the time column, its unit and the value column; the whole sheet is then checked.'
+                  : 'Correct the mapping above (each problem is named beside its field); the whole sheet is then checked.'}
+            </p>
+          ) : !check ? (
+            <p className="text-sm text-ink-muted">Checking the whole sheet…</p>
+          ) : check.ok ? (
+            <p className="rounded-sm border border-ledger/30 bg-ledger-light px-4 py-2 text-sm">
+              {check.warnings.length === 0 ? 'The whole sheet reads cleanly' : 'The whole sheet can be read'}:{' '}
+              {check.pointCount} points in {check.seriesCount} series
+              {check.replicateRows.length > 0 &&
+                `, ${check.replicateRows.length} rows are replicates (same time, same series)`}
+              .
+              {check.warnings.length > 0 &&
+                ` Read the ${plural(check.warnings.length, 'note')} below before you import: the import is allowed, but a note may mean the mapping is wrong.`}
+            </p>
+          ) : null}
+        </div>
+        {check && !check.ok && (
           <ProblemList
             heading={`With this mapping the file has ${plural(check.problems.length, 'problem')} (marked in the table below); an import would store nothing:`}
             problems={check.problems}
