@@ -27,7 +27,9 @@ import { ENGINE_VERSION } from './version.ts';
  *   a standard error is missing), so each temperature counts once in the line. The fit is
  *   unweighted unless `arrheniusWeighting: 'inverse-variance'`. An Eyring line (ΔH‡, ΔS‡) goes
  *   through the same points (`dataset-arrhenius.ts`). When no series named an order, a warning
- *   says the rate constants rest on an order the data did not decide.
+ *   says the rate constants rest on an order the data did not decide. With `direction:
+ *   'increasing'` the line is fitted to the zero-order formation rate −k₀ instead (`rateSense`
+ *   'formation'; an analyst's order 1 or 2 is refused with the reason).
  * - k at `storageTemperatureC` by `predictRateConstant`; for first order also t90 = ln(10/9)/k
  *   and the half-life ln 2/k, with the interval ends of k transformed (a monotone function of one
  *   parameter; docs/methods.md#rate-constant-at-the-storage-temperature).

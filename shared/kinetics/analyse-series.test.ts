@@ -72,6 +72,29 @@ describe('analyseSeries on N2O5 (Eyring & Daniels 1930 N2O5 data (from memory))'
   });
 });
 
+describe('analyseSeries on a rising series (a degradation product)', () => {
+  it('fits the integer orders but not the free order n, a law of loss, and names no order', () => {
+    // Zero-order formation from a level near zero, exact: C = 0.05 + 0.09·t (common practice for
+    // a degradant's growth). Every integer law fits with k < 0; the free order would drift
+    // towards C0 → 0 and is not fitted.
+    const series: Series = {
+      id: 'QX-A',
+      timeUnit: 'month',
+      valueUnit: '%',
+      observations: [0, 3, 6, 9, 12, 18, 24].map((time) => ({ time, value: 0.05 + 0.09 * time })),
+    };
+    const result = analyseSeries(series, { confidenceLevel: 0.95 });
+    const free = result.models.find((model) => model.order === 'n');
+    expect(free?.applicable).toBe(false);
+    expect(free?.reason).toBe(
+      'the values do not fall over time, so the free order n, a law of loss, is not fitted',
+    );
+    const zero = result.models.find((model) => model.order === 0);
+    expect(zero?.k).toBeCloseTo(-0.09, 10);
+    expect(result.reportedOrder).toBeNull();
+  });
+});
+
 describe('analyseSeries input handling', () => {
   it('sorts observations given in any order and keeps replicates as separate points', () => {
     const shuffled: Series = { ...n2o5, observations: [...n2o5.observations].reverse() };

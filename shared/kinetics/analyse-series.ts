@@ -151,6 +151,11 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
   const bestInteger = lowestRss(fits);
   if (negative('n') !== null) {
     failures[3] = negative('n')!;
+  } else if (bestInteger !== null && bestInteger.rateConstant <= 0) {
+    // The values do not fall (a degradation product, water): the rate laws describe a loss, and
+    // the free order of a rising series has no meaning — from a start near zero its fit drifts
+    // towards C0 → 0 and runs to the iteration limit. Not fitted; the integer orders still are.
+    failures[3] = 'the values do not fall over time, so the free order n, a law of loss, is not fitted';
   } else if (bestInteger !== null) {
     [fits[3], failures[3]] = attempt(() =>
       fitRateLaw('n', times, values, errorModel, {

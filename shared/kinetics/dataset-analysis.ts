@@ -44,8 +44,19 @@ export interface TemperatureRateConstant {
 
 export interface DatasetArrhenius {
   order: IntegerOrder | null;
-  /** 'analyst': fixed; 'study': the study's working order (no series named one); 'data': lowest summed AICc. */
-  orderSource: 'analyst' | 'data' | 'study' | null;
+  /**
+   * 'analyst': fixed; 'study': the study's working order (no series named one); 'data': lowest
+   * summed AICc; 'formation': zero order by rule, because the attribute increases (`rateSense`).
+   */
+  orderSource: 'analyst' | 'data' | 'study' | 'formation' | null;
+  /**
+   * Which rate the line is fitted to. 'loss': k of the rate law −dC/dt = k·Cⁿ (the attribute
+   * falls). 'formation': with `direction: 'increasing'`, the zero-order formation rate
+   * dC/dt = −k₀ > 0 (value unit per time unit) of an attribute that rises (a degradation product,
+   * water); `rateConstants[].k`, the fit and the prediction are then of that rate. Absent in
+   * results stored before engine 0.4.0, which are all 'loss'.
+   */
+  rateSense: 'loss' | 'formation';
   /** Summed AICc of orders 0, 1, 2 over the series where all three were compared. */
   aiccTotals: [number | null, number | null, number | null];
   kUnit: string | null;

@@ -19,10 +19,21 @@ import { rateConstantUnit, SECONDS_PER_TIME_UNIT, tryParseTimeUnit } from './uni
  * Eyring: `eyringFit` on the pooled k, converted to s⁻¹ from the series' time unit (H. Eyring,
  * J. Chem. Phys. 3 (1935) 107; ΔH‡ = Ea − R·T for a unimolecular reaction in solution).
  *
+ * An attribute that increases (`direction: 'increasing'`: a degradation product, water): the
+ * rate laws −dC/dt = k·Cⁿ describe a loss, so its k is negative and has no logarithm. The line is
+ * then fitted to the zero-order formation rate k_f = dC/dt = −k₀ (value unit per time unit), the
+ * rate a laboratory extrapolates for a degradant's growth (`rateSense` 'formation', order 0,
+ * `orderSource` 'formation'). First- and second-order laws with k < 0 are exponential or
+ * hyperbolic growth from the attribute's own level, which is no law of formation: an analyst's
+ * fixed order 1 or 2 is refused with the reason, and the study's working order does not enter.
+ * 'decreasing' and 'either' fit k itself, as before (docs/methods.md#arrhenius).
+ *
  * Throws nothing: every failure is a reason in the result.
  *
  * Example: first-order series at 25, 40, 50, 60 °C give `order` 1, four points, Ea, and
- * `eyring.enthalpyOfActivation.estimate` ≈ Ea − R·T̄.
+ * `eyring.enthalpyOfActivation.estimate` ≈ Ea − R·T̄. A degradant rising 0.05, 0.091, 0.285
+ * and 0.829 % per month at 25, 30, 40 and 50 °C gives `rateSense` 'formation', order 0,
+ * Ea = 90 kJ/mol and k_f(25 °C) = 0.05 % per month.
  */
 
 const ORDER_WORDS = ['zero', 'first', 'second'] as const;
@@ -109,6 +120,7 @@ export function datasetArrhenius(
   const base: DatasetArrhenius = {
     order,
     orderSource: source,
+    rateSense: 'loss',
     aiccTotals: totals,
     kUnit: order === null || !first ? null : rateConstantUnit(order, first.valueUnit, first.timeUnit),
     rateConstants: [],
@@ -119,6 +131,8 @@ export function datasetArrhenius(
     notApplicableReason: null,
     prediction: null,
   };
+  if (options.direction === 'increasing')
+    return formationArrhenius(base, results, seriesList, options, warnings);
   if (order === null) {
     base.notApplicableReason =
       'no common reaction order: no series had enough points to compare the orders; fix the order to fit Arrhenius';
@@ -139,6 +153,48 @@ export function datasetArrhenius(
       message: `Series name different orders (${[...named].sort().join(', ')}); the Arrhenius fit uses ${ORDER_WORDS[order]} order, lowest in summed AICc.`,
     });
   }
+  return fitAcrossTemperatures(base, results, seriesList, options, warnings);
+}
+
+/**
+ * An increasing attribute: the zero-order formation rate −k₀ at every temperature, or the
+ * refusal of an analyst's order 1 or 2 (their k < 0 describes growth from the attribute's own
+ * level, not a formation rate).
+ */
+function formationArrhenius(
+  base: DatasetArrhenius,
+  results: readonly SeriesResult[],
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+  warnings: DatasetWarning[],
+): DatasetArrhenius {
+  const first = seriesList[0];
+  const fixed = options.order;
+  const order: IntegerOrder = fixed ?? 0;
+  const formation: DatasetArrhenius = {
+    ...base,
+    order,
+    orderSource: fixed === undefined ? 'formation' : 'analyst',
+    rateSense: 'formation',
+    kUnit: first ? rateConstantUnit(order, first.valueUnit, first.timeUnit) : null,
+  };
+  if (order !== 0) {
+    formation.notApplicableReason = `the attribute increases, and the ${ORDER_WORDS[order]}-order law describes a loss (−dC/dt = k·C${order === 1 ? '' : '²'}), so its k is no formation rate; the Arrhenius fit of an increasing attribute uses the zero-order formation rate dC/dt: leave the order free or fix zero order`;
+    return formation;
+  }
+  return fitAcrossTemperatures(formation, results, seriesList, options, warnings);
+}
+
+/** Each series' rate of the chosen order, pooled per temperature, the line and its prediction. */
+function fitAcrossTemperatures(
+  base: DatasetArrhenius,
+  results: readonly SeriesResult[],
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+  warnings: DatasetWarning[],
+): DatasetArrhenius {
+  const order = base.order as IntegerOrder;
+  const formation = base.rateSense === 'formation';
   const byTemperature = new Map<number, { id: string; k: number; se: number | null }[]>();
   for (const result of results) {
     if (result.temperatureC === null) {
@@ -153,14 +209,20 @@ export function datasetArrhenius(
         id: result.id,
         reason: `the ${ORDER_WORDS[order]}-order law could not be fitted: ${model.reason ?? 'no k'}`,
       });
-    } else if (!(model.k > 0)) {
+    } else if (formation && !(-model.k > 0)) {
+      base.excludedSeries.push({
+        id: result.id,
+        reason: `the formation rate dC/dt = ${(-model.k).toPrecision(3)} is not positive (no measurable increase), so its logarithm does not exist`,
+      });
+    } else if (!formation && !(model.k > 0)) {
       base.excludedSeries.push({
         id: result.id,
         reason: `k = ${model.k.toPrecision(3)} is not positive (no measurable loss), so ln k does not exist`,
       });
     } else {
       const list = byTemperature.get(result.temperatureC) ?? [];
-      list.push({ id: result.id, k: model.k, se: model.kStandardError });
+      // The formation rate of an increasing attribute is −k₀; its standard error is k₀'s.
+      list.push({ id: result.id, k: formation ? -model.k : model.k, se: model.kStandardError });
       byTemperature.set(result.temperatureC, list);
     }
   }
@@ -206,8 +268,9 @@ export function datasetArrhenius(
       ...prediction,
       t90: order === 1 ? derived(Math.log(10 / 9)) : null,
       halfLife: order === 1 ? derived(Math.LN2) : null,
-      derivedReason:
-        order === 1
+      derivedReason: formation
+        ? 'a formation rate (the attribute increases): t90 and half-life do not apply; at this temperature the level grows by the rate times the storage time'
+        : order === 1
           ? null
           : `for ${ORDER_WORDS[order]} order, t90 and half-life depend on the initial value; see each series`,
     };
@@ -215,7 +278,7 @@ export function datasetArrhenius(
       const [low, high] = fitted.value.temperatureRangeC;
       warnings.push({
         code: 'arrhenius-extrapolation',
-        message: `k at ${storage} °C is extrapolated outside the fitted ${low}–${high} °C; the straight Arrhenius line is an assumption there.`,
+        message: `${formation ? 'The formation rate' : 'k'} at ${storage} °C is extrapolated outside the fitted ${low}–${high} °C; the straight Arrhenius line is an assumption there.`,
       });
     }
   }

@@ -165,8 +165,15 @@ export function methodStatement(
   let temperature: string | null = null;
   const arrhenius = analysis.arrhenius;
   if (arrhenius) {
-    const orderText =
-      arrhenius.order === null
+    const formation = arrhenius.rateSense === 'formation';
+    const declaredOrder = options.workingOrder?.order ?? 0;
+    const workingOrderLeftOut =
+      arrhenius.orderSource === 'formation' && declaredOrder !== 0
+        ? `, so the study's working order (${ORDER_WORDS[declaredOrder]}) does not enter`
+        : '';
+    const orderText = formation
+      ? `Fitted to the formation rate (the attribute increases): dC/dt = −k of each series' zero-order law, in ${arrhenius.kUnit ?? 'the value unit per time unit'}; first- and second-order laws describe a loss and give no formation rate${workingOrderLeftOut}.`
+      : arrhenius.order === null
         ? 'No common order could be determined.'
         : arrhenius.orderSource === 'analyst'
           ? `Rate constants of the analyst's ${ORDER_WORDS[arrhenius.order]} order were used.`
@@ -174,14 +181,16 @@ export function methodStatement(
     const excluded = arrhenius.excludedSeries.map((entry) => `${entry.id} (${entry.reason})`).join('; ');
     temperature = [
       orderText,
-      'Batches at one temperature were pooled into one point: the mean of ln k weighted by (k/se(k))² (plain mean when a standard error was missing).',
-      `ln k was regressed on 1/T (${options.arrheniusWeighting ?? 'unweighted'}), Ea = −R·slope with R = ${MOLAR_GAS_CONSTANT} J/(mol·K).`,
+      formation
+        ? 'Batches at one temperature were pooled into one point: the mean of the logarithm of the formation rate weighted by (rate/se(rate))² (plain mean when a standard error was missing).'
+        : 'Batches at one temperature were pooled into one point: the mean of ln k weighted by (k/se(k))² (plain mean when a standard error was missing).',
+      `${formation ? 'The logarithm of the formation rate' : 'ln k'} was regressed on 1/T (${options.arrheniusWeighting ?? 'unweighted'}), Ea = −R·slope with R = ${MOLAR_GAS_CONSTANT} J/(mol·K).`,
       excluded
         ? `Left out of the Arrhenius fit: ${excluded}.`
         : 'No series was left out of the Arrhenius fit.',
       options.storageTemperatureC === undefined
         ? ''
-        : `k at ${options.storageTemperatureC} °C was predicted from the line, with a confidence interval for the mean line back-transformed from the ln scale.`,
+        : `${formation ? 'The formation rate' : 'k'} at ${options.storageTemperatureC} °C was predicted from the line, with a confidence interval for the mean line back-transformed from the ln scale.`,
       arrhenius.notApplicableReason ? `Not completed: ${arrhenius.notApplicableReason}.` : '',
     ]
       .filter((sentence) => sentence !== '')

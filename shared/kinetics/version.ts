@@ -6,6 +6,6 @@
  * deliberately not read from package.json or the environment at run time, so that the same code
  * always reports the same version wherever it runs (browser, server, command line).
  *
- * Example: `ENGINE_VERSION` is '0.3.0'.
+ * Example: `ENGINE_VERSION` is '0.4.0'.
  */
-export const ENGINE_VERSION = '0.3.0';
+export const ENGINE_VERSION = '0.4.0';

@@ -195,6 +195,39 @@ describe('a study of three attributes (assay, a degradation product, water)', ()
     );
   });
 
+  it('fits Arrhenius to the formation rate of the rising attributes; the assay keeps its rate of loss', () => {
+    // Impurity B rises 0.03 % per month at 25 °C and four times as fast at 40 °C (the fixture), so
+    // its zero-order k is negative; the Arrhenius line goes through the formation rate −k.
+    const impurity = run.result.otherAttributes![0]!.analysis;
+    const arrhenius = impurity.arrhenius!;
+    expect(arrhenius.rateSense).toBe('formation');
+    expect(arrhenius.order).toBe(0);
+    expect(arrhenius.orderSource).toBe('formation');
+    expect(arrhenius.kUnit).toBe('(% of label claim)/month');
+    expect(arrhenius.excludedSeries).toEqual([]);
+    expect(arrhenius.rateConstants.map((point) => point.temperatureC)).toEqual([25, 40]);
+    const [at25, at40] = arrhenius.rateConstants;
+    const accelerated = impurity.series.find((entry) => entry.id === 'Impurity B · CV-01 @ 40 °C')!;
+    const zeroOrder = accelerated.analysis!.models.find((model) => model.order === 0)!;
+    expect(at40!.k).toBe(-zeroOrder.k!);
+    expect(at25!.k).toBeGreaterThan(0.025);
+    expect(at25!.k).toBeLessThan(0.035);
+    expect(at40!.k / at25!.k).toBeGreaterThan(3.5);
+    expect(at40!.k / at25!.k).toBeLessThan(4.5);
+    // Two temperatures: the line is exact, Ea = R·ln(k40/k25)/(1/T25 − 1/T40) (Arrhenius law,
+    // IUPAC Gold Book "Arrhenius equation"), and k at the 25 °C storage temperature is k25.
+    const gasConstant = 8.31446261815324;
+    const ea = (gasConstant * Math.log(at40!.k / at25!.k)) / (1 / 298.15 - 1 / 313.15);
+    expect(Math.abs(arrhenius.fit!.activationEnergy - ea) / ea).toBeLessThan(1e-9);
+    expect(Math.abs(arrhenius.prediction!.rateConstant - at25!.k) / at25!.k).toBeLessThan(1e-9);
+    expect(arrhenius.prediction!.t90).toBeNull();
+    expect(impurity.methodStatement.temperature).toContain('formation rate (the attribute increases)');
+    expect(run.result.otherAttributes![1]!.analysis.arrhenius!.rateSense).toBe('formation');
+    expect(run.result.otherAttributes![1]!.analysis.arrhenius!.fit).not.toBeNull();
+    expect(run.result.analysis.arrhenius!.rateSense).toBe('loss');
+    expect(run.result.analysis.arrhenius!.fit!.activationEnergy).toBeGreaterThan(0);
+  });
+
   it('the run as read marks the censored points as the engine saw them', async () => {
     const response = await agent.get(`/api/analyses/${runId}`);
     expect(response.status).toBe(200);

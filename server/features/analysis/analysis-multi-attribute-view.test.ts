@@ -8,12 +8,14 @@ const sha256 = (value: unknown) => createHash('sha256').update(JSON.stringify(va
 
 describe('the analysis page of a run of one attribute', () => {
   // Digests of the page model and the figures of this fixture, taken with the code of commit
-  // 9b340da, before several attributes were shown: the page of one attribute is unchanged.
+  // 9b340da, before several attributes were shown: the page of one attribute is unchanged. Engine
+  // 0.4.0 changed the model only in the version string of its method statement (with
+  // ENGINE_VERSION set back to 0.3.0 it gives 9b340da's 294d932a71676efb69f7e07e5064fffd89f7434108c66a5ca1ee63ab246d89dd).
   it('has the same model and figures as before', () => {
     const run = fixtureRun(false);
     const model = analysisPageModel(run, true);
     expect('multiAttribute' in model).toBe(false);
-    expect(sha256(model)).toBe('294d932a71676efb69f7e07e5064fffd89f7434108c66a5ca1ee63ab246d89dd');
+    expect(sha256(model)).toBe('8cb09d87834d8c303704d3412d88f48882555c4fc497be1beccc54db985ed7de');
     expect(sha256(runFigures(run))).toBe('fd5f15d48ed058cbb86b9cc641caab6cadfd63bc06dcb7149de9a648ac5d4d42');
   });
 });
