@@ -1,5 +1,6 @@
 import type { DatasetAnalysis } from '../kinetics/analyse-dataset.ts';
 import { lineValueAt } from '../kinetics/temperature/inverse-temperature-line.ts';
+import { FORMATION_ORDER_WHY, isFormationRate, rateWords, seriesRate } from './arrhenius-rate-words.ts';
 import {
   FIGURE_CONFIG,
   PALETTE,
@@ -26,6 +27,10 @@ import { MODEL_NAMES } from './results-table.ts';
  *
  * Throws nothing; returns null when the analysis has no Arrhenius fit.
  *
+ * An attribute that increases (engine 0.4.0, `rateSense` 'formation') is plotted on its
+ * zero-order formation rate k_f = −k₀ instead: y = ln k_f, in the value unit per time unit, and
+ * every label says "formation rate" and "ln k_f" (`arrhenius-rate-words.ts`).
+ *
  * Example: four temperatures 25–60 °C give four pooled points on a falling line and a marked
  * prediction at 25 °C.
  */
@@ -36,6 +41,8 @@ const ORDER_SOURCE_WORDS: Record<string, string> = {
   data: 'lowest summed AICc',
   // Issue 12 §3: a working order declared by the study.
   study: 'working order from the study',
+  // Engine 0.4.0: the formation rate of an increasing attribute.
+  formation: FORMATION_ORDER_WHY,
 };
 const LINE_POINTS = 25;
 
@@ -44,16 +51,18 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
   const fit = arrhenius?.fit;
   if (!arrhenius || !fit || arrhenius.order === null) return null;
   const inverse = (celsius: number) => 1000 / (celsius + KELVIN_OFFSET);
+  const rate = rateWords(arrhenius);
   // Only the series the fit used: a series the table lists as left out stays off the plot.
   const used = new Set(arrhenius.rateConstants.flatMap((point) => point.seriesIds));
   const seriesPoints = analysis.series.flatMap((result) => {
     const model = result.analysis?.models.find((candidate) => candidate.order === arrhenius.order);
-    if (!used.has(result.id) || result.temperatureC === null || !model || model.k === null || !(model.k > 0))
-      return [];
+    // The rate the series gave the line: k, or the formation rate −k₀ of an increasing attribute.
+    const value = seriesRate(arrhenius, model?.k);
+    if (!used.has(result.id) || result.temperatureC === null || value === null) return [];
     return [
       {
         x: inverse(result.temperatureC),
-        lnK: Math.log(model.k),
+        lnK: Math.log(value),
         series: result.id,
         batch: result.batch ?? result.id,
         temperature: `${result.temperatureC} °C`,
@@ -84,7 +93,7 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
         y: {
           field: 'lnK',
           type: 'quantitative',
-          title: `ln(k / ${arrhenius.kUnit ?? 'unit of k'})`,
+          title: `ln(${rate.symbol} / ${arrhenius.kUnit ?? `unit of ${rate.symbol}`})`,
           scale: { zero: false, padding: 24 },
         },
       },
@@ -111,7 +120,7 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
         tooltip: [
           { field: 'series', type: 'nominal' },
           { field: 'temperature', type: 'nominal' },
-          { field: 'lnK', type: 'quantitative', title: 'ln k', format: TOOLTIP_FORMAT },
+          { field: 'lnK', type: 'quantitative', title: rate.ln, format: TOOLTIP_FORMAT },
         ],
       },
     },
@@ -123,7 +132,7 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
         y: { field: 'lnK', type: 'quantitative' },
         tooltip: [
           { field: 'temperature', type: 'nominal' },
-          { field: 'lnK', type: 'quantitative', title: 'pooled ln k', format: TOOLTIP_FORMAT },
+          { field: 'lnK', type: 'quantitative', title: `pooled ${rate.ln}`, format: TOOLTIP_FORMAT },
           { field: 'seriesCount', type: 'quantitative', title: 'series' },
         ],
       },
@@ -166,10 +175,10 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
           x: { field: 'x', type: 'quantitative' },
           y: { field: 'lnK', type: 'quantitative' },
           tooltip: [
-            { field: 'label', type: 'nominal', title: 'k' },
-            { field: 'lnK', type: 'quantitative', title: 'ln k', format: TOOLTIP_FORMAT },
-            { field: 'low', type: 'quantitative', title: 'CI lower (ln k)', format: TOOLTIP_FORMAT },
-            { field: 'high', type: 'quantitative', title: 'CI upper (ln k)', format: TOOLTIP_FORMAT },
+            { field: 'label', type: 'nominal', title: rate.symbol },
+            { field: 'lnK', type: 'quantitative', title: rate.ln, format: TOOLTIP_FORMAT },
+            { field: 'low', type: 'quantitative', title: `CI lower (${rate.ln})`, format: TOOLTIP_FORMAT },
+            { field: 'high', type: 'quantitative', title: `CI upper (${rate.ln})`, format: TOOLTIP_FORMAT },
           ],
         },
       },
@@ -186,14 +195,18 @@ export function arrheniusPlotSpec(analysis: DatasetAnalysis): Record<string, unk
   }
   return {
     $schema: VEGA_LITE_SCHEMA,
-    description: `Arrhenius plot: ln k of the ${MODEL_NAMES[String(arrhenius.order)]} law (${orderNote(analysis)}) against 1000/T with the fitted line${prediction ? ' and the predicted rate constant' : ''}.`,
+    description: isFormationRate(arrhenius)
+      ? `Arrhenius plot: ln k_f, the zero-order formation rate of an attribute that increases (${orderNote(analysis)}), against 1000/T with the fitted line${prediction ? ' and the predicted formation rate' : ''}.`
+      : `Arrhenius plot: ln k of the ${MODEL_NAMES[String(arrhenius.order)]} law (${orderNote(analysis)}) against 1000/T with the fitted line${prediction ? ' and the predicted rate constant' : ''}.`,
     config: FIGURE_CONFIG,
     width: 560,
     height: 300,
     title: {
       text: 'Arrhenius plot',
       subtitle: [
-        `${capitalised(MODEL_NAMES[String(arrhenius.order)] ?? '')} rate constants (${orderNote(analysis)}).`,
+        isFormationRate(arrhenius)
+          ? `Formation rates k_f in ${arrhenius.kUnit ?? 'the value unit per time unit'} (${orderNote(analysis)}).`
+          : `${capitalised(MODEL_NAMES[String(arrhenius.order)] ?? '')} rate constants (${orderNote(analysis)}).`,
         `Diamonds: pooled per temperature${prediction ? '; red: prediction with its confidence interval' : ''}.`,
       ],
     },
@@ -211,6 +224,8 @@ const capitalised = (text: string) => `${text.charAt(0).toUpperCase()}${text.sli
 function orderNote(analysis: DatasetAnalysis): string {
   const arrhenius = analysis.arrhenius!;
   if (arrhenius.orderSource === 'analyst') return 'order fixed by the analyst';
+  // Zero order by rule: what the series named is no part of it.
+  if (arrhenius.orderSource === 'formation') return ORDER_SOURCE_WORDS.formation!;
   const analysed = analysis.series.filter((result) => result.analysis);
   const naming = analysed.filter((result) => result.analysis!.reportedOrder === arrhenius.order).length;
   const source = ORDER_SOURCE_WORDS[String(arrhenius.orderSource)] ?? 'order of the analysis';

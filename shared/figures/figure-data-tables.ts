@@ -5,6 +5,7 @@ import { fromStabilityScale } from '../kinetics/stability/stability-scale.ts';
 import { lineValueAt } from '../kinetics/temperature/inverse-temperature-line.ts';
 import type { Observation, Series } from '../kinetics/types.ts';
 import { type FigureSpec, q1eFigureId } from './analysis-figures.ts';
+import { isFormationRate, rateWords, seriesRate } from './arrhenius-rate-words.ts';
 import { censoredWords } from './fitted-curves.ts';
 import { lawLabels } from './law-standing.ts';
 import { plotSample } from './plot-sample.ts';
@@ -207,9 +208,10 @@ function arrheniusTable(analysis: DatasetAnalysis): FigureDataTable | null {
   const used = new Set(arrhenius.rateConstants.flatMap((point) => point.seriesIds));
   const seriesRows = analysis.series.flatMap((result) => {
     const model = result.analysis?.models.find((candidate) => candidate.order === arrhenius.order);
-    if (!used.has(result.id) || result.temperatureC === null || !model || model.k === null || !(model.k > 0))
-      return [];
-    return [row(result.id, result.temperatureC, Math.log(model.k))];
+    // k, or the formation rate −k₀ of an increasing attribute (`arrhenius-rate-words.ts`).
+    const value = seriesRate(arrhenius, model?.k);
+    if (!used.has(result.id) || result.temperatureC === null || value === null) return [];
+    return [row(result.id, result.temperatureC, Math.log(value))];
   });
   const pooledRows = arrhenius.rateConstants.map((point) =>
     row(
@@ -233,16 +235,19 @@ function arrheniusTable(analysis: DatasetAnalysis): FigureDataTable | null {
         ],
       ]
     : [];
+  const rate = rateWords(arrhenius);
   return {
-    caption: `Rate constants of the ${MODEL_NAMES[String(arrhenius.order)]} law against 1000/T, with the fitted line and residual (ln k − line)`,
+    caption: isFormationRate(arrhenius)
+      ? 'Formation rates k_f (zero order, the attribute increases) against 1000/T, with the fitted line and residual (ln k_f − line)'
+      : `Rate constants of the ${MODEL_NAMES[String(arrhenius.order)]} law against 1000/T, with the fitted line and residual (ln k − line)`,
     columns: [
       'Point',
       'Temperature',
       '1000/T (1/K)',
-      `ln(k / ${arrhenius.kUnit ?? 'unit of k'})`,
-      'Line: ln k',
-      'Residual (ln k)',
-      'Confidence interval (ln k)',
+      `ln(${rate.symbol} / ${arrhenius.kUnit ?? `unit of ${rate.symbol}`})`,
+      `Line: ${rate.ln}`,
+      `Residual (${rate.ln})`,
+      `Confidence interval (${rate.ln})`,
     ],
     rows: [...seriesRows, ...pooledRows, ...predictionRows],
     note: '',

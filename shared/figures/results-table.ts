@@ -1,6 +1,7 @@
 import type { DatasetAnalysis, SeriesResult } from '../kinetics/analyse-dataset.ts';
 import type { DerivedFigure } from '../kinetics/derived/model-summary.ts';
 import type { RateLawModel } from '../kinetics/order/fit-rate-law.ts';
+import { rateWords } from './arrhenius-rate-words.ts';
 import { eyringRows, plausibleRows, q10Rows } from './plausible-and-eyring-rows.ts';
 import type { ResultRow } from './result-row.ts';
 
@@ -182,6 +183,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
   const arrhenius = analysis.arrhenius;
   if (arrhenius?.fit) {
     const fit = arrhenius.fit;
+    const rate = rateWords(arrhenius);
     const kilo = (value: number | null | undefined) =>
       value === null || value === undefined ? null : value / 1000;
     const energyInterval = fit.activationEnergyInterval
@@ -215,7 +217,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
       row({
         ...base,
         quantity: 'r-squared',
-        label: 'R² of ln k against 1/T',
+        label: `R² of ${rate.ln} against 1/T`,
         estimate: fit.rSquared,
         unit: '',
         digits: DIGITS.rSquared,
@@ -228,11 +230,11 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
           ...base,
           temperatureC: point.temperatureC,
           quantity: `k-at-${point.temperatureC}C`,
-          label: `k at ${point.temperatureC} °C (${point.seriesIds.length} series)`,
+          label: `${rate.label} at ${point.temperatureC} °C (${point.seriesIds.length} series)`,
           estimate: point.k,
           unit: arrhenius.kUnit ?? '',
           digits: DIGITS.estimate,
-          note: POOLING_WORDS[point.pooling] ?? point.pooling,
+          note: (POOLING_WORDS[point.pooling] ?? point.pooling).replaceAll('ln k', rate.ln),
         }),
       );
     }
@@ -247,7 +249,7 @@ export function resultRows(analysis: DatasetAnalysis): ResultRow[] {
         row({
           ...at,
           quantity: 'predicted-k',
-          label: `k predicted at ${prediction.temperatureC} °C`,
+          label: `${rate.label} predicted at ${prediction.temperatureC} °C`,
           estimate: prediction.rateConstant,
           interval: prediction.confidenceInterval,
           unit: arrhenius.kUnit ?? '',

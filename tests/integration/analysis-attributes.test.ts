@@ -228,6 +228,37 @@ describe('a study of three attributes (assay, a degradation product, water)', ()
     expect(run.result.analysis.arrhenius!.fit!.activationEnergy).toBeGreaterThan(0);
   });
 
+  it('the page and the CSV name the rising attributes’ formation rate and why zero order; the assay keeps k', async () => {
+    const why = 'zero order by rule: the formation rate of an attribute that increases';
+    const page = await agent.get(`/analyses/${runId}`);
+    expect(page.status).toBe(200);
+    const text = page.text
+      .replace(/<[^>]+>/g, ' ')
+      .replace(/&#x27;|&#39;/g, "'")
+      .replace(/&#x3D;/g, '=')
+      .replace(/\s+/g, ' ');
+    const impurity = text.slice(text.indexOf('Temperature dependence (Arrhenius): Impurity B'));
+    expect(impurity).toContain(
+      `Formation rates k_f = dC/dt of the zero-order law, in (% of label claim)/month (${why}).`,
+    );
+    expect(impurity).toContain('Formation rate k_f predicted at 25 °C');
+    expect(impurity).toContain('R² of ln k_f against 1/T');
+    const assayStart = text.indexOf('Temperature dependence (Arrhenius): Assay');
+    const assay = text.slice(assayStart, text.indexOf('Series: Assay', assayStart));
+    expect(assay).toContain('k predicted at 25 °C');
+    expect(assay).not.toContain('formation');
+    // From Impurity B to the end of the page (Impurity B, then Water: both rise).
+    expect(impurity).not.toContain('lowest summed AICc');
+
+    const csv = (await agent.get(`/api/analyses/${runId}/export.csv`)).text;
+    const lines = csv.split('\r\n');
+    expect(
+      lines.some((line) => line.includes('Impurity B') && line.includes('Formation rate k_f at 40 °C')),
+    ).toBe(true);
+    expect(lines.some((line) => line.includes('Impurity B') && /,k at \d+ °C/.test(line))).toBe(false);
+    expect(lines.some((line) => line.startsWith('Assay') && line.includes('k at 40 °C'))).toBe(true);
+  });
+
   it('the run as read marks the censored points as the engine saw them', async () => {
     const response = await agent.get(`/api/analyses/${runId}`);
     expect(response.status).toBe(200);

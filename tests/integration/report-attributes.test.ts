@@ -140,6 +140,14 @@ describe('the report of a multi-attribute run', () => {
     expect(data).toContain('< 0.05 (censored)');
     expect(section(html, 'mass-balance-heading')).toContain('Mass balance: Assay plus Impurity B');
 
+    // Temperature dependence: the rising attributes on their formation rate (engine 0.4.0), the assay on k.
+    const temperature = section(html, 'temperature-heading');
+    const rising = temperature.slice(temperature.indexOf('Impurity B'));
+    expect(rising).toContain('from formation rates k_f = dC/dt of zero order at 25 °C, 40 °C');
+    expect(rising).toMatch(/Predicted formation rate k_f at 25 °C: \S+ \(% label claim\)\/month/);
+    expect(rising).not.toContain('Predicted k at');
+    expect(temperature.slice(0, temperature.indexOf('Impurity B'))).toContain('Predicted k at 25 °C');
+
     // Every attribute's figures are drawn once and kept beside the run, ids unique per attribute.
     const rows = await world.database.db
       .select({ figureId: analysisRunFigures.figureId })

@@ -1,4 +1,5 @@
 import { q1eFigureId } from '../../../shared/figures/analysis-figures.ts';
+import { FORMATION_ORDER_WHY, isFormationRate } from '../../../shared/figures/arrhenius-rate-words.ts';
 import type { FigureDataTable } from '../../../shared/figures/figure-data-tables.ts';
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../../shared/figures/results-table.ts';
 import {
@@ -189,7 +190,16 @@ export function attributeResults(input: AttributeResultsInput) {
             ? 'fixed by the analyst'
             : arrhenius.orderSource === 'study'
               ? 'working order from the study, as no series named an order'
-              : 'lowest summed AICc',
+              : arrhenius.orderSource === 'formation'
+                ? FORMATION_ORDER_WHY
+                : 'lowest summed AICc',
+        // Engine 0.4.0: the line is of the formation rate of an increasing attribute (an analyst's
+        // order 1 or 2 there is refused, with the reason in notApplicable); absent (not false) for
+        // a loss, so that the page model of a falling attribute reads as before.
+        formation:
+          isFormationRate(arrhenius) && arrhenius.order === 0
+            ? { unit: arrhenius.kUnit ?? 'the value unit per time unit' }
+            : undefined,
         noOrderNamed: analysis.warnings.find((warning) => warning.code === 'no-order-named')?.message ?? null,
         notApplicable: arrhenius.notApplicableReason,
         rows: rows

@@ -1,3 +1,4 @@
+import { FORMATION_ORDER_WHY, isFormationRate } from '../../../shared/figures/arrhenius-rate-words.ts';
 import { MODEL_NAMES } from '../../../shared/figures/results-table.ts';
 import { formatSignificant } from '../../../shared/figures/significant-figures.ts';
 import type { DatasetAnalysis } from '../../../shared/kinetics/analyse-dataset.ts';
@@ -34,7 +35,11 @@ const ARRHENIUS_ORDER_WHY: Record<string, string> = {
   analyst: 'order fixed by the analyst',
   study: 'the study’s working order, as no series named an order',
   data: 'the order with the lowest summed AICc over the series',
+  formation: FORMATION_ORDER_WHY,
 };
+
+/** "Formation rate k_f predicted at 25 °C" inside a sentence; "k predicted at …" stays as it is. */
+const lowerFirst = (text: string) => `${text.charAt(0).toLowerCase()}${text.slice(1)}`;
 
 interface ShelfLifeEntry {
   condition: string;
@@ -98,8 +103,14 @@ export function verdictSummary(
   const deltaS = arrheniusModel?.rows.find((row) => row.cell.key.endsWith('|entropy-of-activation'));
   if (ea?.cell.value) {
     const source = ARRHENIUS_ORDER_WHY[String(analysis.arrhenius?.orderSource)] ?? '';
+    // A formation fit of zero order by rule names its rate in `source` already.
+    const rates = !isFormationRate(analysis.arrhenius)
+      ? `${arrheniusModel!.order} rate constants, `
+      : analysis.arrhenius?.orderSource === 'formation'
+        ? ''
+        : `${arrheniusModel!.order} formation rates, `;
     summary.push(
-      `Arrhenius (${arrheniusModel!.order} rate constants, ${source}): Ea = ${ea.cell.text} ${ea.cell.unit}${ea.cell.hasInterval ? ` (95 % CI ${ea.cell.interval})` : ''}${predicted?.cell.value ? `; ${predicted.label} ${predicted.cell.text} ${predicted.cell.unit}` : ''}${deltaH?.cell.value ? `; Eyring ΔH‡ = ${deltaH.cell.text} ${deltaH.cell.unit}${deltaH.cell.hasInterval ? ` (CI ${deltaH.cell.interval})` : ''}` : ''}${deltaS?.cell.value ? `, ΔS‡ = ${deltaS.cell.text} ${deltaS.cell.unit}${deltaS.cell.hasInterval ? ` (CI ${deltaS.cell.interval})` : ''}` : ''}.`,
+      `Arrhenius (${rates}${source}): Ea = ${ea.cell.text} ${ea.cell.unit}${ea.cell.hasInterval ? ` (95 % CI ${ea.cell.interval})` : ''}${predicted?.cell.value ? `; ${lowerFirst(predicted.label)} ${predicted.cell.text} ${predicted.cell.unit}` : ''}${deltaH?.cell.value ? `; Eyring ΔH‡ = ${deltaH.cell.text} ${deltaH.cell.unit}${deltaH.cell.hasInterval ? ` (CI ${deltaH.cell.interval})` : ''}` : ''}${deltaS?.cell.value ? `, ΔS‡ = ${deltaS.cell.text} ${deltaS.cell.unit}${deltaS.cell.hasInterval ? ` (CI ${deltaS.cell.interval})` : ''}` : ''}.`,
     );
   }
   const noneNamed = analysis.warnings.find((warning) => warning.code === 'no-order-named');

@@ -1,3 +1,4 @@
+import { rateWords } from '../../../shared/figures/arrhenius-rate-words.ts';
 import type { DatasetAnalysis, DatasetOptions } from '../../../shared/kinetics/analyse-dataset.ts';
 
 /**
@@ -136,7 +137,7 @@ function arrheniusRows(analysis: DatasetAnalysis): KeyResult[] {
       ? [
           {
             key: 'arrhenius:k-storage',
-            label: `k at ${prediction.temperatureC} °C (Arrhenius)`,
+            label: `${rateWords(arrhenius).label} at ${prediction.temperatureC} °C (Arrhenius)`,
             value: `${numberText(prediction.rateConstant, arrhenius.kUnit ?? '')}${intervalText(prediction.confidenceInterval)}`,
           },
         ]

@@ -8,7 +8,7 @@ import {
 import type { AttributeShelfLife } from '../../../../shared/kinetics/stability/study-shelf-life-types.ts';
 import type { Series } from '../../../../shared/kinetics/types.ts';
 import {
-  arrheniusSummary,
+  attributeArrheniusSummary,
   criterionText,
   seriesSummaries,
   shelfLifeSummaries,
@@ -196,7 +196,7 @@ function attributeEntry(
     series: summaries,
     shelfLife,
     proposals: shelfLife.filter((entry) => entry.isLongTermCondition),
-    arrhenius: arrheniusSummary(analysis),
+    arrhenius: attributeArrheniusSummary(analysis),
     resultsTable: attributeResultsTable(attribute.name, summaries, analysis.confidenceLevel),
     tables,
     /** The proposal per condition (the Q1E outcome), or null for runs recorded before proposals. */

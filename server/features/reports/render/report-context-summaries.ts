@@ -1,3 +1,4 @@
+import { FORMATION_ORDER_WHY, isFormationRate } from '../../../../shared/figures/arrhenius-rate-words.ts';
 import type { StoredAnalysisResult } from '../../../../shared/figures/stored-result.ts';
 import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
@@ -131,7 +132,9 @@ export function arrheniusSummary(analysis: DatasetAnalysis) {
         ? 'the order fixed by the analyst'
         : arrhenius.orderSource === 'study'
           ? 'the study’s working order, as no series named an order'
-          : 'the order with the lowest summed AICc over the series',
+          : arrhenius.orderSource === 'formation'
+            ? FORMATION_ORDER_WHY
+            : 'the order with the lowest summed AICc over the series',
     noOrderNamedWarning:
       analysis.warnings.find((warning) => warning.code === 'no-order-named')?.message ?? null,
     eyring: arrhenius.eyring?.fit
@@ -168,5 +171,20 @@ export function arrheniusSummary(analysis: DatasetAnalysis) {
           extrapolated: prediction.extrapolation !== null,
         }
       : null,
+  };
+}
+
+/**
+ * The Arrhenius summary of one attribute (`attributes[].arrhenius`): as `arrheniusSummary`, with
+ * `rateSense` — 'formation' when the line is of the zero-order formation rate k_f = dC/dt of an
+ * attribute that increases (engine 0.4.0), else 'loss' (every run stored before 0.4.0). Kept off
+ * `summary.arrhenius`, whose fields an organisation's template has used since before attributes.
+ */
+export function attributeArrheniusSummary(analysis: DatasetAnalysis) {
+  const summary = arrheniusSummary(analysis);
+  if (!summary) return null;
+  return {
+    ...summary,
+    rateSense: isFormationRate(analysis.arrhenius) ? ('formation' as const) : ('loss' as const),
   };
 }

@@ -1,3 +1,4 @@
+import { FORMATION_ORDER_WHY, isFormationRate } from '../../../../shared/figures/arrhenius-rate-words.ts';
 import { MODEL_NAMES, type ResultRow, resultRows } from '../../../../shared/figures/results-table.ts';
 import { inTimeUnit } from '../../../../shared/figures/time-unit-words.ts';
 import type { DatasetAnalysis } from '../../../../shared/kinetics/analyse-dataset.ts';
@@ -305,7 +306,17 @@ const ARRHENIUS_ORDER_WHY: Record<string, string> = {
   analyst: 'rate constants of the order fixed by the analyst',
   study: 'rate constants of the study’s working order, as no series named an order',
   data: 'rate constants of the order with the lowest summed AICc over the series',
+  formation: `formation rates k_f, ${FORMATION_ORDER_WHY}`,
 };
+
+/** The caption of the Arrhenius table: what its rates are, and why they are of their order. */
+function arrheniusCaption(analysis: DatasetAnalysis): string {
+  const arrhenius = analysis.arrhenius;
+  if (isFormationRate(arrhenius) && arrhenius?.orderSource !== 'formation')
+    // An analyst's zero order on an increasing attribute: still its formation rate.
+    return `Temperature dependence (Arrhenius; Eyring ΔH‡ and ΔS‡ through the same formation rates): formation rates k_f of the zero order fixed by the analyst`;
+  return `Temperature dependence (Arrhenius; Eyring ΔH‡ and ΔS‡ through the same ${isFormationRate(arrhenius) ? 'formation rates' : 'rate constants'}): ${ARRHENIUS_ORDER_WHY[String(arrhenius?.orderSource)] ?? 'order of the analysis'}`;
+}
 
 /** The results tables by the part of the report they belong to, each in reading order. */
 export interface ResultTableGroups {
@@ -329,13 +340,7 @@ export function resultTableGroups(analysis: DatasetAnalysis): ResultTableGroups 
       listTable(analysis, of('shelf-life'), 'ICH Q1E statistical shelf-life estimate per condition'),
     );
   if (of('arrhenius').length > 0)
-    groups.temperature.push(
-      listTable(
-        analysis,
-        of('arrhenius'),
-        `Temperature dependence (Arrhenius; Eyring ΔH‡ and ΔS‡ through the same rate constants): ${ARRHENIUS_ORDER_WHY[String(analysis.arrhenius?.orderSource)] ?? 'order of the analysis'}`,
-      ),
-    );
+    groups.temperature.push(listTable(analysis, of('arrhenius'), arrheniusCaption(analysis)));
   if (of('derived').length > 0) groups.series.push(derivedTable(analysis, of('derived')));
   if (of('plausible').length > 0) groups.series.push(plausibleTable(analysis, of('plausible')));
   if (of('rate-law').length > 0) groups.series.push(modelTable(analysis, of('rate-law')));
