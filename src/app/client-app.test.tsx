@@ -1,4 +1,5 @@
 import { fireEvent, screen, waitFor, within } from '@testing-library/react';
+import { StrictMode } from 'react';
 import { describe, expect, it, vi } from 'vitest';
 import { json, mockApi } from '../testing/api-mock.ts';
 import { renderWithQueries } from '../testing/render.tsx';
@@ -57,7 +58,12 @@ describe('moving to another page of the section', () => {
       { path: /^\/api\/(activity|me)/, respond: () => json(200, []) },
     ]);
     vi.spyOn(console, 'error').mockImplementation(() => {});
-    renderWithQueries(<ClientApp />);
+    // In StrictMode, as the islands mount: a development build runs the mount's effect twice.
+    renderWithQueries(
+      <StrictMode>
+        <ClientApp />
+      </StrictMode>,
+    );
     await screen.findByRole('link', { name: 'RL-2026-0005' });
     expect(document.activeElement).toBe(document.body);
 
