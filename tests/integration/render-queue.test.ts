@@ -1,7 +1,7 @@
 import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { and, eq, sql } from 'drizzle-orm';
+import { and, asc, eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
   openRenderQueue,
@@ -160,7 +160,9 @@ describe('the render queue', () => {
           eq(auditEvents.recordType, 'report_version'),
           eq(auditEvents.recordId, String(created.versionId)),
         ),
-      );
+      )
+      // In the order they were recorded: a SELECT without ORDER BY has no order.
+      .orderBy(asc(auditEvents.id));
     expect(events.map((event) => event.action)).toEqual([
       'report-version.created',
       'report-version.render-failed',
