@@ -34,7 +34,7 @@ npx vite build --logLevel warn || status=1
 # The tests of server/cli run the bundles `npm run fit`/`mkt` run (dist/cli/, not committed).
 node scripts/build-cli.mjs || status=1
 
-RESULTS="$(mktemp /tmp/rateledger-vitest.XXXXXX.json)"
+RESULTS="$(mktemp "${TMPDIR:-/tmp}/rateledger-vitest.XXXXXX.json")"
 npx vitest run --reporter=default --reporter=json --outputFile.json="$RESULTS" || status=1
 node -e '
   const r = JSON.parse(require("fs").readFileSync(process.argv[1], "utf8"));

@@ -1,6 +1,12 @@
 import ExcelJS from 'exceljs';
 import type { StudyAttribute } from '../../shared/kinetics/stability/study-attributes.ts';
-import { DEMO_BATCHES, DEMO_PRODUCT, type DemoStudyRecipe } from './demo-study.ts';
+import {
+  DEMO_BATCHES,
+  DEMO_PRODUCT,
+  type DemoStudyRecipe,
+  normalDeviates,
+  seededRandom,
+} from './demo-study.ts';
 
 /**
  * The demo study's full results workbook: every pull of the invented Quillatrine batches tested
@@ -112,26 +118,6 @@ export const DEMO_ATTRIBUTES: readonly StudyAttribute[] = [
     massBalanceRole: null,
   },
 ];
-
-/** Mulberry32: a small, well-known 32-bit generator; enough for invented demo noise. */
-function seededRandom(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4_294_967_296;
-  };
-}
-
-/** Standard normal deviates by the Box–Muller transform. */
-function normalDeviates(random: () => number): () => number {
-  return () => {
-    const u = Math.max(random(), Number.EPSILON);
-    return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random());
-  };
-}
 
 const arrheniusFactor = (activationEnergy: number, temperatureC: number) =>
   Math.exp((-activationEnergy / GAS_CONSTANT) * (1 / (temperatureC + 273.15) - 1 / 298.15));

@@ -54,7 +54,7 @@ export interface DemoRow {
 }
 
 /** Mulberry32: a small, well-known 32-bit generator; enough for invented demo noise. */
-function seededRandom(seed: number): () => number {
+export function seededRandom(seed: number): () => number {
   let state = seed >>> 0;
   return () => {
     state = (state + 0x6d2b79f5) >>> 0;
@@ -66,7 +66,7 @@ function seededRandom(seed: number): () => number {
 }
 
 /** Standard normal deviates by the Box–Muller transform. */
-function normalDeviates(random: () => number): () => number {
+export function normalDeviates(random: () => number): () => number {
   return () => {
     const u = Math.max(random(), Number.EPSILON);
     return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random());
