@@ -1,5 +1,9 @@
-import type { DatasetAnalysis, DatasetOptions } from '../kinetics/analyse-dataset.ts';
-import { analyseSeries } from '../kinetics/analyse-series.ts';
+import {
+  analyseDatasetWithBands,
+  type DatasetAnalysis,
+  type DatasetOptions,
+} from '../kinetics/analyse-dataset.ts';
+import { analyseSeries, type FirstFitBand } from '../kinetics/analyse-series.ts';
 import type { StudyAttribute } from '../kinetics/stability/study-attributes.ts';
 import type { MassBalance, StudyShelfLife } from '../kinetics/stability/study-shelf-life-types.ts';
 import type { IntegerOrder, Series } from '../kinetics/types.ts';
@@ -48,12 +52,62 @@ export interface ConfidenceBand {
 export const BAND_POINTS = 41;
 
 /**
+ * The engine's analysis of a dataset and the confidence band of each series' chosen law, both from
+ * the one fit (issue 16): the band is the chosen law's predictions on an even grid across the
+ * observed span, computed from the fit the analysis itself made — the same numbers
+ * `confidenceBands` gets by analysing every series a second time, in half the time.
+ *
+ * Throws `KineticsError` as `analyseDataset` does (invalid options); a series that was not
+ * analysed, or whose chosen law has no interval, gets no band or null bounds.
+ */
+export function analyseForStorage(
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+): StoredAnalysisResult {
+  const { analysis, bands } = analyseDatasetWithBands(seriesList, options, BAND_POINTS);
+  return { analysis, confidenceBands: bandsOfFirstFit(analysis, bands) };
+}
+
+function bandsOfFirstFit(
+  analysis: DatasetAnalysis,
+  bands: readonly (FirstFitBand | null)[],
+): ConfidenceBand[] {
+  const found: ConfidenceBand[] = [];
+  analysis.series.forEach((result, index) => {
+    const fitted = result.analysis;
+    const band = bands[index];
+    if (!fitted || !band) return;
+    found.push({
+      seriesId: result.id,
+      order: band.order,
+      chosenBecause: fitted.reportedOrder === null ? 'lowest-aicc' : 'reported-order',
+      confidenceLevel: fitted.confidenceLevel,
+      points: band.predictions.map(bandPoint),
+    });
+  });
+  return found;
+}
+
+const bandPoint = (prediction: {
+  time: number;
+  estimate: number | null;
+  confidenceInterval: [number, number] | null;
+}): ConfidenceBand['points'][number] => ({
+  time: prediction.time,
+  estimate: prediction.estimate,
+  lower: prediction.confidenceInterval?.[0] ?? null,
+  upper: prediction.confidenceInterval?.[1] ?? null,
+});
+
+/**
  * The confidence band of each analysed series: the series is analysed again with its chosen order
  * fixed and `predictAt` on an even grid across its observed span — the same data, options and
  * deterministic fit, so the curve is the one of the stored result; only the predictions are new.
  *
  * Throws nothing: a series that was not analysed, or whose chosen law has no interval, gets no
  * band or null bounds.
+ *
+ * Kept as the reference that `analyseForStorage` is tested against (stored-result.test.ts).
  *
  * Example: a first-order series observed from 0 to 24 months gets 41 points at 0, 0.6, …, 24
  * months, each with the fitted value and its 95 % confidence interval.
@@ -94,12 +148,7 @@ export function confidenceBands(
         order,
         chosenBecause: fitted.reportedOrder === null ? 'lowest-aicc' : 'reported-order',
         confidenceLevel: fitted.confidenceLevel,
-        points: (again.predictions ?? []).map((prediction) => ({
-          time: prediction.time,
-          estimate: prediction.estimate,
-          lower: prediction.confidenceInterval?.[0] ?? null,
-          upper: prediction.confidenceInterval?.[1] ?? null,
-        })),
+        points: (again.predictions ?? []).map(bandPoint),
       });
     } catch {
       // The first pass analysed this series, so a second pass cannot fail on the data; if it

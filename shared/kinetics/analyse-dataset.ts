@@ -1,8 +1,9 @@
-import { analyseSeries } from './analyse-series.ts';
+import { analyseSeries, analyseSeriesWithBand, type FirstFitBand } from './analyse-series.ts';
 import type { DatasetFindings, DatasetOptions, DatasetWarning, SeriesResult } from './dataset-analysis.ts';
 import { datasetArrhenius } from './dataset-arrhenius.ts';
 import { type MethodStatement, methodStatement } from './method-statement.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
+import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
 import { conditionShelfLives } from './stability/condition-shelf-lives.ts';
 import { type Q1eDeclaration, UNSTATED_DECLARATION } from './stability/q1e-declaration.ts';
 import type { AttributeDirection, Series } from './types.ts';
@@ -130,6 +131,34 @@ function finiteOnly<T>(value: T, warnings: DatasetWarning[]): T {
 }
 
 export function analyseDataset(seriesList: readonly Series[], options: DatasetOptions = {}): DatasetAnalysis {
+  return analyseWith(seriesList, options, analyseSeries);
+}
+
+/**
+ * `analyseDataset`, and for each series the band of its chosen law from the same fit
+ * (`analyseSeriesWithBand`; null for a series not analysed or naming no order), in series order.
+ */
+export function analyseDatasetWithBands(
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+  bandPoints: number,
+): { analysis: DatasetAnalysis; bands: (FirstFitBand | null)[] } {
+  const bands: (FirstFitBand | null)[] = seriesList.map(() => null);
+  let index = 0;
+  const analysis = analyseWith(seriesList, options, (series, seriesOptions) => {
+    const position = index++;
+    const outcome = analyseSeriesWithBand(series, seriesOptions, bandPoints);
+    bands[position] = outcome.band;
+    return outcome.analysis;
+  });
+  return { analysis, bands };
+}
+
+function analyseWith(
+  seriesList: readonly Series[],
+  options: DatasetOptions,
+  analyse: (series: Series, options: SeriesOptions) => SeriesAnalysis,
+): DatasetAnalysis {
   const confidenceLevel = options.confidenceLevel ?? 0.95;
   if (!(confidenceLevel > 0 && confidenceLevel < 1)) {
     throw new KineticsError(
@@ -146,7 +175,7 @@ export function analyseDataset(seriesList: readonly Series[], options: DatasetOp
   } = options;
   const warnings: DatasetWarning[] = [];
   const results: SeriesResult[] = seriesList.map((series) => {
-    const outcome = kineticsFailure(() => analyseSeries(series, seriesOptions));
+    const outcome = kineticsFailure(() => analyse(series, seriesOptions));
     const result: SeriesResult = {
       id: series.id,
       batch: series.batch ?? null,

@@ -1,7 +1,7 @@
 import { collectWarnings } from './derived/analysis-warnings.ts';
 import { finiteOnly } from './derived/finite-only.ts';
 import { type DerivedFigure, derivedFigure, modelSummary } from './derived/model-summary.ts';
-import { predictedValue } from './derived/predicted-value.ts';
+import { type PredictedValue, predictedValue } from './derived/predicted-value.ts';
 import { negativeValueReason, refuseFixedOrderWithNegativeValue } from './negative-values.ts';
 import { KineticsError } from './numeric/kinetics-error.ts';
 import { chooseErrorModel, type ErrorModelChoice } from './order/choose-error-model.ts';
@@ -13,7 +13,12 @@ import { type ModelFits, type OrderSelection, selectOrder } from './order/select
 import { startingValues } from './order/starting-values.ts';
 import { plausibleLawFigures } from './plausible-law-figures.ts';
 import type { SeriesAnalysis, SeriesOptions } from './series-analysis.ts';
-import { analysisInOriginalUnits, scaledOptions, seriesScaling } from './series-scaling.ts';
+import {
+  analysisInOriginalUnits,
+  predictionsInOriginalUnits,
+  scaledOptions,
+  seriesScaling,
+} from './series-scaling.ts';
 import type { ErrorModel, IntegerOrder, Series } from './types.ts';
 
 /**
@@ -44,6 +49,36 @@ export type { AnalysisWarning, SeriesAnalysis, SeriesOptions } from './series-an
 const MODELS: readonly RateLawModel[] = [0, 1, 2, 'n'];
 
 export function analyseSeries(series: Series, options: SeriesOptions = {}): SeriesAnalysis {
+  return analyse(series, options, undefined).analysis;
+}
+
+/**
+ * The mean-curve band of a series' chosen law (the reported order, else the best integer order by
+ * AICc) at `points` even times across the observed span, computed from the analysis' own fit
+ * (issue 16): the same numbers as analysing the series again with that order fixed and
+ * `predictAt` on the grid, since fixing the order changes no fit. Null where that second analysis
+ * would refuse (a fixed order 1 or 2 with a negative value) or the series names no order;
+ * `predictions` is empty where the chosen law could not be fitted.
+ */
+export interface FirstFitBand {
+  order: IntegerOrder;
+  predictions: PredictedValue[];
+}
+
+/** `analyseSeries`, and the band of its chosen law from the same fit (see `FirstFitBand`). */
+export function analyseSeriesWithBand(
+  series: Series,
+  options: SeriesOptions,
+  bandPoints: number,
+): { analysis: SeriesAnalysis; band: FirstFitBand | null } {
+  return analyse(series, options, bandPoints);
+}
+
+function analyse(
+  series: Series,
+  options: SeriesOptions,
+  bandPoints: number | undefined,
+): { analysis: SeriesAnalysis; band: FirstFitBand | null } {
   const confidenceLevel = options.confidenceLevel ?? 0.95;
   if (!(confidenceLevel > 0 && confidenceLevel < 1)) {
     throw new KineticsError(
@@ -260,9 +295,29 @@ export function analyseSeries(series: Series, options: SeriesOptions = {}): Seri
       predictedValue(reportedFit, time, confidenceLevel),
     );
   }
-  const result = analysisInOriginalUnits(analysis, fits, scaling);
-  result.warnings = collectWarnings(result, selection, fits, unscaledOptions);
-  return finiteOnly(result, result.diagnostics?.points);
+  const original = analysisInOriginalUnits(analysis, fits, scaling);
+  original.warnings = collectWarnings(original, selection, fits, unscaledOptions);
+  const result = finiteOnly(original, original.diagnostics?.points);
+  if (bandPoints === undefined) return { analysis: result, band: null };
+  const bandOrder = result.reportedOrder ?? result.selection.bestIntegerOrder;
+  if (
+    bandOrder === null ||
+    bandOrder === undefined ||
+    negativeValueReason(bandOrder, prepared.values, prepared.labelOf) !== null
+  )
+    return { analysis: result, band: null };
+  const [start, end] = result.timeSpan;
+  const grid = Array.from({ length: bandPoints }, (_, i) => start + ((end - start) * i) / (bandPoints - 1));
+  const bandFit = fits[bandOrder];
+  const scaledGrid = scaledOptions({ predictAt: grid }, scaling).predictAt!;
+  const predictions =
+    bandFit === null || bandFit === undefined
+      ? []
+      : predictionsInOriginalUnits(
+          scaledGrid.map((time) => predictedValue(bandFit, time, confidenceLevel)),
+          scaling,
+        );
+  return { analysis: result, band: { order: bandOrder, predictions: finiteOnly(predictions, null) } };
 }
 
 function attempt(runFit: () => RateLawFit): [RateLawFit | null, string | undefined] {

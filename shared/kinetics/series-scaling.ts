@@ -276,6 +276,15 @@ const prediction = (p: PredictedValue, scaling: SeriesScaling): PredictedValue =
   predictionInterval: times(p.predictionInterval, scaling.value),
 });
 
+/** Predicted values of the scaled series in the original units (unchanged under unit scaling). */
+export function predictionsInOriginalUnits(
+  predictions: PredictedValue[],
+  scaling: SeriesScaling,
+): PredictedValue[] {
+  if (isUnitScaling(scaling)) return predictions;
+  return predictions.map((p) => prediction(p, scaling));
+}
+
 /**
  * The analysis of the scaled series in the original units (see the header). `fits` are the
  * scaled fits (for the free order's covariance); warnings are left to the caller, which

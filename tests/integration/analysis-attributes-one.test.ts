@@ -1,5 +1,6 @@
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { getAnalysisRun } from '../../server/features/analysis/index.ts';
 import { canonicalJson } from '../../server/platform/audit/canonical-json.ts';
 import { analysisRuns, studies } from '../../server/platform/db/schema/index.ts';
 import { analysisOptionsSchema } from '../../shared/api/analyses.ts';
@@ -93,7 +94,10 @@ async function runAndRead(datasetId: number, body: Record<string, unknown>) {
     .select()
     .from(analysisRuns)
     .where(eq(analysisRuns.id, response.body.runId as number));
-  return run!;
+  // The result as the product reads it back (either stored form: issue 16's compact form keeps
+  // long number lists as doubles beside the JSON); options and method statement as stored.
+  const read = await getAnalysisRun(world.database.db, world.organisationId, run!.id);
+  return { ...run!, result: read.result as unknown };
 }
 
 async function oneAttributeStudy(fields: Partial<typeof studies.$inferInsert> = {}): Promise<Study> {

@@ -16,6 +16,7 @@ import { analysisRuns, datasets, studies, users } from '../../platform/db/schema
 import { HttpError } from '../../platform/http/http-error.ts';
 import { assertNotRetired } from '../retirement/index.ts';
 import { applyExclusions, type ResolvedExclusion } from './analysis-exclusions.ts';
+import { COMPACT_FORM, decodeResult, encodeResult } from './compact-result.ts';
 import { evaluateStudy, seriesAsRun } from './study-attribute-runs.ts';
 import { linkRunToStudyVersion, type StudyStanding, studyAsRun } from './study-snapshot.ts';
 
@@ -73,6 +74,8 @@ export async function runAnalysis(
     engine,
     ...(otherEngines.length === 0 ? {} : { otherAttributes: otherEngines }),
   };
+  // The compact form (issue 16): long number lists as exact doubles beside the JSON.
+  const compact = encodeResult(result, series);
   return db.transaction(async (tx) => {
     if (input.supersedesRunId !== undefined)
       await assertLatest(tx, input.organisationId, input.supersedesRunId);
@@ -86,7 +89,9 @@ export async function runAnalysis(
         options: storedOptions,
         exclusions: resolved,
         engineVersion: ENGINE_VERSION,
-        result,
+        result: compact.json,
+        resultForm: COMPACT_FORM,
+        resultArrays: compact.arrays,
         methodStatement,
         supersedesRunId: input.supersedesRunId ?? null,
         runBy: input.actor.userId,
@@ -242,7 +247,7 @@ export async function getAnalysisRun(
   const exclusions = row.run.exclusions as ResolvedExclusion[];
   const { series: excluded } = applyExclusions(row.dataset.series, exclusions);
   const frozen = await studyAsRun(db, row.run, row.study);
-  const result = row.run.result as StoredAnalysisResult;
+  const result = storedResult(row.run, excluded);
   // The attributes the run recorded (a multi-attribute run keeps each with its rules), else the study's.
   const attributes =
     result.studyShelfLife?.attributes.map((entry) => entry.attribute) ?? studyAttributes(frozen.study);
@@ -267,6 +272,17 @@ export async function getAnalysisRun(
     runAt: row.run.runAt,
     series,
   };
+}
+
+/** The run's result in either stored form: JSON (runs before issue 16) or compact; never rewritten. */
+function storedResult(
+  run: Pick<typeof analysisRuns.$inferSelect, 'id' | 'result' | 'resultForm' | 'resultArrays'>,
+  series: Series[],
+): StoredAnalysisResult {
+  if (run.resultForm === 'json') return run.result as StoredAnalysisResult;
+  if (run.resultForm === COMPACT_FORM && run.resultArrays !== null)
+    return decodeResult(run.result, run.resultArrays, series);
+  throw new Error(`Analysis ${run.id} is stored in a form this version cannot read (${run.resultForm}).`);
 }
 
 async function supersedingRun(db: Executor, runId: number): Promise<number | null> {

@@ -1,7 +1,7 @@
 import type { AnalysisOptions } from '../../../shared/api/analyses.ts';
 import {
   type AttributeAnalysisResult,
-  confidenceBands,
+  analyseForStorage,
   type StoredAnalysisResult,
 } from '../../../shared/figures/stored-result.ts';
 import { analyseDataset, type DatasetOptions } from '../../../shared/kinetics/analyse-dataset.ts';
@@ -33,7 +33,7 @@ import { HttpError } from '../../platform/http/http-error.ts';
  *   statement gain the rule's sentence.
  * - Several attributes: each gets its own series (`seriesOfAttribute`), its own limits, direction
  *   and working order, the study's Q1E declaration and storage temperature, its censored rule,
- *   then `analyseDataset` and `confidenceBands`. The first fills `analysis`, the others
+ *   then `analyseForStorage` (the analysis and its bands from one fit). The first fills `analysis`, the others
  *   `otherAttributes` — every attribute after the first, in study order, always, so
  *   `otherAttributes[i]` is attribute i + 2 of the study.
  * - An attribute with no series in the dataset is analysed as no series (an empty analysis) and
@@ -118,12 +118,13 @@ function evaluateAttribute(
   const own = seriesOfAttribute(series, attributes, attribute);
   try {
     const ruled = applyCensoredRule(own, attribute);
-    const analysis = analyseDataset(ruled, engine);
+    // One fit per series: the bands come from it (issue 16), not from a second analysis.
+    const { analysis, confidenceBands } = analyseForStorage(ruled, engine);
     return {
       attribute,
       engine,
       series: ruled,
-      result: { attribute, analysis, confidenceBands: confidenceBands(analysis, ruled, engine) },
+      result: { attribute, analysis, confidenceBands },
       notAnalysedReason: own.length === 0 && attributes.length > 1 ? NO_DATA : null,
     };
   } catch (error) {

@@ -19,7 +19,12 @@ export interface KeyResult {
   value: string;
 }
 
-/** The parts of a stored run this reads; anything missing shows as "—". */
+/**
+ * The parts of a stored run this reads; anything missing shows as "—". `result` may be the JSON
+ * part of a compact-form run (server/features/analysis/compact-result.ts) as stored: that form
+ * moves only lists of 32 or more numbers into doubles, and every value read here is a scalar or
+ * text, so it reads the same either way (tests/integration/analysis-result-compact.test.ts).
+ */
 export interface StoredRun {
   result: unknown;
   options: unknown;

@@ -33,6 +33,10 @@ interface StoredWarnings {
   };
 }
 
+/**
+ * The engine's warnings of a stored result, as stored: warnings are lists of objects with text,
+ * which the compact form (server/features/analysis/compact-result.ts) always leaves in JSON.
+ */
 function engineWarnings(result: unknown): string[] {
   const analysis = (result as StoredWarnings | null)?.analysis;
   if (!analysis) return [];
