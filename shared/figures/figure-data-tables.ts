@@ -8,7 +8,7 @@ import { type FigureSpec, q1eFigureId } from './analysis-figures.ts';
 import { isFormationRate, rateWords, seriesRate } from './arrhenius-rate-words.ts';
 import { censoredWords } from './fitted-curves.ts';
 import { lawLabels } from './law-standing.ts';
-import { plotSample } from './plot-sample.ts';
+import { observationValue, plotSample } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 import { formatSignificant, NOT_ESTIMABLE } from './significant-figures.ts';
 import type { StoredAnalysisResult } from './stored-result.ts';
@@ -22,7 +22,7 @@ import type { StoredAnalysisResult } from './stored-result.ts';
  * information, and a table of the plotted numbers is that alternative for a chart.
  *
  * Formula in words: every number comes from the stored result the figure is drawn from, never
- * from a new fit: the same points (`plotSample`, so a long series lists the same even sample), the
+ * from a new fit: the same points (`plotSample`, so a long series lists the same decimated points), the
  * fitted law C(t; C0, k, n) with the stored parameters (`rateLawValue`, as the curves), the stored
  * residual diagnostics, the stored Arrhenius line (`lineValueAt`) and the stored Q1E lines, whose
  * mean at time t is the back-transformed intercept + slope·t (`fromStabilityScale`, as the grid).
@@ -40,7 +40,7 @@ export interface FigureDataTable {
   columns: string[];
   /** One array of cell texts per row; the first cell is the row's header. */
   rows: string[][];
-  /** What the table does not list, or "" (e.g. that a long series is an even sample). */
+  /** What the table does not list, or "" (e.g. that a long series is decimated). */
   note: string;
 }
 
@@ -51,7 +51,7 @@ const KELVIN_OFFSET = 273.15;
 function sampleWords(shown: number, total: number): string {
   return shown === total
     ? ''
-    : `The figure draws an even sample of ${shown} of ${total} points; this table lists the same points, and every point is in the export.`;
+    : `The figure draws ${shown} of ${total} points (each interval’s lowest and highest, and every flagged point); this table lists the same points, and every point is in the export.`;
 }
 
 /** The value cell of a point: its reported text for a result below a limit ("<LOQ (fitted at 0.02)"). */
@@ -81,7 +81,12 @@ function joined(...notes: string[]): string {
 }
 
 function linearisedTable(analysis: SeriesAnalysis, series: Series): FigureDataTable {
-  const sample = plotSample(series.observations.filter((observation) => observation.excluded === undefined));
+  const sample = plotSample(
+    series.observations.filter((observation) => observation.excluded === undefined),
+    {
+      valueOf: observationValue,
+    },
+  );
   const lineOf = (transform: string) => {
     const line = analysis.linearized.find((candidate) => candidate.transform === transform);
     return (time: number) =>
@@ -116,10 +121,10 @@ function linearisedTable(analysis: SeriesAnalysis, series: Series): FigureDataTa
 }
 
 function curvesTable(analysis: SeriesAnalysis, series: Series): FigureDataTable {
-  const sample = plotSample(
-    series.observations,
-    (observation) => observation.excluded !== undefined || observation.censored !== undefined,
-  );
+  const sample = plotSample(series.observations, {
+    mustKeep: (observation) => observation.excluded !== undefined || observation.censored !== undefined,
+    valueOf: observationValue,
+  });
   const laws = lawLabels(analysis).flatMap(({ model: name }) => {
     const model = analysis.models.find((candidate) => String(candidate.order) === name);
     if (!model || model.c0 === null || model.k === null) return [];
@@ -166,7 +171,7 @@ function residualsTable(analysis: SeriesAnalysis, series: Series): FigureDataTab
   const outliers = new Set(diagnostics.possibleOutliers);
   const sample = plotSample(
     diagnostics.points.map((point, index) => ({ point, outlier: outliers.has(index) })),
-    (entry) => entry.outlier,
+    { mustKeep: (entry) => entry.outlier, valueOf: (entry) => entry.point.residual },
   );
   const scale = analysis.errorModel === 'proportional' ? 'ln scale' : series.valueUnit;
   return {
@@ -266,6 +271,7 @@ function q1eTable(condition: ConditionShelfLife, seriesList: readonly Series[]):
     const line = result.lines.find((candidate) => candidate.batches.includes(series.id));
     const sample = plotSample(
       series.observations.filter((observation) => observation.excluded === undefined),
+      { valueOf: observationValue },
     );
     shown += sample.shown;
     total += sample.total;

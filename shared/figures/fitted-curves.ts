@@ -19,7 +19,7 @@ import {
   PLAUSIBLE_DELTA_AICC,
   PLAUSIBLE_WEIGHT,
 } from './law-standing.ts';
-import { plotSample, sampleNote } from './plot-sample.ts';
+import { observationValue, plotSample, sampleNote } from './plot-sample.ts';
 import { MODEL_NAMES } from './results-table.ts';
 import type { ConfidenceBand } from './stored-result.ts';
 
@@ -85,10 +85,10 @@ export function fittedCurvesSpec(
   const lineSymbols = { symbolType: 'stroke', symbolSize: 900 };
   const lawLegend = named ? { columns: 2, ...lineSymbols } : { columns: 1, labelLimit: 360, ...lineSymbols };
   const namedBand = named && band && String(band.order) === named.model ? band : undefined;
-  const sample = plotSample(
-    series.observations,
-    (observation) => observation.excluded !== undefined || observation.censored !== undefined,
-  );
+  const sample = plotSample(series.observations, {
+    mustKeep: (observation) => observation.excluded !== undefined || observation.censored !== undefined,
+    valueOf: observationValue,
+  });
   const points = sample.points.map((observation) => ({
     time: observation.time,
     value: observation.value,

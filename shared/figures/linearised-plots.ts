@@ -8,7 +8,7 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
-import { plotSample, sampleNote } from './plot-sample.ts';
+import { observationValue, plotSample, sampleNote } from './plot-sample.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -44,7 +44,13 @@ const TRANSFORMS = [
 ] as const;
 
 export function linearisedPlotsSpec(analysis: SeriesAnalysis, series: Series): Record<string, unknown> {
-  const sample = plotSample(series.observations.filter((observation) => observation.excluded === undefined));
+  const sample = plotSample(
+    series.observations.filter((observation) => observation.excluded === undefined),
+    {
+      // C, ln C and 1/C are monotone in C: the extremes of C are those of every panel.
+      valueOf: observationValue,
+    },
+  );
   const used = sample.points;
   const [start, end] = analysis.timeSpan;
   const panels = TRANSFORMS.map((entry, order) => {

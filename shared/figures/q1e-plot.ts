@@ -11,7 +11,7 @@ import {
   timeTitle,
   VEGA_LITE_SCHEMA,
 } from './figure-config.ts';
-import { plotSample, sampleNote } from './plot-sample.ts';
+import { observationValue, plotSample, sampleNote } from './plot-sample.ts';
 import { formatSignificant } from './significant-figures.ts';
 
 /**
@@ -69,7 +69,12 @@ export function q1ePlotSpec(
   const valueUnit = members[0]?.valueUnit ?? '';
   const samples = members.map((series) => ({
     series,
-    sample: plotSample(series.observations.filter((observation) => observation.excluded === undefined)),
+    sample: plotSample(
+      series.observations.filter((observation) => observation.excluded === undefined),
+      {
+        valueOf: observationValue,
+      },
+    ),
   }));
   const observations = samples.flatMap(({ series, sample }) =>
     sample.points.map((observation) => ({

@@ -34,7 +34,10 @@ export function residualPlotSpec(analysis: SeriesAnalysis, series: Series): Reco
   if (!diagnostics) return null;
   const outliers = new Set(diagnostics.possibleOutliers);
   const indexed = diagnostics.points.map((point, index) => ({ point, outlier: outliers.has(index) }));
-  const sample = plotSample(indexed, (entry) => entry.outlier);
+  const sample = plotSample(indexed, {
+    mustKeep: (entry) => entry.outlier,
+    valueOf: (entry) => entry.point.residual,
+  });
   const points = sample.points.map(({ point, outlier }) => ({
     time: point.time,
     residual: point.residual,
