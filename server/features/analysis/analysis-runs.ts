@@ -1,4 +1,4 @@
-import { and, eq } from 'drizzle-orm';
+import { and, eq, getTableColumns } from 'drizzle-orm';
 import {
   type AnalysisOptions,
   analysisOptionsSchema,
@@ -17,6 +17,7 @@ import { HttpError } from '../../platform/http/http-error.ts';
 import { assertNotRetired } from '../retirement/index.ts';
 import { applyExclusions, type ResolvedExclusion } from './analysis-exclusions.ts';
 import { COMPACT_FORM, decodeResult, encodeResult } from './compact-result.ts';
+import { analysisRecordCache } from './record-cache.ts';
 import { evaluateStudy, seriesAsRun } from './study-attribute-runs.ts';
 import { linkRunToStudyVersion, type StudyStanding, studyAsRun } from './study-snapshot.ts';
 
@@ -225,6 +226,9 @@ export interface AnalysisRunRecord {
   series: Series[];
 }
 
+/** Every column of a run but its result (read apart, through the cache). */
+const { result: _result, resultArrays: _resultArrays, ...RUN_COLUMNS } = getTableColumns(analysisRuns);
+
 /** One run, readable by every member of its organisation; 404 for any other. */
 export async function getAnalysisRun(
   db: Executor,
@@ -233,9 +237,9 @@ export async function getAnalysisRun(
 ): Promise<AnalysisRunRecord> {
   const [row] = await db
     .select({
-      run: analysisRuns,
+      run: RUN_COLUMNS,
       study: studies,
-      dataset: datasets,
+      dataset: { id: datasets.id, pointCount: datasets.pointCount },
       runBy: { id: users.id, fullName: users.fullName },
     })
     .from(analysisRuns)
@@ -244,10 +248,34 @@ export async function getAnalysisRun(
     .innerJoin(users, eq(users.id, analysisRuns.runBy))
     .where(and(eq(analysisRuns.id, runId), eq(analysisRuns.organisationId, organisationId)));
   if (!row) throw new HttpError(404, `There is no analysis ${runId} in your organisation.`);
+  // The run and its dataset are write-once: their long parts come from the process's cache
+  // (record-cache.ts) once read, after the organisation check above.
+  const weight = () => row.dataset.pointCount;
+  const datasetSeries = await analysisRecordCache.get(
+    `dataset:${row.dataset.id}`,
+    async () => {
+      const [found] = await db
+        .select({ series: datasets.series })
+        .from(datasets)
+        .where(eq(datasets.id, row.dataset.id));
+      return found!.series;
+    },
+    weight,
+  );
   const exclusions = row.run.exclusions as ResolvedExclusion[];
-  const { series: excluded } = applyExclusions(row.dataset.series, exclusions);
+  const { series: excluded } = applyExclusions(datasetSeries, exclusions);
   const frozen = await studyAsRun(db, row.run, row.study);
-  const result = storedResult(row.run, excluded);
+  const result = await analysisRecordCache.get(
+    `result:${row.run.id}`,
+    async () => {
+      const [stored] = await db
+        .select({ result: analysisRuns.result, resultArrays: analysisRuns.resultArrays })
+        .from(analysisRuns)
+        .where(eq(analysisRuns.id, row.run.id));
+      return storedResult({ ...row.run, ...stored! }, excluded);
+    },
+    weight,
+  );
   // The attributes the run recorded (a multi-attribute run keeps each with its rules), else the study's.
   const attributes =
     result.studyShelfLife?.attributes.map((entry) => entry.attribute) ?? studyAttributes(frozen.study);

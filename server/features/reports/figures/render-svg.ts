@@ -72,7 +72,9 @@ async function renderOne(spec: TopLevelSpec, options: RenderSvgOptions): Promise
   const config = { ...(spec.config ?? {}), font: REPORT_FONT };
   let view: vega.View | null = null;
   try {
-    const compiled = compile({ ...spec, config } as TopLevelSpec).spec;
+    // Vega tags every datum it ingests (a symbol id): it gets a copy, since a spec's data may be
+    // the stored result itself, which other readers share (and which the record cache freezes).
+    const compiled = compile(structuredClone({ ...spec, config }) as TopLevelSpec).spec;
     vega.resetSVGDefIds();
     const refused: string[] = [];
     view = new vega.View(vega.parse(compiled), {
